@@ -1,0 +1,72 @@
+"""The command line: parses, calls the public API, prints.  The only code that prints.
+
+Each command lives in its own module of this package with two functions,
+``add_parser(subparsers)`` and ``run(args) -> int``; :data:`COMMANDS` maps the
+command name to that module, which is imported only when its command runs
+(or for ``--help``), so ``gearcad --help`` loads neither cadquery nor OCP.
+
+Exit codes: 0 all well, 1 a check failed or nothing met the tolerance,
+2 bad input (one line on stderr, no traceback), 130 interrupted.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+from typing import Sequence
+
+from ..errors import GearcadError
+
+__all__ = ["main", "COMMANDS"]
+
+COMMANDS: dict[str, str] = {
+    "pair": "gearcad.cli.pair",
+    "profiles": "gearcad.cli.profiles",
+    "ratio": "gearcad.cli.ratio",
+}
+
+
+class OneLineParser(argparse.ArgumentParser):
+    """An argparse parser whose errors are one line: ``gearcad CMD: error: ...``."""
+
+    def error(self, message: str) -> "NoReturn":  # type: ignore[name-defined]  # noqa: F821
+        self.exit(2, f"{self.prog}: error: {message} (see {self.prog} --help)\n")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The top-level parser with every available command."""
+    parser = OneLineParser(prog="gearcad", description="From a gear ratio to meshing involute gears and files a machine accepts.")
+    from .. import __version__
+
+    parser.add_argument("--version", action="version", version=f"gearcad {__version__}")
+    subparsers = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=OneLineParser)
+    for name, module_name in COMMANDS.items():
+        try:
+            module = importlib.import_module(module_name)
+        except ModuleNotFoundError as exc:  # a command still being built
+            if exc.name != module_name:
+                raise
+            continue
+        sub = module.add_parser(subparsers)
+        sub.set_defaults(_run=module.run)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Entry point of the ``gearcad`` command; returns the exit code."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not getattr(args, "_run", None):
+        parser.print_help()
+        return 2
+    try:
+        return int(args._run(args))
+    except GearcadError as exc:
+        print(f"gearcad {args.command}: error: {exc}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print(f"gearcad {args.command}: interrupted; no partial file was left", file=sys.stderr)
+        return 130
+    except BrokenPipeError:
+        return 0

@@ -1,0 +1,52 @@
+"""Printing helpers shared by the commands: JSON to stdout, plain tables."""
+
+from __future__ import annotations
+
+import json
+import math
+import sys
+from typing import Any, Iterable, Sequence
+
+__all__ = ["print_json", "table", "fmt"]
+
+
+def _clean(value: Any) -> Any:
+    if isinstance(value, float):
+        return value if math.isfinite(value) else None
+    if isinstance(value, dict):
+        return {k: _clean(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_clean(v) for v in value]
+    if hasattr(value, "item"):  # numpy scalars
+        return _clean(value.item())
+    return value
+
+
+def print_json(obj: Any) -> None:
+    """Print ``obj`` as indented JSON on stdout (the only thing on stdout with --json)."""
+    sys.stdout.write(json.dumps(_clean(obj), indent=2, ensure_ascii=False) + "\n")
+
+
+def fmt(value: float, digits: int = 4) -> str:
+    """A float with ``digits`` decimals, trailing zeros kept for alignment."""
+    return f"{value:.{digits}f}"
+
+
+def table(rows: Sequence[Sequence[str]], header: Sequence[str] | None = None, indent: str = "  ") -> str:
+    """Left-aligned first column, right-aligned others; returns the text."""
+    allrows: list[Sequence[str]] = ([header] if header else []) + list(rows)
+    if not allrows:
+        return ""
+    widths = [max(len(str(r[i])) for r in allrows if i < len(r)) for i in range(max(len(r) for r in allrows))]
+    lines = []
+    for n, r in enumerate(allrows):
+        cells = [str(c).ljust(widths[i]) if i == 0 else str(c).rjust(widths[i]) for i, c in enumerate(r)]
+        lines.append(indent + "  ".join(cells).rstrip())
+        if header and n == 0:
+            lines.append(indent + "  ".join("-" * w for w in widths))
+    return "\n".join(lines)
+
+
+def lines(items: Iterable[str]) -> str:
+    """Join lines."""
+    return "\n".join(items)

@@ -1,0 +1,79 @@
+"""The involute function, its inverse, and points of an involute of a circle.
+
+Angles are in radians, lengths in mm.  Pure functions over floats and numpy
+arrays; nothing here knows about gears.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+__all__ = ["inv", "inv_inverse", "involute_points", "involute_tangents", "roll_angle_at"]
+
+
+def inv(angle: float) -> float:
+    """Involute function ``tan(a) - a`` of a pressure angle ``a`` (radians)."""
+    return math.tan(angle) - angle
+
+
+def inv_inverse(value: float) -> float:
+    """Pressure angle ``a`` (radians, 0 <= a < pi/2) with ``inv(a) == value``.
+
+    Newton's method on ``tan(a) - a - value`` (derivative ``tan(a)**2``),
+    safeguarded by bisection so that it always stays in ``[0, pi/2)``, iterated
+    until the step no longer changes the result: full double precision.
+    """
+    if not math.isfinite(value) or value < 0:
+        raise ValueError(f"involute function value must be finite and >= 0, got {value!r}")
+    if value == 0.0:
+        return 0.0
+    low, high = 0.0, math.pi / 2
+    # (3 y)^(1/3) is the small-angle inverse (inv a = a^3/3 + ...); cap inside the bracket.
+    angle = min((3.0 * value) ** (1.0 / 3.0), math.atan(value + math.pi / 2))
+    for _ in range(200):
+        error = math.tan(angle) - angle - value
+        if error > 0:
+            high = angle
+        else:
+            low = angle
+        slope = math.tan(angle) ** 2
+        step = error / slope if slope > 0 else math.inf
+        candidate = angle - step
+        if not low < candidate < high:
+            candidate = 0.5 * (low + high)
+        if candidate == angle or abs(candidate - angle) <= 2e-16 * angle:
+            return candidate
+        angle = candidate
+    return angle
+
+
+def roll_angle_at(radius: np.ndarray | float, base_radius: float) -> np.ndarray | float:
+    """Roll angle ``t`` (radians) of the involute point at ``radius`` (mm): ``sqrt(R²/rb² - 1)``."""
+    return np.sqrt(np.maximum(np.square(radius / base_radius) - 1.0, 0.0))
+
+
+def involute_points(base_radius: float, start_angle: float, roll: np.ndarray) -> np.ndarray:
+    """Points of the involute that leaves the base circle at polar angle ``start_angle``.
+
+    The involute unwinds clockwise: its polar angle falls as the roll angle
+    grows (the upper flank of a tooth centred on +x).  ``roll`` holds roll
+    angles in radians; returns an (N, 2) array in mm.
+    """
+    roll = np.asarray(roll, dtype=float)
+    phi = start_angle - roll
+    c, s = np.cos(phi), np.sin(phi)
+    return base_radius * np.column_stack((c - roll * s, s + roll * c))
+
+
+def involute_tangents(start_angle: float, roll: np.ndarray) -> np.ndarray:
+    """Unit tangents (direction of growing roll angle) of :func:`involute_points`.
+
+    ``d p / d t = rb t (cos(phi), sin(phi))``: on the second branch (t < 0)
+    the tangent points the other way.
+    """
+    roll = np.asarray(roll, dtype=float)
+    phi = start_angle - roll
+    sign = np.where(roll < 0, -1.0, 1.0)
+    return sign[:, None] * np.column_stack((np.cos(phi), np.sin(phi)))
