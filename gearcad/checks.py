@@ -173,12 +173,18 @@ def _gear_findings(fig: GearFigures, label: str, mate: GearFigures, pair: GearPa
         out.append(Finding(f"interference {label}", "failure", reach, 0.0,
                            f"the tip of the mate ({mate_gear.teeth} teeth) runs {-reach:.3f} mm past the interference point of {label}: "
                            "it digs into the flank below the base circle"))
-    elif fig.active_root_diameter < fig.form_diameter - 1e-9:
-        out.append(Finding(f"interference {label}", "failure", fig.active_root_diameter, fig.form_diameter,
-                           f"the mate's tip reaches down to diameter {fig.active_root_diameter:.3f} mm on {label}, below its "
-                           f"form diameter {fig.form_diameter:.3f} mm where the involute begins: it strikes the root fillet"))
     else:
-        out.append(Finding(f"interference {label}", "ok", fig.active_root_diameter, fig.form_diameter,
+        out.append(Finding(f"interference {label}", "ok", reach, 0.0,
+                           f"the mate's tip stays outside the interference point of {label} "
+                           f"(the line-of-action tangent point on its base circle)"))
+    # Active flank: the mate's tip should meet this gear where the cut involute exists.
+    if fig.active_root_diameter < fig.form_diameter - 1e-9:
+        out.append(Finding(f"active flank {label}", "warning", fig.active_root_diameter, fig.form_diameter,
+                           f"the mate's tip reaches down to diameter {fig.active_root_diameter:.3f} mm on {label}, below its "
+                           f"form diameter {fig.form_diameter:.3f} mm where the cut involute ends: there it meets "
+                           "undercut or fillet instead of flank, and the real contact ratio is lower"))
+    else:
+        out.append(Finding(f"active flank {label}", "ok", fig.active_root_diameter, fig.form_diameter,
                            f"the mate's tip stays on the involute of {label} (down to diameter {fig.active_root_diameter:.3f} mm; "
                            f"form diameter {fig.form_diameter:.3f} mm)"))
     return out

@@ -32,15 +32,16 @@ def fmt(value: float, digits: int = 4) -> str:
     return f"{value:.{digits}f}"
 
 
-def table(rows: Sequence[Sequence[str]], header: Sequence[str] | None = None, indent: str = "  ") -> str:
-    """Left-aligned first column, right-aligned others; returns the text."""
+def table(rows: Sequence[Sequence[str]], header: Sequence[str] | None = None, indent: str = "  ",
+          left: Sequence[int] = (0,)) -> str:
+    """Columns in ``left`` left-aligned (default the first), the others right-aligned; returns the text."""
     allrows: list[Sequence[str]] = ([header] if header else []) + list(rows)
     if not allrows:
         return ""
     widths = [max(len(str(r[i])) for r in allrows if i < len(r)) for i in range(max(len(r) for r in allrows))]
     lines = []
     for n, r in enumerate(allrows):
-        cells = [str(c).ljust(widths[i]) if i == 0 else str(c).rjust(widths[i]) for i, c in enumerate(r)]
+        cells = [str(c).ljust(widths[i]) if i in left else str(c).rjust(widths[i]) for i, c in enumerate(r)]
         lines.append(indent + "  ".join(cells).rstrip())
         if header and n == 0:
             lines.append(indent + "  ".join("-" * w for w in widths))

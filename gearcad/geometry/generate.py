@@ -251,6 +251,24 @@ def _undercut_crossing(gear: SpurGear, cutter: _Cutter) -> float | None:
     return hi
 
 
+def _base_circle_crossing(gear: SpurGear, cutter: _Cutter) -> float:
+    """Tip-round angle where the fillet last rises through the base circle (bisection)."""
+    rb = gear.base_diameter / 2
+    betas = np.linspace(-math.pi / 2, -cutter.alpha, 2001)
+    pts = _fillet_points(gear, cutter, betas)
+    below = np.nonzero(np.hypot(pts[:, 0], pts[:, 1]) < rb)[0]
+    lo, hi = float(betas[below[-1]]), float(betas[min(below[-1] + 1, len(betas) - 1)])
+    for _ in range(200):
+        mid = 0.5 * (lo + hi)
+        if mid in (lo, hi):
+            break
+        if np.hypot(*_fillet_points(gear, cutter, np.array([mid]))[0]) < rb:
+            lo = mid
+        else:
+            hi = mid
+    return lo
+
+
 def _upper_flank(gear: SpurGear, tolerance: float, relief: TipRelief | None) -> tuple[list[Curve], bool, float]:
     """Curves of the upper flank of tooth 0 from the space centre (+pi/z) up to the tip corner."""
     cutter = _cutter(gear)
@@ -259,14 +277,24 @@ def _upper_flank(gear: SpurGear, tolerance: float, relief: TipRelief | None) -> 
     t_flank = _flank_start_roll(gear, cutter)
     undercut = t_flank < 0
     beta_cross = _undercut_crossing(gear, cutter) if undercut else None
-    beta_end = beta_cross if beta_cross is not None else -cutter.alpha
-    join = _fillet_points(gear, cutter, np.array([beta_end]))[0]
-    if beta_cross is not None:
+    marginal = undercut and beta_cross is None
+    if beta_cross is not None:  # the fillet cuts into the involute: meet at the intersection
+        beta_end = beta_cross
+        join = _fillet_points(gear, cutter, np.array([beta_end]))[0]
         t_start = float(roll_angle_at(np.hypot(*join), rb))
         form_radius = float(np.hypot(*join))
-    else:
-        t_start = t_flank
-        form_radius = rb if undercut else float(np.hypot(*join))
+    elif marginal:
+        # The fillet rises through the base circle just beside the involute's cusp; the bit of it
+        # above the base circle is cut away by the flank.  End it on the base circle and join the
+        # involute at its cusp.  The sliver this leaves out is under 1e-7 m deep (tests/test_outline_reference.py),
+        # far below any tolerance.
+        beta_end = _base_circle_crossing(gear, cutter)
+        join = involute_points(rb, gear.half_angle_at_base, np.array([0.0]))[0]
+        t_start, form_radius = 0.0, rb
+    else:  # no undercut: fillet and involute meet tangentially where the round meets the flank
+        beta_end = -cutter.alpha
+        join = _fillet_points(gear, cutter, np.array([beta_end]))[0]
+        t_start, form_radius = t_flank, float(np.hypot(*join))
     if form_radius >= ra:
         raise GeometryError(f"undercut reaches the tip of the {gear.teeth}-tooth gear; raise the profile shift")
 
@@ -276,7 +304,9 @@ def _upper_flank(gear: SpurGear, tolerance: float, relief: TipRelief | None) -> 
     if cutter.radius > 0:
         fillet = lambda b: _fillet_points(gear, cutter, b)  # noqa: E731
         betas = sample_curve(fillet, -math.pi / 2, beta_end, tolerance)
-        curves.append(Curve("fillet", fillet(betas), _fillet_tangents(gear, cutter, betas), betas))
+        pts = fillet(betas)
+        pts[-1] = join
+        curves.append(Curve("fillet", pts, _fillet_tangents(gear, cutter, betas), betas))
 
     t_end, tip_curves = _tip_corner(gear, relief, tolerance)
     if t_end <= t_start:

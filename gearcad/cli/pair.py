@@ -1,0 +1,175 @@
+"""``gearcad pair``: every standard figure of a meshing pair and a verdict."""
+
+from __future__ import annotations
+
+import argparse
+import dataclasses
+import math
+
+from ._format import fmt, print_json, table
+
+__all__ = ["add_parser", "run", "analysis_to_dict"]
+
+DESCRIPTION = """\
+Figures and checks of two external spur gears in mesh.  Give the tooth counts
+and the module; optionally the profile shifts, or a centre distance that the
+shifts must reach.  Exit 0: no check failed; 1: a check failed; 2: bad input.
+Defaults: 20 degrees, ISO 53 profile A, tips shortened to keep the bottom clearance."""
+
+
+def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParser:
+    """Register ``pair``."""
+    p = subparsers.add_parser("pair", help="figures and checks of a meshing pair", description=DESCRIPTION,
+                              formatter_class=argparse.RawDescriptionHelpFormatter)
+    p.add_argument("z1", help="teeth of gear 1 (the pinion, usually)")
+    p.add_argument("z2", help="teeth of gear 2")
+    p.add_argument("--module", "-m", required=True, type=float, metavar="MM", help="module, mm")
+    p.add_argument("--pressure-angle", type=float, metavar="DEG",
+                   help="pressure angle, degrees (10 to 35; default: the tooth system's)")
+    p.add_argument("--system", default="iso53-a", metavar="NAME", help="tooth system (gearcad profiles; default iso53-a)")
+    group = p.add_mutually_exclusive_group()
+    group.add_argument("--shift", nargs=2, type=float, metavar=("X1", "X2"), help="profile shift coefficients")
+    group.add_argument("--centre", type=float, metavar="MM",
+                       help="required centre distance, mm: the shift sum is found and shared between the gears")
+    p.add_argument("--backlash", type=float, default=0.0, metavar="MM",
+                   help="circumferential backlash by tooth thinning, mm on the working pitch circle (default 0)")
+    p.add_argument("--centre-allowance", type=float, default=0.0, metavar="MM",
+                   help="set the shafts this much further apart than the zero-backlash distance, mm (default 0)")
+    p.add_argument("--full-tips", action="store_true", help="keep full tips (no tip shortening)")
+    p.add_argument("--json", action="store_true", help="print one JSON object instead of the table")
+    return p
+
+
+def _system(name: str, pressure_angle: float | None):
+    from ..errors import InputError, ProfileError
+    from ..geometry.gear import PRESSURE_ANGLE_RANGE
+    from ..profiles import load_tooth_system
+    from ..validate import in_range
+
+    system = load_tooth_system(name)
+    if pressure_angle is None:
+        return system
+    angle = in_range(pressure_angle, "pressure angle", *PRESSURE_ANGLE_RANGE, unit="degrees")
+    try:
+        return dataclasses.replace(system, pressure_angle=math.radians(angle))
+    except ProfileError:
+        from ..profiles import tooth_system_names
+
+        fits = [n for n in tooth_system_names() if abs(math.degrees(load_tooth_system(n).pressure_angle) - angle) < 1e-9]
+        hint = f"use --system {fits[0]}" if fits else "pick a system made for that angle (gearcad profiles)"
+        raise InputError(
+            f"pressure angle {pressure_angle:g} degrees does not fit tooth system {name}: its cutter tip round "
+            f"({system.fillet_radius:g} m) leaves no room in the tooth space; {hint}") from None
+
+
+def run(args: argparse.Namespace) -> int:
+    """Run ``pair``."""
+    from ..checks import analyse_pair
+    from ..pair import make_pair
+    from ..validate import as_int
+
+    system = _system(args.system, args.pressure_angle)
+    z1, z2 = as_int(args.z1, "tooth count z1"), as_int(args.z2, "tooth count z2")
+    pair = make_pair(z1, z2, args.module, system, shifts=tuple(args.shift) if args.shift else None, centre=args.centre,
+                     backlash=args.backlash, centre_allowance=args.centre_allowance, shorten_tips=not args.full_tips)
+    analysis = analyse_pair(pair)
+    if args.json:
+        print_json(analysis_to_dict(analysis))
+    else:
+        print(render(analysis))
+    return 1 if analysis.worst == "failure" else 0
+
+
+def gear_to_dict(fig) -> dict:
+    """JSON form of one gear's figures (mm, degrees)."""
+    g = fig.gear
+    return {
+        "teeth": g.teeth,
+        "module": g.module,
+        "shift": g.shift,
+        "reference_diameter": g.reference_diameter,
+        "base_diameter": g.base_diameter,
+        "working_diameter": fig.working_diameter,
+        "tip_diameter": g.tip_diameter,
+        "root_diameter": g.root_diameter,
+        "form_diameter": fig.form_diameter,
+        "active_root_diameter": fig.active_root_diameter,
+        "tooth_thickness": g.tooth_thickness,
+        "tip_thickness": g.tip_thickness,
+        "thinning": g.thinning,
+        "tip_shortening": g.tip_shortening,
+        "undercut": fig.undercut,
+        "min_shift": fig.min_shift,
+    }
+
+
+def finding_to_dict(f) -> dict:
+    """JSON form of a finding."""
+    return {"check": f.check, "severity": f.severity, "message": f.message, "value": f.value, "limit": f.limit}
+
+
+def analysis_to_dict(a) -> dict:
+    """JSON form of a pair analysis; keys are a contract (see README)."""
+    p = a.pair
+    return {
+        "module": p.module,
+        "pressure_angle": math.degrees(p.pressure_angle),
+        "tooth_system": p.gear1.system.name,
+        "standard_centre_distance": p.standard_centre_distance,
+        "centre_distance": p.centre_distance,
+        "centre_modification": p.centre_modification,
+        "working_pressure_angle": math.degrees(p.operating_pressure_angle),
+        "contact_ratio": a.contact_ratio,
+        "backlash": a.backlash,
+        "normal_backlash": a.normal_backlash,
+        "gears": [gear_to_dict(f) for f in a.gears],
+        "findings": [finding_to_dict(f) for f in a.findings],
+        "verdict": a.worst,
+    }
+
+
+MARK = {"ok": "ok", "warning": "WARN", "failure": "FAIL"}
+
+
+def render(a) -> str:
+    """The readable table of ``pair``."""
+    p = a.pair
+    g1, g2 = a.gears
+    head = (f"Spur pair {g1.gear.teeth} : {g2.gear.teeth}   module {p.module:g} mm   "
+            f"pressure angle {math.degrees(p.pressure_angle):g} deg   {p.gear1.system.title}")
+    rows = [
+        ("teeth", str(g1.gear.teeth), str(g2.gear.teeth)),
+        ("profile shift x", f"{g1.gear.shift:+.4f}", f"{g2.gear.shift:+.4f}"),
+        ("reference diameter", fmt(g1.gear.reference_diameter), fmt(g2.gear.reference_diameter)),
+        ("base diameter", fmt(g1.gear.base_diameter), fmt(g2.gear.base_diameter)),
+        ("working pitch diameter", fmt(g1.working_diameter), fmt(g2.working_diameter)),
+        ("tip diameter", fmt(g1.gear.tip_diameter), fmt(g2.gear.tip_diameter)),
+        ("root diameter", fmt(g1.gear.root_diameter), fmt(g2.gear.root_diameter)),
+        ("form diameter (involute starts)", fmt(g1.form_diameter), fmt(g2.form_diameter)),
+        ("tooth thickness at reference (arc)", fmt(g1.gear.tooth_thickness), fmt(g2.gear.tooth_thickness)),
+        ("tip thickness (arc)", fmt(g1.gear.tip_thickness), fmt(g2.gear.tip_thickness)),
+        ("least shift without undercut", f"{g1.min_shift:+.4f}", f"{g2.min_shift:+.4f}"),
+        ("undercut", "yes" if g1.undercut else "no", "yes" if g2.undercut else "no"),
+    ]
+    mesh = [
+        ("reference centre distance", f"{fmt(p.standard_centre_distance)} mm"),
+        ("centre distance", f"{fmt(p.centre_distance)} mm"),
+        ("centre-distance modification y", f"{p.centre_modification:+.4f}"),
+        ("tip shortening k", f"{p.tip_shortening:.4f}" if p.gear1.tip_shortening else "none (full tips)" if p.tip_shortening > 1e-12 else "none needed"),
+        ("working pressure angle", f"{math.degrees(p.operating_pressure_angle):.4f} deg"),
+        ("transverse contact ratio", f"{a.contact_ratio:.4f}"),
+        ("backlash, circumferential / normal", f"{a.backlash:.4f} / {a.normal_backlash:.4f} mm"),
+    ]
+    checks = [(MARK[f.severity], f.check, f.message) for f in a.findings]
+    verdict = {"ok": "meshes well", "warning": "meshes, with warnings", "failure": "does NOT mesh as it stands"}[a.worst]
+    parts = [
+        head, "",
+        table(rows, header=("gear figures (mm)", "gear 1", "gear 2")), "",
+        table(mesh, header=("mesh", "")), "",
+        "checks",
+        "\n".join(f"  [{mark:>4}] {name}: {msg}" for mark, name, msg in checks), "",
+        f"verdict: the pair {verdict}.",
+        "Caution: gears are machinery. Guard pinch points; strength is not checked here; "
+        "defer to local codes and a qualified engineer for anything that carries load.",
+    ]
+    return "\n".join(parts)
