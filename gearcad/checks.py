@@ -169,10 +169,14 @@ def _gear_findings(fig: GearFigures, label: str, mate: GearFigures, pair: GearPa
     # point of the line of action on this gear's base circle), nor below the form circle.
     mate_gear = mate.gear
     reach = pair.centre_distance * math.sin(pair.operating_pressure_angle) - _roll_length(mate_gear.tip_diameter / 2, mate_gear.base_diameter / 2)
-    if reach < 0:
+    if reach < 0 and fig.undercut:
+        out.append(Finding(f"interference {label}", "warning", reach, 0.0,
+                           f"the tip of the mate ({mate_gear.teeth} teeth) runs {-reach:.3f} mm past the interference point of {label}; "
+                           "the cutter's undercut clears its path, but the teeth lose contact there"))
+    elif reach < 0:
         out.append(Finding(f"interference {label}", "failure", reach, 0.0,
-                           f"the tip of the mate ({mate_gear.teeth} teeth) runs {-reach:.3f} mm past the interference point of {label}: "
-                           "it digs into the flank below the base circle"))
+                           f"the tip of the mate ({mate_gear.teeth} teeth) runs {-reach:.3f} mm past the interference point of {label} "
+                           "and strikes its root fillet: raise the shift of this gear or shorten the mate's tips"))
     else:
         out.append(Finding(f"interference {label}", "ok", reach, 0.0,
                            f"the mate's tip stays outside the interference point of {label} "

@@ -10,7 +10,7 @@ import math
 from dataclasses import dataclass
 
 from .errors import InputError
-from .geometry.gear import SpurGear
+from .geometry.gear import PointedTeethError, SpurGear
 from .geometry.involute import inv, inv_inverse
 from .profiles import ToothSystem
 from .validate import as_int, positive
@@ -37,6 +37,8 @@ def working_pressure_angle(teeth1: int, teeth2: int, pressure_angle: float, shif
     ``inv(alpha_w) = inv(alpha) + 2 tan(alpha) (x1 + x2) / (z1 + z2)`` (ISO 21771, eq. for
     zero-backlash meshing).
     """
+    if shift_sum == 0:
+        return pressure_angle
     value = inv(pressure_angle) + 2 * math.tan(pressure_angle) * shift_sum / (teeth1 + teeth2)
     if value <= 0:
         raise InputError(f"profile shift sum {shift_sum:g} is too negative for {teeth1}+{teeth2} teeth: no centre distance exists")
@@ -201,6 +203,12 @@ def make_pair(teeth1: int, teeth2: int, module: float, system: ToothSystem, *,
         x1, x2 = split_shift(total_shift_for_centre(teeth1, teeth2, module, system.pressure_angle, centre), teeth1, teeth2)
     else:
         x1, x2 = shifts if shifts is not None else (0.0, 0.0)
+    for teeth, x in ((teeth1, x1), (teeth2, x2)):  # each gear must exist before the pair is solved
+        try:
+            SpurGear(teeth, module, system, shift=x)
+        except PointedTeethError:
+            if not shorten_tips:  # shortened tips may still leave a land: decided below
+                raise
     shift_sum = x1 + x2
     nominal = centre_distance_for_shift(teeth1, teeth2, module, system.pressure_angle, shift_sum)
     y = (nominal - standard_centre_distance(teeth1, teeth2, module)) / module

@@ -84,8 +84,18 @@ def test_least_shift_formula():
     (13, 13, False), (12, 12, True), (16, 101, False), (16, 102, True), (18, 2000, False), (17, 2000, True)])
 def test_shigley_interference_limits(z1, z2, interferes):
     pair = make_pair(z1, z2, 1, A, shorten_tips=False)
-    severity = finding(analyse_pair(pair), "interference gear 1").severity
-    assert (severity == "failure") is interferes
+    result = finding(analyse_pair(pair), "interference gear 1")
+    # value: how far the mate's tip stays short of the interference point along the line of action (mm).
+    assert (result.value < 0) is interferes
+    assert (result.severity != "ok") is interferes
+
+
+def test_generated_pinions_that_a_rack_leaves_uncut_never_interfere():
+    # Rack generation (ISO 21771): a pinion cut without undercut has an involute down to where any mate
+    # with the basic addendum reaches, whatever the mate's size.
+    for z2 in (18, 60, 400, 2000):
+        pair = make_pair(18, z2, 1, A, shorten_tips=False)
+        assert finding(analyse_pair(pair), "interference gear 1").severity == "ok"
 
 
 def test_shigley_closed_forms_agree_with_the_geometric_check():

@@ -56,7 +56,10 @@ def build_parser() -> argparse.ArgumentParser:
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``gearcad`` command; returns the exit code."""
     parser = build_parser()
-    args = parser.parse_args(argv)
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # argparse: --help (0) or a usage error (2, already printed as one line)
+        return int(exc.code or 0)
     if not getattr(args, "_run", None):
         parser.print_help()
         return 2

@@ -360,11 +360,8 @@ def fit_loop(loop: Loop, tolerance: float = DEFAULT_TOLERANCE) -> np.ndarray:
 
 def _drop_repeated_vertices(rows: np.ndarray) -> np.ndarray:
     """Remove each vertex that coincides with the next one (cyclically); its segment has no length."""
-    while len(rows) > 1:
-        step = np.roll(rows[:, :2], -1, axis=0) - rows[:, :2]
-        repeated = np.hypot(step[:, 0], step[:, 1]) <= _SAME_POINT
-        if not repeated.any():
-            break
-        first = int(np.argmax(repeated))
-        rows = np.delete(rows, first, axis=0)
-    return rows
+    step = np.roll(rows[:, :2], -1, axis=0) - rows[:, :2]
+    repeated = np.hypot(step[:, 0], step[:, 1]) <= _SAME_POINT
+    if repeated.all():
+        raise InputError("the loop has no length: all its points coincide")
+    return rows[~repeated]

@@ -18,7 +18,11 @@ from ..profiles import ToothSystem, load_tooth_system
 from ..validate import as_int, finite, in_range, positive
 from .involute import inv
 
-__all__ = ["SpurGear", "MIN_TEETH", "MODULE_RANGE", "SHIFT_RANGE", "PRESSURE_ANGLE_RANGE"]
+__all__ = ["SpurGear", "PointedTeethError", "MIN_TEETH", "MODULE_RANGE", "SHIFT_RANGE", "PRESSURE_ANGLE_RANGE"]
+
+class PointedTeethError(GeometryError):
+    """The teeth come to a point (tip thickness <= 0) before any tip shortening."""
+
 
 MIN_TEETH = 3
 MAX_TEETH = 10_000
@@ -94,7 +98,7 @@ class SpurGear:
         if self.tip_diameter <= self.root_diameter:
             raise GeometryError(f"tip shortening {self.tip_shortening:g} leaves no tooth height")
         if self.tip_thickness <= 0:
-            raise GeometryError(
+            raise PointedTeethError(
                 f"profile shift {self.shift:g} makes the teeth of a {self.teeth}-tooth gear pointed "
                 f"(tip thickness {self.tip_thickness:.4g} mm); use a smaller shift or shorten the tips")
 

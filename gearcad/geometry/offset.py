@@ -1,0 +1,500 @@
+"""Kerf and tool compensation: a loop moved sideways by a distance (its parallel curve).
+
+Sign convention.  Loops keep the material on their left: outer loops run
+counter-clockwise, holes clockwise.  A **positive distance moves the loop to
+its right, away from the material**: an outer loop grows, a hole shrinks.  A
+laser with kerf ``k`` follows ``offset_loop(loop, k / 2)`` for every loop of a
+part; a negative distance moves into the material.
+
+Construction.  Each curve point ``p`` with unit tangent ``t`` moves to
+``p + d n``, ``n = (t_y, -t_x)`` the unit normal on the loop's right: a
+free-form curve becomes its exact parallel curve (samples are moved exactly;
+points added to keep the chord tolerance come from the Hermite interpolant
+of :class:`~gearcad.geometry.arcfit.SampledCurve`), a circular arc stays an arc
+on the same centre with radius ``R +- d``.  Where the pieces of two curves
+separate at a corner a join arc of radius ``|d|`` centred on the corner closes
+the gap; where they cross, and where a curve tighter than ``|d|`` folds (a
+swallowtail), the crossing loops are cut away: of the raw offset curve only the
+stretches with winding number 0 on their right and 1 on their left remain,
+which is exactly the boundary of the grown (or shrunk) material.
+
+Lengths in mm, angles in radians.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import GeometryError, InputError
+from .arcfit import STRAIGHT_KINDS, SampledCurve, smooth_pieces
+from .generate import DEFAULT_TOLERANCE, Curve
+from .sampling import arc_step
+from .shape import Loop, polygon_area
+
+__all__ = ["offset_loop", "min_concave_radius", "CORNER_ANGLE"]
+
+CORNER_ANGLE = 1e-6  # radians: tangents that differ by more than this meet at a corner
+_SAME_POINT = 1e-12  # mm
+_MIN_LOOP_AREA = 1e-12  # mm²: loops smaller than this are rounding debris
+
+
+def _cross(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    return a[..., 0] * b[..., 1] - a[..., 1] * b[..., 0]
+
+
+def _dot(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    return a[..., 0] * b[..., 0] + a[..., 1] * b[..., 1]
+
+
+def _right_normal(t: np.ndarray) -> np.ndarray:
+    return np.stack((t[..., 1], -t[..., 0]), axis=-1)
+
+
+def _turn(t0: np.ndarray, t1: np.ndarray) -> np.ndarray:
+    """Signed turn (radians, counter-clockwise positive) from direction ``t0`` to ``t1``."""
+    return np.arctan2(_cross(t0, t1), _dot(t0, t1))
+
+
+def _rotate(t: np.ndarray, angle: np.ndarray) -> np.ndarray:
+    c, s = np.cos(angle), np.sin(angle)
+    return np.column_stack((c * t[0] - s * t[1], s * t[0] + c * t[1]))
+
+
+# -- the raw offset curve ---------------------------------------------------------------
+
+@dataclass(frozen=True)
+class _Source:
+    """What a stretch of the offset curve is: the Curve fields other than the samples."""
+
+    kind: str
+    radius: float
+    centre: tuple[float, float]
+
+
+@dataclass
+class _Run:
+    """Samples of one offset piece, end points included."""
+
+    source: _Source
+    points: np.ndarray
+    tangents: np.ndarray
+    params: np.ndarray
+
+
+def _arc_sense(curve: Curve) -> float:
+    """+1 if the arc runs counter-clockwise round its centre, -1 if clockwise."""
+    rel = curve.points[0] - np.asarray(curve.centre)
+    return 1.0 if float(_cross(rel, curve.tangents[0])) > 0 else -1.0
+
+
+def _offset_arc(curve: Curve, d: float, tolerance: float) -> _Run:
+    """The arc moved by ``d`` to its right: same centre, radius ``R + d`` (counter-clockwise) or ``R - d``."""
+    centre = np.asarray(curve.centre, dtype=float)
+    sense = _arc_sense(curve)
+    radius = curve.radius + sense * d
+    rel = curve.points - centre
+    sweep = float(_turn(rel[:-1], rel[1:]).sum())
+    start = math.atan2(rel[0, 1], rel[0, 0])
+    n = max(2, math.ceil(abs(sweep) / arc_step(max(abs(radius), tolerance), tolerance)) + 1)
+    angles = start + sweep * np.linspace(0.0, 1.0, n)
+    radial = np.column_stack((np.cos(angles), np.sin(angles)))
+    tangents = sense * np.column_stack((-radial[:, 1], radial[:, 0]))
+    points = centre + radius * radial
+    points[0] = curve.points[0] + d * _right_normal(curve.tangents[0])
+    points[-1] = curve.points[-1] + d * _right_normal(curve.tangents[-1])
+    if radius < 0:
+        tangents = -tangents  # the arc turned inside out: it now runs the other way
+    return _Run(_Source(curve.kind, abs(radius), curve.centre), points, tangents, angles)
+
+
+def _offset_line(curve: Curve, d: float) -> _Run:
+    ends = curve.points[[0, -1]]
+    direction = ends[1] - ends[0]
+    direction = direction / math.hypot(*direction)
+    tangents = np.array([direction, direction])
+    return _Run(_Source(curve.kind, 0.0, (0.0, 0.0)), ends + d * _right_normal(tangents), tangents,
+                curve.params[[0, -1]].astype(float))
+
+
+def _offset_free_form(curve: Curve, d: float, tolerance: float) -> _Run:
+    """Exact parallel points of the samples, with interpolated points where the chords would stray."""
+    track = SampledCurve(curve.points, curve.tangents)
+    moved = curve.points + d * _right_normal(curve.tangents)
+    chord = np.hypot(*np.diff(moved, axis=0).T)
+    turn = np.abs(_turn(curve.tangents[:-1], curve.tangents[1:]))
+    sagitta = chord * turn / 8  # of the offset chord: R' (1 - cos(phi/2)) ~ L' phi / 8
+    splits = np.maximum(1, np.ceil(np.sqrt(sagitta / (0.9 * tolerance)))).astype(int)
+    s = np.concatenate([i + np.arange(k) / k for i, k in enumerate(splits)] + [[float(track.last)]])
+    points, tangents = track.at(s)
+    i = np.minimum(np.floor(s).astype(int), track.last - 1)
+    params = curve.params[i] + (s - i) * (curve.params[i + 1] - curve.params[i])
+    return _Run(_Source(curve.kind, 0.0, curve.centre), points + d * _right_normal(tangents), tangents, params)
+
+
+def _offset_curve(curve: Curve, d: float, tolerance: float) -> _Run:
+    if curve.radius > 0:
+        return _offset_arc(curve, d, tolerance)
+    if curve.kind in STRAIGHT_KINDS:
+        return _offset_line(curve, d)
+    return _offset_free_form(curve, d, tolerance)
+
+
+def _corner_run(corner: np.ndarray, t_in: np.ndarray, t_out: np.ndarray, d: float, tolerance: float) -> _Run | None:
+    """What joins two offset pieces at a corner: a join arc, a straight bridge, or nothing (smooth)."""
+    turn = float(_turn(t_in, t_out))
+    if abs(turn) <= CORNER_ANGLE:
+        return None
+    if turn * d > 0:  # the pieces separate: round join centred on the corner
+        n = max(2, math.ceil(abs(turn) / arc_step(abs(d), tolerance)) + 1)
+        phi = np.linspace(0.0, turn, n)
+        tangents = _rotate(t_in, phi)
+        points = corner + d * _right_normal(tangents)
+        return _Run(_Source("arc", abs(d), (float(corner[0]), float(corner[1]))), points, tangents, phi)
+    # the pieces cross: a bridge between their ends, cut away with the crossing loop
+    a, b = corner + d * _right_normal(t_in), corner + d * _right_normal(t_out)
+    direction = (b - a) / max(math.hypot(*(b - a)), _SAME_POINT)
+    return _Run(_Source("line", 0.0, (0.0, 0.0)), np.array([a, b]), np.array([direction, direction]), np.array([0.0, 1.0]))
+
+
+@dataclass(frozen=True)
+class _Polyline:
+    """The raw closed offset curve: segment k runs from ``points[k]`` to ``points[k + 1]`` (cyclically)."""
+
+    points: np.ndarray  # (K, 2)
+    source: np.ndarray  # (K,) index into ``sources``
+    t0: np.ndarray  # (K, 2) tangent at the segment's start, as part of its source
+    t1: np.ndarray  # (K, 2) tangent at its end
+    p0: np.ndarray  # (K,) curve parameter at the start
+    p1: np.ndarray  # (K,) at the end
+    sources: tuple[_Source, ...]
+
+    @property
+    def ends(self) -> np.ndarray:
+        return np.roll(self.points, -1, axis=0)
+
+
+def _raw_offset(curves: list[Curve], d: float, tolerance: float) -> _Polyline:
+    runs: list[_Run] = []
+    for k, curve in enumerate(curves):
+        runs.append(_offset_curve(curve, d, tolerance))
+        following = curves[(k + 1) % len(curves)]
+        corner = _corner_run(curve.points[-1], curve.tangents[-1], following.tangents[0], d, tolerance)
+        if corner is not None:
+            runs.append(corner)
+    sources = tuple(r.source for r in runs)
+    pts, src, t0, t1, p0, p1 = [], [], [], [], [], []
+    for k, run in enumerate(runs):
+        pts.append(run.points[:-1])  # the next run starts where this one ends
+        src.append(np.full(len(run.points) - 1, k))
+        t0.append(run.tangents[:-1])
+        t1.append(run.tangents[1:])
+        p0.append(run.params[:-1])
+        p1.append(run.params[1:])
+    poly = _Polyline(np.concatenate(pts), np.concatenate(src), np.concatenate(t0), np.concatenate(t1),
+                     np.concatenate(p0), np.concatenate(p1), sources)
+    return _without_empty_segments(poly)
+
+
+def _without_empty_segments(poly: _Polyline) -> _Polyline:
+    step = poly.ends - poly.points
+    keep = np.hypot(step[:, 0], step[:, 1]) > _SAME_POINT
+    if keep.sum() < 3:
+        raise GeometryError("the offset loop has collapsed to a point")
+    return _Polyline(poly.points[keep], poly.source[keep], poly.t0[keep], poly.t1[keep], poly.p0[keep],
+                     poly.p1[keep], poly.sources)
+
+
+# -- self-crossings -------------------------------------------------------------------
+
+def _candidate_pairs(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Pairs (i < j) of segments whose bounding boxes share a cell of a uniform grid."""
+    lo, hi = np.minimum(a, b), np.maximum(a, b)
+    length = np.hypot(*(b - a).T)
+    cell = max(2.0 * float(np.median(length)), float(np.ptp(np.concatenate((a, b)), axis=0).max()) / 4096, 1e-9)
+    origin = lo.min(axis=0)
+    c0 = np.floor((lo - origin) / cell).astype(np.int64)
+    c1 = np.floor((hi - origin) / cell).astype(np.int64)
+    span = c1 - c0 + 1
+    count = span[:, 0] * span[:, 1]
+    owner = np.repeat(np.arange(len(a)), count)
+    local = np.arange(count.sum()) - np.repeat(np.cumsum(count) - count, count)
+    cx = c0[owner, 0] + local % span[owner, 0]
+    cy = c0[owner, 1] + local // span[owner, 0]
+    key = cx * (int(c1[:, 1].max()) + 2) + cy
+    order = np.lexsort((owner, key))
+    key, owner = key[order], owner[order]
+    group_start = np.r_[0, np.nonzero(np.diff(key))[0] + 1]
+    group_end = np.r_[group_start[1:], len(key)]
+    size = group_end - group_start
+    position_end = np.repeat(group_end, size)
+    after = position_end - np.arange(len(key)) - 1
+    first = np.repeat(np.arange(len(key)), after)
+    second = first + 1 + np.arange(after.sum()) - np.repeat(np.cumsum(after) - after, after)
+    i, j = owner[first], owner[second]
+    i, j = np.minimum(i, j), np.maximum(i, j)
+    pair = np.unique(i * len(a) + j)
+    return pair // len(a), pair % len(a)
+
+
+@dataclass(frozen=True)
+class _Crossings:
+    seg_i: np.ndarray
+    u_i: np.ndarray
+    seg_j: np.ndarray
+    u_j: np.ndarray
+    points: np.ndarray
+
+
+def _self_crossings(poly: _Polyline) -> _Crossings:
+    """Where the closed polyline crosses itself; each segment is taken half-open, ``[start, end)``."""
+    a, b = poly.points, poly.ends
+    k = len(a)
+    i, j = _candidate_pairs(a, b)
+    neighbours = (j - i == 1) | ((i == 0) & (j == k - 1)) | (i == j)
+    i, j = i[~neighbours], j[~neighbours]
+    r, s = b[i] - a[i], b[j] - a[j]
+    denominator = _cross(r, s)
+    q = a[j] - a[i]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        u = _cross(q, s) / denominator
+        v = _cross(q, r) / denominator
+    hit = (denominator != 0) & (u >= 0) & (u < 1) & (v >= 0) & (v < 1)
+    i, j, u, v = i[hit], j[hit], u[hit], v[hit]
+    return _Crossings(i, u, j, v, a[i] + u[:, None] * (b[i] - a[i]))
+
+
+# -- keeping the boundary of the material ----------------------------------------------
+
+@dataclass(frozen=True)
+class _Piece:
+    """The raw curve from one crossing to the next: from (segment, fraction) to (segment, fraction)."""
+
+    start_seg: int
+    start_u: float
+    end_seg: int
+    end_u: float
+    start_crossing: int
+    end_crossing: int
+
+
+def _pieces(poly: _Polyline, crossings: _Crossings) -> list[_Piece]:
+    seg = np.concatenate((crossings.seg_i, crossings.seg_j))
+    u = np.concatenate((crossings.u_i, crossings.u_j))
+    ident = np.tile(np.arange(len(crossings.seg_i)), 2)
+    order = np.lexsort((u, seg))
+    seg, u, ident = seg[order], u[order], ident[order]
+    nxt = np.roll(np.arange(len(seg)), -1)
+    return [_Piece(int(seg[e]), float(u[e]), int(seg[f]), float(u[f]), int(ident[e]), int(ident[f]))
+            for e, f in zip(range(len(seg)), nxt)]
+
+
+def _piece_segments(piece: _Piece, k: int) -> list[tuple[int, float, float]]:
+    """(segment, from fraction, to fraction) stretches of a piece, in order."""
+    if piece.end_seg == piece.start_seg and piece.end_u > piece.start_u:
+        return [(piece.start_seg, piece.start_u, piece.end_u)]
+    parts = [(piece.start_seg, piece.start_u, 1.0)]
+    s = (piece.start_seg + 1) % k
+    while s != piece.end_seg:
+        parts.append((s, 0.0, 1.0))
+        s = (s + 1) % k
+    parts.append((piece.end_seg, 0.0, piece.end_u))
+    return parts
+
+
+def _winding_right(poly: _Polyline, seg: int, point: np.ndarray) -> int:
+    """Winding number of the raw curve just right of ``point``, a point inside segment ``seg``.
+
+    The other segments subtend a total angle ``S`` at the point; segment ``seg``
+    itself subtends ``-pi`` seen from its right, so the winding there is
+    ``(S - pi) / (2 pi)``.
+    """
+    a, b = poly.points - point, poly.ends - point
+    angles = np.arctan2(_cross(a, b), _dot(a, b))
+    angles[seg] = 0.0
+    return int(round((angles.sum() - math.pi) / (2 * math.pi)))
+
+
+def _test_point(poly: _Polyline, parts: list[tuple[int, float, float]]) -> tuple[int, np.ndarray]:
+    a, b = poly.points, poly.ends
+    lengths = [(hi - lo) * math.hypot(*(b[s] - a[s])) for s, lo, hi in parts]
+    s, lo, hi = parts[int(np.argmax(lengths))]
+    u = 0.5 * (lo + hi)
+    return s, a[s] + u * (b[s] - a[s])
+
+
+def _kept_chains(poly: _Polyline, crossings: _Crossings) -> list[list[tuple[int, float, float]]]:
+    """The stretches of the raw curve that bound the material, chained into closed loops."""
+    k = len(poly.points)
+    if len(crossings.seg_i) == 0:
+        whole = [(s, 0.0, 1.0) for s in range(k)]
+        return [whole] if _winding_right(poly, *_test_point(poly, whole)) == 0 else []
+    pieces = _pieces(poly, crossings)
+    parts = [_piece_segments(p, k) for p in pieces]
+    kept = [n for n, pp in enumerate(parts) if _winding_right(poly, *_test_point(poly, pp)) == 0]
+    leaving: dict[int, list[int]] = {}
+    for n in kept:
+        leaving.setdefault(pieces[n].start_crossing, []).append(n)
+    chains, used = [], set()
+    for n in kept:
+        if n in used:
+            continue
+        chain, current = [], n
+        while current not in used:
+            used.add(current)
+            chain.extend(parts[current])
+            options = [m for m in leaving.get(pieces[current].end_crossing, []) if m not in used]
+            if not options:
+                break
+            current = options[0]
+        chains.append(chain)
+    return chains
+
+
+# -- back to curves -------------------------------------------------------------------
+
+def _points_on(poly: _Polyline, seg: np.ndarray, u: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Points, unit tangents and curve parameters at fractions ``u`` along segments ``seg``."""
+    w = u[:, None]
+    a, b = poly.points[seg], poly.ends[seg]
+    t = (1 - w) * poly.t0[seg] + w * poly.t1[seg]
+    norm = np.hypot(t[:, 0], t[:, 1])[:, None]
+    t = np.where(norm > 0, t / np.where(norm > 0, norm, 1.0), poly.t0[seg])
+    return a + w * (b - a), t, (1 - u) * poly.p0[seg] + u * poly.p1[seg]
+
+
+def _chain_to_curves(poly: _Polyline, chain: list[tuple[int, float, float]]) -> list[Curve]:
+    """Group the chain's stretches by source into Curves (each ends where the next begins)."""
+    st = np.array([s for s in chain if s[2] > s[1]], dtype=float).reshape(-1, 3)
+    seg, lo, hi = st[:, 0].astype(int), st[:, 1], st[:, 2]
+    source = poly.source[seg]
+    change = np.nonzero(source != np.roll(source, 1))[0]
+    if len(change):  # start the walk where one source gives way to another
+        order = np.roll(np.arange(len(seg)), -int(change[0]))
+        seg, lo, hi, source = seg[order], lo[order], hi[order], source[order]
+    starts, tangents, params = _points_on(poly, seg, lo)
+    _, end_tangents, end_params = _points_on(poly, seg, hi)
+    bounds = np.r_[np.nonzero(np.diff(source))[0] + 1, len(seg)]
+    curves: list[Curve] = []
+    first = 0
+    for last in bounds:
+        nxt = last % len(seg)  # the next group's first stretch starts where this group ends
+        points = np.vstack((starts[first:last], starts[nxt]))
+        tan = np.vstack((tangents[first:last], end_tangents[last - 1]))
+        par = np.r_[params[first:last], end_params[last - 1]]
+        src = poly.sources[int(source[first])]
+        curves.append(Curve(src.kind, points, tan, par, src.radius, src.centre))
+        first = last
+    return curves
+
+
+def _loop_from_chains(poly: _Polyline, chains: list[list[tuple[int, float, float]]], distance: float) -> Loop:
+    loops = [Loop(tuple(_chain_to_curves(poly, c))) for c in chains]
+    loops = [lp for lp in loops if abs(lp.area()) > _MIN_LOOP_AREA]
+    if not loops:
+        raise GeometryError(f"an offset of {distance:g} mm removes the whole loop")
+    if len(loops) > 1:
+        raise GeometryError(f"an offset of {distance:g} mm splits the loop into {len(loops)} loops")
+    return loops[0]
+
+
+# -- public ------------------------------------------------------------------------
+
+def _check_distance(distance: float) -> float:
+    if isinstance(distance, bool) or not isinstance(distance, (int, float)) or not math.isfinite(distance):
+        raise InputError(f"offset distance must be a finite number of mm, got {distance!r}")
+    return float(distance)
+
+
+def _check_tolerance(tolerance: float) -> float:
+    if not (isinstance(tolerance, (int, float)) and math.isfinite(tolerance) and 1e-6 <= tolerance <= 1.0):
+        raise InputError(f"offset tolerance must be from 1e-06 to 1 mm, got {tolerance!r}")
+    return float(tolerance)
+
+
+def offset_loop(loop: Loop, distance: float, tolerance: float = DEFAULT_TOLERANCE) -> Loop:
+    """The loop moved ``distance`` mm to its right, away from the material.
+
+    Parameters
+    ----------
+    loop : Loop
+        A simple closed loop: an outer contour (counter-clockwise) or a hole
+        (clockwise); in both the material lies on the left.
+    distance : float
+        Offset, mm.  Positive moves away from the material (outer loops grow,
+        holes shrink: half the kerf for a laser cut); negative moves into it.
+    tolerance : float
+        Chord tolerance of the output's polyline, mm; the input curves' own
+        sampling tolerance carries over.
+
+    Returns
+    -------
+    Loop
+        The offset loop, same orientation as ``loop``.  Offset curves keep their
+        kind; arcs keep their centre (radius ``R +- distance``); join arcs at
+        corners have kind ``"arc"``, radius ``|distance|`` and the corner as centre.
+
+    Raises
+    ------
+    GeometryError
+        If the offset removes the loop or splits it into several loops.
+    """
+    distance = _check_distance(distance)
+    tolerance = _check_tolerance(tolerance)
+    if distance == 0:
+        return loop
+    counter_clockwise = polygon_area(loop.points()) > 0
+    work = loop if counter_clockwise else loop.reversed()
+    grow = distance if counter_clockwise else -distance  # to the right of the counter-clockwise loop
+    curves = [piece for c in work.curves for piece in (smooth_pieces(c) if c.radius <= 0 and c.kind not in STRAIGHT_KINDS else [c])]
+    poly = _raw_offset(curves, grow, tolerance)
+    result = _loop_from_chains(poly, _kept_chains(poly, _self_crossings(poly)), distance)
+    return result if counter_clockwise else result.reversed()
+
+
+def min_concave_radius(loop: Loop) -> float:
+    """Smallest radius of curvature (mm) where the loop bends round the scrap side.
+
+    That is where a cutting tool on the scrap side (the loop's right, away from
+    the material) has to fit: a tool of larger radius cannot follow the loop
+    there.  A concave corner (tangent break) gives 0; a loop without concave
+    stretches gives ``math.inf``.  Free-form curves are measured from the turn
+    of their tangents between neighbouring samples, an average over each span.
+
+    Parameters
+    ----------
+    loop : Loop
+        Outer loop (counter-clockwise) or hole (clockwise).
+    """
+    smallest = math.inf
+    curves = loop.curves
+    for k, curve in enumerate(curves):
+        smallest = min(smallest, _curve_concave_radius(curve))
+        turn = float(_turn(curve.tangents[-1], curves[(k + 1) % len(curves)].tangents[0]))
+        if turn < -CORNER_ANGLE:
+            smallest = 0.0
+    return smallest
+
+
+def _curve_concave_radius(curve: Curve) -> float:
+    if curve.radius > 0:
+        return curve.radius if _arc_sense(curve) < 0 else math.inf
+    if curve.kind in STRAIGHT_KINDS:
+        return math.inf
+    smallest = math.inf
+    pieces = smooth_pieces(curve)
+    for n, piece in enumerate(pieces):
+        if n and float(_turn(pieces[n - 1].tangents[-1], piece.tangents[0])) < -CORNER_ANGLE:
+            smallest = 0.0
+        if piece.kind in STRAIGHT_KINDS:
+            continue
+        turn = _turn(piece.tangents[:-1], piece.tangents[1:])
+        chord = np.hypot(*np.diff(piece.points, axis=0).T)
+        half = np.abs(turn) / 2
+        length = chord * np.where(half > 0, half / np.sin(np.where(half > 0, half, 1.0)), 1.0)
+        right = turn < 0
+        if right.any():
+            smallest = min(smallest, float((length[right] / -turn[right]).min()))
+    return smallest
