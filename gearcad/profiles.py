@@ -25,6 +25,10 @@ __all__ = [
     "read_profile",
     "profile_names",
     "DEFAULT_TOOTH_SYSTEM",
+    "Fabrication",
+    "load_fabrication",
+    "fabrication_names",
+    "DEFAULT_FABRICATION",
 ]
 
 DEFAULT_TOOTH_SYSTEM = "iso53-a"
@@ -208,3 +212,65 @@ def load_tooth_system(name: str = DEFAULT_TOOTH_SYSTEM) -> ToothSystem:
 def tooth_system_names() -> list[str]:
     """Names of the shipped tooth systems."""
     return profile_names("tooth")
+
+
+DEFAULT_FABRICATION = "laser-3mm-acrylic"
+PROCESSES = ("laser", "fdm", "cnc")
+
+
+@dataclass(frozen=True)
+class Fabrication:
+    """How the parts are made: compensations and clearances, mm.
+
+    ``kerf``: material a cut removes (outlines move out by half, holes in);
+    ``backlash``: circumferential backlash built in by thinning the teeth;
+    ``bore_clearance``: added to shaft diameters; ``tool_radius``: the cutter's
+    radius (CNC), which the root fillet must not be tighter than; ``layer_gap``,
+    ``gear_clearance``, ``plate_margin``, ``plate_corner_radius``,
+    ``spacer_hole``: layout and plate figures.
+    """
+
+    name: str
+    title: str
+    process: str
+    material: str
+    kerf: float
+    backlash: float
+    bore_clearance: float
+    tool_radius: float
+    layer_gap: float
+    gear_clearance: float
+    plate_margin: float
+    plate_corner_radius: float
+    spacer_hole: float
+    note: str = ""
+    sources: Mapping[str, str] = field(default_factory=dict, compare=False)
+
+
+_FABRICATION_KEYS = {
+    "kerf": ValueSpec("mm", 0.0, 2.0),
+    "backlash": ValueSpec("mm", 0.0, 2.0),
+    "bore_clearance": ValueSpec("mm", 0.0, 2.0),
+    "tool_radius": ValueSpec("mm", 0.0, 10.0),
+    "layer_gap": ValueSpec("mm", 0.0, 20.0),
+    "gear_clearance": ValueSpec("mm", 0.0, 20.0),
+    "plate_margin": ValueSpec("mm", 1.0, 100.0),
+    "plate_corner_radius": ValueSpec("mm", 0.0, 50.0),
+    "spacer_hole": ValueSpec("mm", 1.0, 30.0),
+}
+
+
+def load_fabrication(name: str = DEFAULT_FABRICATION) -> Fabrication:
+    """Load a fabrication profile by name (see :func:`fabrication_names`) or ``.toml`` path."""
+    values, sources, texts = read_profile("fabrication", name, _FABRICATION_KEYS, texts=("title", "process", "material"))
+    if texts["process"] not in PROCESSES:
+        raise ProfileError(f"fabrication profile {name}: process must be one of {', '.join(PROCESSES)}, got {texts['process']!r}")
+    if values["spacer_hole"] >= values["plate_margin"]:
+        raise ProfileError(f"fabrication profile {name}: spacer_hole ({values['spacer_hole']:g} mm) must be smaller than plate_margin")
+    return Fabrication(name=name, title=texts["title"], process=texts["process"], material=texts["material"],
+                       note=texts.get("note", ""), sources=sources, **values)
+
+
+def fabrication_names() -> list[str]:
+    """Names of the shipped fabrication profiles."""
+    return profile_names("fabrication")

@@ -27,7 +27,7 @@ import numpy as np
 
 from ..errors import InputError
 from .atomic import atomic_write
-from .dxf import CutDrawing, Label
+from ..drawing import CutDrawing, Label
 
 __all__ = ["DEFAULT_COLOURS", "HAIRLINE", "CAP_HEIGHT_PER_EM", "build_svg", "write_svg", "bulge_radius"]
 

@@ -16,7 +16,7 @@ import numpy as np
 from .gear import SpurGear
 from .generate import DEFAULT_TOLERANCE, Curve, TipRelief, tooth_profile
 
-__all__ = ["Loop", "Part", "gear_loop", "circle_loop", "polygon_area"]
+__all__ = ["Loop", "Part", "gear_loop", "circle_loop", "polygon_area", "line_curve", "arc_curve", "rounded_rectangle"]
 
 
 @dataclass(frozen=True)
@@ -117,3 +117,41 @@ def circle_loop(x: float, y: float, diameter: float, tolerance: float = DEFAULT_
         tans = sign * np.column_stack((-np.sin(angles), np.cos(angles)))
         halves.append(Curve("arc", pts, tans, angles, r, (x, y)))
     return Loop(tuple(halves))
+
+
+def line_curve(a: tuple[float, float], b: tuple[float, float]) -> Curve:
+    """A straight segment from ``a`` to ``b`` (mm) as a curve of kind ``"line"``."""
+    pts = np.array([a, b], dtype=float)
+    direction = (pts[1] - pts[0]) / math.hypot(*(pts[1] - pts[0]))
+    return Curve("line", pts, np.array([direction, direction]), np.array([0.0, 1.0]))
+
+
+def arc_curve(centre: tuple[float, float], radius: float, start: float, stop: float, tolerance: float = DEFAULT_TOLERANCE) -> Curve:
+    """Arc of radius ``radius`` (mm) about ``centre`` from polar angle ``start`` to ``stop`` (radians, either way)."""
+    from .sampling import arc_step
+
+    n = max(2, math.ceil(abs(stop - start) / arc_step(radius, tolerance)) + 1)
+    angles = np.linspace(start, stop, n)
+    radial = np.column_stack((np.cos(angles), np.sin(angles)))
+    sign = 1.0 if stop >= start else -1.0
+    tangents = sign * np.column_stack((-radial[:, 1], radial[:, 0]))
+    return Curve("arc", np.asarray(centre) + radius * radial, tangents, angles, radius, (float(centre[0]), float(centre[1])))
+
+
+def rounded_rectangle(width: float, height: float, radius: float, tolerance: float = DEFAULT_TOLERANCE) -> Loop:
+    """A counter-clockwise rectangle from (0, 0) to (width, height) with rounded corners, mm."""
+    r = min(radius, width / 2, height / 2)
+    if r <= 0:
+        corners = [(0.0, 0.0), (width, 0.0), (width, height), (0.0, height)]
+        return Loop(tuple(line_curve(corners[i], corners[(i + 1) % 4]) for i in range(4)))
+    quarter = math.pi / 2
+    centres = [(width - r, r), (width - r, height - r), (r, height - r), (r, r)]
+    curves: list[Curve] = []
+    for k, (cx, cy) in enumerate(centres):
+        start = -quarter + k * quarter
+        arc = arc_curve((cx, cy), r, start, start + quarter, tolerance)
+        if curves:
+            curves.append(line_curve(tuple(curves[-1].points[-1]), tuple(arc.points[0])))
+        curves.append(arc)
+    curves.append(line_curve(tuple(curves[-1].points[-1]), tuple(curves[0].points[0])))
+    return Loop(tuple(curves))

@@ -1,0 +1,114 @@
+"""A gear train as the user describes it: frozen, validated values (mm, degrees at the edge).
+
+A compound train is a chain of stages.  Stage ``k`` meshes its driver (on shaft
+``k``) with its driven gear (on shaft ``k + 1``); an optional idler between them
+reverses the direction without changing the ratio.  Gears of stage ``k`` run in
+layer ``k``; a shaft carrying two gears carries them in two layers.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+from .errors import InputError
+from .validate import as_int, finite
+
+__all__ = ["GearSpec", "StageSpec", "TrainSpec", "Hub", "Keyway", "SolverSpec"]
+
+
+@dataclass(frozen=True)
+class Hub:
+    """A boss on one face of a gear: diameter and length, mm (solid models only)."""
+
+    diameter: float
+    length: float
+
+
+@dataclass(frozen=True)
+class Keyway:
+    """A rectangular keyway in the bore: width and depth beyond the bore's edge, mm."""
+
+    width: float
+    depth: float
+
+
+@dataclass(frozen=True)
+class GearSpec:
+    """One gear of a stage.
+
+    ``bore`` is the shaft diameter (mm, None: the train's default); ``flat`` the
+    distance from the centre to a D-flat (mm), ``keyway`` a keyway; ``shift``
+    the profile shift coefficient.
+    """
+
+    teeth: int
+    shift: float = 0.0
+    bore: float | None = None
+    flat: float | None = None
+    keyway: Keyway | None = None
+    hub: Hub | None = None
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "teeth", as_int(self.teeth, "tooth count"))
+        object.__setattr__(self, "shift", finite(self.shift, "profile shift"))
+        if self.bore is not None and not (math.isfinite(self.bore) and self.bore > 0):
+            raise InputError(f"bore must be greater than 0 mm, got {self.bore!r}")
+
+
+@dataclass(frozen=True)
+class StageSpec:
+    """A driver/driven mesh; ``module`` overrides the train's; ``idler`` adds a gear between."""
+
+    driver: GearSpec
+    driven: GearSpec
+    module: float | None = None
+    idler: GearSpec | None = None
+
+
+@dataclass(frozen=True)
+class SolverSpec:
+    """A ratio to solve for when the train file lists no stages (the solver's options)."""
+
+    ratio: str
+    stages: int | None = None
+    min_teeth: int | None = None
+    max_teeth: int | None = None
+    max_stage_ratio: float | None = None
+    direction: str | None = None
+    hunting: bool = False
+    coaxial: bool = False
+    exclude: tuple[int, ...] = ()
+
+
+@dataclass(frozen=True)
+class TrainSpec:
+    """A whole train: defaults for every gear and the stages.
+
+    Lengths in mm; ``pressure_angle`` in degrees (None: the tooth system's).
+    """
+
+    name: str
+    module: float
+    thickness: float
+    stages: tuple[StageSpec, ...]
+    title: str = ""
+    target: str | None = None
+    tooth_system: str = "iso53-a"
+    pressure_angle: float | None = None
+    fabrication: str = "laser-3mm-acrylic"
+    bore: float = 3.0
+    coaxial: bool = False
+    solver: SolverSpec | None = field(default=None, compare=False)
+
+    def __post_init__(self) -> None:
+        if not self.name or any(c in self.name for c in '/\\:*?"<>|') or self.name.startswith("."):
+            raise InputError(f"train name must be a plain file name (no / \\ : * ? \" < > |), got {self.name!r}")
+        if not (math.isfinite(self.thickness) and self.thickness > 0):
+            raise InputError(f"face width (thickness) must be greater than 0 mm, got {self.thickness!r}")
+        if not (math.isfinite(self.module) and self.module > 0):
+            raise InputError(f"module must be greater than 0 mm, got {self.module!r}")
+        if not (math.isfinite(self.bore) and self.bore > 0):
+            raise InputError(f"bore must be greater than 0 mm, got {self.bore!r}")
+        if not self.stages and self.solver is None:
+            raise InputError("a train needs at least one [[stage]], or a [solve] table to find them")
