@@ -24,6 +24,9 @@ COMMANDS: dict[str, str] = {
     "pair": "gearcad.cli.pair",
     "profiles": "gearcad.cli.profiles",
     "ratio": "gearcad.cli.ratio",
+    "build": "gearcad.cli.build",
+    "design": "gearcad.cli.design",
+    "demo": "gearcad.cli.demo",
 }
 
 

@@ -72,16 +72,20 @@ def _flush_c_stdio() -> None:
 
 @contextmanager
 def kernel_quiet() -> Iterator[None]:
-    """Point file descriptor 1 at standard error for the duration, then restore it.
+    """Point file descriptor 1 at the null device for the duration, then restore it.
 
-    Python's and the C library's buffers are flushed on both sides so no
-    kernel output is left to reach the real stdout afterwards.
+    The kernel writes transfer statistics to stdout, which would corrupt JSON
+    output and mean nothing to a user; gearcad reports its own errors.  Python's
+    and the C library's buffers are flushed on both sides so no kernel output is
+    left to reach the real stdout afterwards.
     """
     sys.stdout.flush()
     _flush_c_stdio()
     saved = os.dup(1)
+    sink = os.open(os.devnull, os.O_WRONLY)
     try:
-        os.dup2(2, 1)
+        os.dup2(sink, 1)
+        os.close(sink)
         try:
             yield
         finally:

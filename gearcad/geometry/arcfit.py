@@ -136,7 +136,8 @@ def smooth_pieces(curve: Curve) -> list[Curve]:
         if k > start:
             pieces.append(_sub_curve(curve, start, k))
         direction = _unit(chord[k])
-        pieces.append(Curve("line", pts[k:k + 2].copy(), np.array([direction, direction]), curve.params[k:k + 2].copy()))
+        tangents = np.array([direction, direction])
+        pieces.append(Curve("line", pts[k:k + 2].copy(), tangents, curve.params[k:k + 2].copy()))
         start = k + 1
     if start < len(pts) - 1:
         pieces.append(_sub_curve(curve, start, len(pts) - 1))
@@ -296,7 +297,8 @@ def _straight_vertices(curve: Curve) -> np.ndarray:
 def _check_tolerance(tolerance: float) -> float:
     if not (isinstance(tolerance, (int, float)) and math.isfinite(tolerance)
             and _MIN_FIT_TOLERANCE <= tolerance <= _MAX_FIT_TOLERANCE):
-        raise InputError(f"arc-fit tolerance must be from {_MIN_FIT_TOLERANCE:g} to {_MAX_FIT_TOLERANCE:g} mm, got {tolerance!r}")
+        raise InputError(f"arc-fit tolerance must be from {_MIN_FIT_TOLERANCE:g} to {_MAX_FIT_TOLERANCE:g} mm, "
+                         f"got {tolerance!r}")
     return float(tolerance)
 
 

@@ -352,12 +352,13 @@ def _tip_corner(gear: SpurGear, relief: TipRelief | None, tolerance: float) -> t
         raise InputError(f"tip rounding radius {rho:g} mm is larger than the tooth allows")
     a0 = math.atan2(touch[1] - centre[1], touch[0] - centre[0])
     a1 = math.atan2(top[1] - centre[1], top[0] - centre[0])
-    if a1 < a0:
-        a1 += 2 * math.pi
-    n = max(2, math.ceil((a1 - a0) / arc_step(rho, tolerance)) + 1)
+    # Up the upper flank the round turns towards the tooth's centre line: clockwise about its centre.
+    if a1 > a0:
+        a1 -= 2 * math.pi
+    n = max(2, math.ceil((a0 - a1) / arc_step(rho, tolerance)) + 1)
     angles = np.linspace(a0, a1, n)
     pts = centre + rho * np.column_stack((np.cos(angles), np.sin(angles)))
-    tans = np.column_stack((-np.sin(angles), np.cos(angles)))
+    tans = np.column_stack((np.sin(angles), -np.cos(angles)))
     return t_touch, [Curve("tip-round", pts, tans, angles, rho, (float(centre[0]), float(centre[1])))]
 
 

@@ -16,7 +16,10 @@ separate at a corner a join arc of radius ``|d|`` centred on the corner closes
 the gap; where they cross, and where a curve tighter than ``|d|`` folds (a
 swallowtail), the crossing loops are cut away: of the raw offset curve only the
 stretches with winding number 0 on their right and 1 on their left remain,
-which is exactly the boundary of the grown (or shrunk) material.
+which is exactly the boundary of the grown (or shrunk) material, and of those
+only the ones that keep the distance ``|d|`` from the input loop (this catches
+parts that turned inside out without crossing anything, as a circle shrunk by
+more than its radius does).
 
 Lengths in mm, angles in radians.
 """
@@ -156,7 +159,8 @@ def _corner_run(corner: np.ndarray, t_in: np.ndarray, t_out: np.ndarray, d: floa
     # the pieces cross: a bridge between their ends, cut away with the crossing loop
     a, b = corner + d * _right_normal(t_in), corner + d * _right_normal(t_out)
     direction = (b - a) / max(math.hypot(*(b - a)), _SAME_POINT)
-    return _Run(_Source("line", 0.0, (0.0, 0.0)), np.array([a, b]), np.array([direction, direction]), np.array([0.0, 1.0]))
+    tangents = np.array([direction, direction])
+    return _Run(_Source("line", 0.0, (0.0, 0.0)), np.array([a, b]), tangents, np.array([0.0, 1.0]))
 
 
 @dataclass(frozen=True)
@@ -325,15 +329,63 @@ def _test_point(poly: _Polyline, parts: list[tuple[int, float, float]]) -> tuple
     return s, a[s] + u * (b[s] - a[s])
 
 
-def _kept_chains(poly: _Polyline, crossings: _Crossings) -> list[list[tuple[int, float, float]]]:
-    """The stretches of the raw curve that bound the material, chained into closed loops."""
+@dataclass(frozen=True)
+class _Original:
+    """The loop being offset, as a closed polyline, with the distance every kept stretch must keep from it."""
+
+    starts: np.ndarray
+    ends: np.ndarray
+    clearance: float  # mm
+
+    def distance(self, points: np.ndarray, chunk: int = 64) -> np.ndarray:
+        """Distance (mm) from each point to the polyline."""
+        d = self.ends - self.starts
+        length2 = np.maximum(_dot(d, d), _SAME_POINT ** 2)
+        out = np.empty(len(points))
+        for k in range(0, len(points), chunk):
+            rel = points[k:k + chunk, None, :] - self.starts[None]
+            u = np.clip(_dot(rel, d[None]) / length2, 0.0, 1.0)
+            gap = rel - u[..., None] * d[None]
+            out[k:k + chunk] = np.sqrt(_dot(gap, gap).min(axis=1))
+        return out
+
+
+def _original(curves: list[Curve], d: float, tolerance: float) -> _Original:
+    """The input polyline and the clearance a true stretch of the offset keeps from it.
+
+    A point of the true offset is ``|d|`` from the true curve; the input's
+    chords may come closer to it by their sagitta (estimated from the turn of
+    the tangents, ``L phi / 8``), and the output's chords by ``tolerance``.
+    """
+    pts = np.concatenate([c.points[:-1] for c in curves])
+    tan = np.concatenate([c.tangents[:-1] for c in curves])
+    ends = np.roll(pts, -1, axis=0)
+    chord = np.hypot(*(ends - pts).T)
+    turn = np.abs(_turn(tan, np.concatenate([c.tangents[1:] for c in curves])))
+    sagitta = float((chord * np.minimum(turn, math.pi) / 8).max(initial=0.0))
+    return _Original(pts, ends, abs(d) - 2 * sagitta - 2 * tolerance)
+
+
+def _kept_chains(poly: _Polyline, crossings: _Crossings, original: _Original) -> list[list[tuple[int, float, float]]]:
+    """The stretches of the raw curve that bound the material, chained into closed loops.
+
+    A stretch is kept if the raw curve winds 0 times round the point just to
+    its right (so 1 just to its left) and it keeps its distance from the
+    input loop (which rejects parts that turned inside out without crossing
+    anything, such as a circle shrunk by more than its radius).
+    """
     k = len(poly.points)
     if len(crossings.seg_i) == 0:
-        whole = [(s, 0.0, 1.0) for s in range(k)]
-        return [whole] if _winding_right(poly, *_test_point(poly, whole)) == 0 else []
-    pieces = _pieces(poly, crossings)
-    parts = [_piece_segments(p, k) for p in pieces]
-    kept = [n for n, pp in enumerate(parts) if _winding_right(poly, *_test_point(poly, pp)) == 0]
+        pieces, parts = [], [[(s, 0.0, 1.0) for s in range(k)]]
+    else:
+        pieces = _pieces(poly, crossings)
+        parts = [_piece_segments(p, k) for p in pieces]
+    tests = [_test_point(poly, pp) for pp in parts]
+    winding_ok = [_winding_right(poly, seg, point) == 0 for seg, point in tests]
+    clear = original.distance(np.array([point for _, point in tests])) >= original.clearance
+    kept = [n for n in range(len(parts)) if winding_ok[n] and clear[n]]
+    if not pieces:
+        return [parts[0]] if kept else []
     leaving: dict[int, list[int]] = {}
     for n in kept:
         leaving.setdefault(pieces[n].start_crossing, []).append(n)
@@ -349,6 +401,8 @@ def _kept_chains(poly: _Polyline, crossings: _Crossings) -> list[list[tuple[int,
             if not options:
                 break
             current = options[0]
+        if pieces[current].end_crossing != pieces[n].start_crossing:
+            raise GeometryError("the offset loop does not close: the loop is not simple or the distance is degenerate")
         chains.append(chain)
     return chains
 
@@ -414,6 +468,14 @@ def _check_tolerance(tolerance: float) -> float:
     return float(tolerance)
 
 
+def _split_at_cusps(curves: tuple[Curve, ...]) -> list[Curve]:
+    """The loop's curves with free-form ones split where their tangent reverses (see ``smooth_pieces``)."""
+    out: list[Curve] = []
+    for c in curves:
+        out.extend(smooth_pieces(c) if c.radius <= 0 and c.kind not in STRAIGHT_KINDS else [c])
+    return out
+
+
 def offset_loop(loop: Loop, distance: float, tolerance: float = DEFAULT_TOLERANCE) -> Loop:
     """The loop moved ``distance`` mm to its right, away from the material.
 
@@ -448,9 +510,10 @@ def offset_loop(loop: Loop, distance: float, tolerance: float = DEFAULT_TOLERANC
     counter_clockwise = polygon_area(loop.points()) > 0
     work = loop if counter_clockwise else loop.reversed()
     grow = distance if counter_clockwise else -distance  # to the right of the counter-clockwise loop
-    curves = [piece for c in work.curves for piece in (smooth_pieces(c) if c.radius <= 0 and c.kind not in STRAIGHT_KINDS else [c])]
+    curves = _split_at_cusps(work.curves)
     poly = _raw_offset(curves, grow, tolerance)
-    result = _loop_from_chains(poly, _kept_chains(poly, _self_crossings(poly)), distance)
+    chains = _kept_chains(poly, _self_crossings(poly), _original(curves, grow, tolerance))
+    result = _loop_from_chains(poly, chains, distance)
     return result if counter_clockwise else result.reversed()
 
 

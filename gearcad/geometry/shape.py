@@ -56,6 +56,10 @@ class Part:
         Plain round holes, mm.
     label : str
         Marking text (never cut).
+    symmetry : int
+        The outer loop is this many copies of its first ``len(curves) / symmetry``
+        curves turned about the origin (a gear: its tooth count); writers and arc
+        fitting may work on one copy.
     """
 
     name: str
@@ -63,6 +67,7 @@ class Part:
     holes: tuple[Loop, ...] = ()
     circles: tuple[tuple[float, float, float], ...] = ()
     label: str = ""
+    symmetry: int = 1
 
     def area(self) -> float:
         """Net area (outer minus holes and circles), mm²."""

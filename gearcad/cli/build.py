@@ -1,0 +1,119 @@
+"""``gearcad build``: every file of a train described in a train file."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from ._format import print_json
+
+__all__ = ["add_parser", "run", "add_output_options", "build_and_write"]
+
+DESCRIPTION = """\
+Build a train from its train file (TOML; see README): the checks of every mesh, the
+shaft layout and plates, and the files: DXF and SVG outlines (kerf applied for laser
+cutting), STEP and STL solids, an assembly, report.md, report.json and preview.png.
+Exit 0: no check failed; 1: a check failed (files are still written); 2: bad input."""
+
+
+def add_output_options(p: argparse.ArgumentParser) -> None:
+    """Options shared by ``build``, ``design`` and ``demo``."""
+    p.add_argument("--out", metavar="DIR", help="output folder (default: output/<train name>/)")
+    p.add_argument("--force", action="store_true", help="write into a non-empty folder gearcad did not make")
+    p.add_argument("--formats", default="dxf,svg,step,stl", metavar="LIST",
+                   help="which files per part, from dxf,svg,step,stl (default: all)")
+    p.add_argument("--dxf-mode", choices=("arcs", "segments", "splines"), default="arcs",
+                   help="DXF contours as tangent arcs (default), straight segments, or SPLINE entities")
+    p.add_argument("--dxf-version", choices=("R2010", "R2000", "R2013", "R2018", "R12"), default="R2010",
+                   help="DXF version (default R2010; R12 for old controllers, carries no units)")
+    p.add_argument("--dxf-tolerance", type=float, default=0.001, metavar="MM",
+                   help="largest distance between the DXF arcs and the true curves, mm (default 0.001)")
+    p.add_argument("--stl-tolerance", type=float, default=0.02, metavar="MM",
+                   help="STL chord tolerance, mm (absolute; default 0.02)")
+    p.add_argument("--stl-angle", type=float, default=5.0, metavar="DEG",
+                   help="STL angular tolerance, degrees (default 5)")
+    p.add_argument("--no-assembly", action="store_true", help="skip the assembly STEP")
+    p.add_argument("--json", action="store_true", help="print report.json's content on stdout instead of the summary")
+
+
+def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParser:
+    """Register ``build``."""
+    p = subparsers.add_parser("build", help="all files of a train from its train file", description=DESCRIPTION,
+                              formatter_class=argparse.RawDescriptionHelpFormatter)
+    p.add_argument("train", metavar="TRAIN.toml", help="train file")
+    add_output_options(p)
+    return p
+
+
+def _options(args: argparse.Namespace, extra_files=()):
+    from ..errors import InputError
+    from ..export.bundle import FORMATS, BuildOptions
+    from ..validate import in_range
+
+    formats = tuple(f.strip().lower() for f in args.formats.split(",") if f.strip())
+    bad = [f for f in formats if f not in FORMATS]
+    if bad or not formats:
+        raise InputError(f"--formats must list some of {', '.join(FORMATS)}, got {args.formats!r}")
+    return BuildOptions(formats=formats, dxf_mode=args.dxf_mode, dxf_version=args.dxf_version,
+                        dxf_tolerance=in_range(args.dxf_tolerance, "--dxf-tolerance", 1e-5, 0.5, "mm"),
+                        stl_tolerance=in_range(args.stl_tolerance, "--stl-tolerance", 1e-3, 1.0, "mm"),
+                        stl_angle=in_range(args.stl_angle, "--stl-angle", 0.5, 45.0, "degrees"),
+                        assembly=not args.no_assembly, extra_files=tuple(extra_files))
+
+
+def _note(message: str) -> None:
+    if sys.stderr.isatty():
+        print(f"  writing {message} ...", file=sys.stderr, flush=True)
+
+
+def build_and_write(spec, args: argparse.Namespace, extra_files=()) -> int:
+    """Plan ``spec``, write its files, print the summary (or JSON); the exit code."""
+    from ..export.bundle import write_plan
+    from ..plan import plan_train
+
+    options = _options(args, extra_files)
+    folder = Path(args.out) if args.out else Path("output") / spec.name
+    plan = plan_train(spec, tolerance=min(options.dxf_tolerance, 1e-3))
+    files = write_plan(plan, folder, options, force=args.force, progress=_note)
+    import json
+
+    report = json.loads((folder / "report.json").read_text(encoding="utf-8"))
+    failed = any(f["severity"] == "failure" for m in report["meshes"] for f in m["findings"]) or \
+        any(f["severity"] == "failure" for f in report["findings"])
+    if args.json:
+        print_json(report)
+    else:
+        print(summary(report, folder, files))
+    for warning in report.get("warnings", []):
+        print(f"gearcad: note: {warning}", file=sys.stderr)
+    return 1 if failed else 0
+
+
+def summary(report: dict, folder: Path, files: dict) -> str:
+    """A short account of what was built and where."""
+    r = report["ratio"]
+    lines = [f"{report['title'] or report['name']}: ratio {r['numerator']}/{r['denominator']} = {r['value']:.10g}"]
+    if r["relative_error"] is not None:
+        lines.append(f"  target {r['target']} = {r['target_value']:.10g}; relative error {r['relative_error']:+.3e}")
+    lines.append(f"  output turns the {r['direction']} way as the input" if r["direction"] == "same"
+                 else "  output turns the opposite way to the input")
+    for m in report["meshes"]:
+        worst = max((f["severity"] for f in m["findings"]), key=("ok", "warning", "failure").index)
+        lines.append(f"  mesh {m['gears'][0]} / {m['gears'][1]}: centre {m['centre_distance']:.4f} mm, "
+                     f"contact ratio {m['contact_ratio']:.3f}, {worst}")
+    for f in report["findings"]:
+        if f["severity"] != "ok":
+            lines.append(f"  {f['severity']}: {f['message']}")
+    lay = report["layout"]
+    count = sum(len(v) for v in files.values())
+    lines.append(f"  plate {lay['width']:.1f} x {lay['height']:.1f} mm; {count} files in {folder}/ (see report.md)")
+    lines.append("Caution: guard pinch points; strength is not rated; never laser-cut PVC or vinyl. See report.md.")
+    return "\n".join(lines)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Run ``build``."""
+    from ..trainfile import read_train
+
+    return build_and_write(read_train(args.train), args)

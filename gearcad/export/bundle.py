@@ -1,0 +1,162 @@
+"""Write every file of a plan into an output folder, each under a temporary name first.
+
+The folder is gearcad's when it holds the marker file ``.gearcad-output`` (which
+lists the files of the last build, so a rebuild removes what it no longer makes);
+a non-empty folder without it is refused unless ``force``.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Callable
+
+from ..errors import ExportError
+from .atomic import atomic_write
+
+__all__ = ["BuildOptions", "write_plan", "prepare_folder", "MARKER", "FORMATS"]
+
+MARKER = ".gearcad-output"
+FORMATS = ("dxf", "svg", "step", "stl")
+
+
+@dataclass(frozen=True)
+class BuildOptions:
+    """What to write and how (mm, degrees)."""
+
+    formats: tuple[str, ...] = FORMATS
+    dxf_mode: str = "arcs"
+    dxf_version: str = "R2010"
+    dxf_tolerance: float = 1e-3
+    stl_tolerance: float = 0.02
+    stl_angle: float = 5.0
+    assembly: bool = True
+    preview: bool = True
+    extra_files: tuple[tuple[str, str], ...] = field(default=())  # (name, text) written as they are
+
+
+def prepare_folder(folder: Path, force: bool) -> list[str]:
+    """Make ``folder`` ready; return the files the last build listed (to remove if not rewritten)."""
+    if folder.exists() and not folder.is_dir():
+        raise ExportError(f"output folder {str(folder)!r} is a file; choose a folder with --out")
+    marker = folder / MARKER
+    if folder.is_dir() and any(folder.iterdir()) and not marker.exists() and not force:
+        raise ExportError(f"output folder {str(folder)!r} is not empty and was not made by gearcad; "
+                          "choose another with --out or pass --force")
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise ExportError(f"cannot create output folder {str(folder)!r}: {exc.strerror or exc}") from None
+    if marker.exists():
+        try:
+            return [line for line in marker.read_text(encoding="utf-8").splitlines() if line and "/" not in line]
+        except OSError:
+            return []
+    return []
+
+
+def _label_height(plan, gear) -> tuple[tuple[float, float], float]:
+    root = gear.gear.root_diameter / 2
+    hole = gear.bore / 2
+    rim = max(root - hole, 0.5)
+    height = min(2.5, 0.3 * rim, 2.6 * root / max(len(gear.part.label), 1))
+    return (0.0, -(hole + root) / 2), max(height, 0.3)
+
+
+def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(), force: bool = False,
+               progress: Callable[[str], None] | None = None) -> dict[str, dict[str, str]]:
+    """Write the plan's files; returns ``{part: {kind: relative path}}`` (also the report's ``files``)."""
+    from ..drawings import part_drawing, plate_scene
+    from ..report import report_data, report_markdown
+    from .dxf import write_dxf
+    from .svg import write_svg
+
+    folder = Path(folder)
+    old = prepare_folder(folder, force)
+    note = progress or (lambda _msg: None)
+    files: dict[str, dict[str, str]] = {}
+    written: list[str] = []
+
+    def put(part: str, kind: str, name: str) -> Path:
+        files.setdefault(part, {})[kind] = name
+        written.append(name)
+        return folder / name
+
+    warnings: list[str] = []
+    for g in plan.gears:
+        at, height = _label_height(plan, g)
+        drawing = part_drawing(g.cut_part, options.dxf_mode, options.dxf_tolerance, at, height)
+        if "dxf" in options.formats:
+            note(f"DXF {g.name}")
+            warnings += write_dxf(drawing, put(g.name, "dxf", f"{g.name}.dxf"), version=options.dxf_version)
+        if "svg" in options.formats:
+            if options.dxf_mode == "splines":  # SVG takes arcs, not spline fit points
+                drawing = part_drawing(g.cut_part, "arcs", options.dxf_tolerance, at, height)
+            write_svg(drawing, put(g.name, "svg", f"{g.name}.svg"))
+    margin = plan.fabrication.plate_margin
+    for p in plan.plates:
+        drawing = part_drawing(p.cut_part, options.dxf_mode, options.dxf_tolerance, (plan.layout.width / 2, margin / 2),
+                               min(3.0, margin / 3))
+        if "dxf" in options.formats:
+            note(f"DXF {p.name}")
+            warnings += write_dxf(drawing, put(p.name, "dxf", f"{p.name}.dxf"), version=options.dxf_version)
+        if "svg" in options.formats:
+            write_svg(drawing, put(p.name, "svg", f"{p.name}.svg"))
+    if "step" in options.formats or "stl" in options.formats:
+        _write_solids(plan, folder, options, put, note)
+    if options.preview:
+        from .preview import write_preview
+
+        note("preview")
+        write_preview(plate_scene(plan), put("preview", "png", "preview.png"))
+    for name, text in options.extra_files:
+        atomic_write(put(name, "toml", name), lambda tmp, text=text: tmp.write_text(text, encoding="utf-8"))
+    data = report_data(plan, files)
+    data["warnings"] = sorted(set(warnings))
+    atomic_write(put("report", "json", "report.json"),
+                 lambda tmp: tmp.write_text(json.dumps(_finite(data), indent=2, ensure_ascii=False) + "\n", encoding="utf-8"))
+    atomic_write(put("report", "md", "report.md"), lambda tmp: tmp.write_text(report_markdown(data), encoding="utf-8"))
+    for stale in set(old) - set(written):
+        (folder / stale).unlink(missing_ok=True)
+    atomic_write(folder / MARKER, lambda tmp: tmp.write_text("\n".join(sorted(written)) + "\n", encoding="utf-8"))
+    return files
+
+
+def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
+    from .step import AssemblyItem, build_solid, kernel_quiet, write_step, write_stl
+
+    thickness = plan.spec.thickness
+    items = []
+    with kernel_quiet():
+        for g in plan.gears:
+            note(f"solid {g.name}")
+            solid = build_solid(g.part, thickness, plan.tolerance).solid
+            if "step" in options.formats:
+                write_step(solid, put(g.name, "step", f"{g.name}.step"), names=[g.name])
+            if "stl" in options.formats:
+                write_stl(solid, put(g.name, "stl", f"{g.name}.stl"), options.stl_tolerance, options.stl_angle)
+            shaft = plan.shafts[g.shaft]
+            items.append(AssemblyItem(g.name, solid, shaft.x, shaft.y, g.z, math.degrees(g.rotation)))
+        for p in plan.plates:
+            note(f"solid {p.name}")
+            solid = build_solid(p.part, thickness, plan.tolerance).solid
+            if "step" in options.formats:
+                write_step(solid, put(p.name, "step", f"{p.name}.step"), names=[p.name])
+            items.append(AssemblyItem(p.name, solid, 0.0, 0.0, p.z, 0.0))
+        if options.assembly and "step" in options.formats:
+            from .step import assembly_step
+
+            note("assembly")
+            assembly_step(items, put("assembly", "step", "assembly.step"), name=plan.spec.name)
+
+
+def _finite(value):
+    if isinstance(value, float):
+        return value if math.isfinite(value) else None
+    if isinstance(value, dict):
+        return {k: _finite(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_finite(v) for v in value]
+    return value

@@ -1,0 +1,308 @@
+"""From a train description to everything that will be made: the plan.
+
+``plan_train(spec)`` resolves profiles, builds every meshing pair and its
+checks, the cut outlines (with the fabrication profile's kerf), the shaft
+layout, the plates and the assembly phasing.  Pure: no file is read but the
+profiles, none is written; the writers in ``gearcad.export`` consume the plan.
+Lengths in mm, angles in radians.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+from fractions import Fraction
+
+import numpy as np
+
+from .checks import Finding, PairAnalysis, analyse_pair
+from .errors import InputError
+from .geometry.bore import bore_loop
+from .geometry.gear import SpurGear
+from .geometry.generate import DEFAULT_TOLERANCE
+from .geometry.offset import min_concave_radius, offset_loop
+from .geometry.shape import Loop, Part, gear_loop, rounded_rectangle
+from .layout import Layout, LayoutGear, LayoutProblem, Link, mesh_phase, shaft_sides, solve_layout
+from .pair import GearPair, make_pair
+from .profiles import Fabrication, ToothSystem, load_fabrication, load_tooth_system
+from .trainspec import GearSpec, TrainSpec
+
+__all__ = ["Plan", "PlannedGear", "PlannedMesh", "PlannedShaft", "PlannedPlate", "plan_train", "MIN_RIM"]
+
+MIN_RIM = 1.0  # modules of material between the bore (or keyway) and the root circle; common practice
+
+
+@dataclass(frozen=True)
+class PlannedGear:
+    """One gear as it will be made and placed."""
+
+    name: str
+    role: str
+    stage: int
+    gear: SpurGear
+    spec: GearSpec
+    shaft: int
+    layer: int
+    bore: float  # shaft diameter, mm
+    part: Part  # drawn size, centred on the origin
+    cut_part: Part  # what the machine follows (kerf applied), centred on the origin
+    rotation: float  # turn in the assembly, radians
+    z: float  # lower face in the assembly, mm
+
+
+@dataclass(frozen=True)
+class PlannedMesh:
+    """A meshing pair of the plan, with its analysis and extra findings."""
+
+    names: tuple[str, str]
+    pair: GearPair
+    analysis: PairAnalysis
+    findings: tuple[Finding, ...]
+
+
+@dataclass(frozen=True)
+class PlannedShaft:
+    """A shaft: position on the plate (mm), diameter (mm), which plates hold it."""
+
+    name: str
+    x: float
+    y: float
+    diameter: float
+    back: bool
+    front: bool
+
+
+@dataclass(frozen=True)
+class PlannedPlate:
+    """A plate: drawn part, cut part, lower face z (mm)."""
+
+    name: str
+    part: Part
+    cut_part: Part
+    z: float
+
+
+@dataclass(frozen=True)
+class Plan:
+    """Everything to be made, with its figures."""
+
+    spec: TrainSpec
+    system: ToothSystem
+    fabrication: Fabrication
+    gears: tuple[PlannedGear, ...]
+    meshes: tuple[PlannedMesh, ...]
+    shafts: tuple[PlannedShaft, ...]
+    plates: tuple[PlannedPlate, ...]
+    layout: Layout
+    ratio: Fraction
+    direction: str
+    tolerance: float
+    findings: tuple[Finding, ...]
+
+    def gear(self, name: str) -> PlannedGear:
+        """The planned gear called ``name``."""
+        return next(g for g in self.gears if g.name == name)
+
+
+def _system(spec: TrainSpec) -> ToothSystem:
+    system = load_tooth_system(spec.tooth_system)
+    if spec.pressure_angle is None:
+        return system
+    if not 10 <= spec.pressure_angle <= 35:
+        raise InputError(f"pressure_angle must be from 10 to 35 degrees, got {spec.pressure_angle!r}")
+    return dataclasses.replace(system, pressure_angle=math.radians(spec.pressure_angle))
+
+
+@dataclass
+class _Chain:
+    """Shafts and meshes as the stages are walked (working state of :func:`plan_train`)."""
+
+    gears: list[tuple[str, str, int, GearSpec, int, int]]  # name, role, stage, spec, shaft, layer
+    links: list[tuple[int, int, str, str]]  # parent shaft, child shaft, driver name, driven name
+    shafts: int = 1
+
+
+def _walk(spec: TrainSpec) -> _Chain:
+    chain = _Chain([], [])
+    shaft = 0
+    for k, stage in enumerate(spec.stages, start=1):
+        layer = k - 1
+        driver = f"s{k}-driver"
+        chain.gears.append((driver, "driver", k, stage.driver, shaft, layer))
+        last = driver
+        if stage.idler is not None:
+            idler = f"s{k}-idler"
+            chain.gears.append((idler, "idler", k, stage.idler, chain.shafts, layer))
+            chain.links.append((shaft, chain.shafts, driver, idler))
+            shaft, last = chain.shafts, idler
+            chain.shafts += 1
+        driven = f"s{k}-driven"
+        chain.gears.append((driven, "driven", k, stage.driven, chain.shafts, layer))
+        chain.links.append((shaft, chain.shafts, last, driven))
+        shaft = chain.shafts
+        chain.shafts += 1
+    return chain
+
+
+def _stage_module(spec: TrainSpec, stage: int) -> float:
+    m = spec.stages[stage - 1].module
+    return spec.module if m is None else m
+
+
+def _pairs(spec: TrainSpec, chain: _Chain, system: ToothSystem, fab: Fabrication) -> dict[tuple[str, str], GearPair]:
+    specs = {name: (gspec, stage) for name, _, stage, gspec, _, _ in chain.gears}
+    pairs = {}
+    for _, _, a, b in chain.links:
+        (ga, stage), (gb, _) = specs[a], specs[b]
+        pairs[(a, b)] = make_pair(ga.teeth, gb.teeth, _stage_module(spec, stage), system,
+                                  shifts=(ga.shift, gb.shift), backlash=fab.backlash)
+    return pairs
+
+
+def _gear_of(name: str, pairs: dict[tuple[str, str], GearPair]) -> SpurGear:
+    for (a, b), pair in pairs.items():
+        if a == name:
+            return pair.gear1
+        if b == name:
+            return pair.gear2
+    raise KeyError(name)
+
+
+def _check_bore(name: str, gear: SpurGear, gspec: GearSpec, bore: float) -> None:
+    extra = gspec.keyway.depth if gspec.keyway else 0.0
+    room = gear.root_diameter / 2 - MIN_RIM * gear.module
+    if bore / 2 + extra > room:
+        raise InputError(f"{name}: bore {bore:g} mm is too large for {gear.teeth} teeth of module {gear.module:g}: "
+                         f"it must leave {MIN_RIM:g} module of rim below the root circle (bore up to {2 * (room - extra):.2f} mm)")
+
+
+def _label(name: str, gear: SpurGear) -> str:
+    return f"{name}  z{gear.teeth}  m{gear.module:g}  x{gear.shift:+.3f}"
+
+
+def _gear_parts(name: str, gear: SpurGear, gspec: GearSpec, bore: float, fab: Fabrication, tolerance: float) -> tuple[Part, Part]:
+    hole = bore + fab.bore_clearance
+    outer = gear_loop(gear, tolerance)
+    shaped = bore_loop(hole, flat=gspec.flat, keyway=(gspec.keyway.width, gspec.keyway.depth) if gspec.keyway else None,
+                       tolerance=tolerance)
+    holes = (shaped,) if shaped is not None else ()
+    circles = () if shaped is not None else ((0.0, 0.0, hole),)
+    part = Part(name, outer, holes, circles, _label(name, gear), symmetry=gear.teeth)
+    half = fab.kerf / 2
+    if half == 0:
+        return part, part
+    cut = Part(name, offset_loop(outer, half, tolerance), tuple(offset_loop(h, half, tolerance) for h in holes),
+               tuple((x, y, d - fab.kerf) for x, y, d in circles), part.label, symmetry=gear.teeth)
+    return part, cut
+
+
+def _tool_finding(name: str, loop: Loop, fab: Fabrication) -> Finding | None:
+    if fab.process != "cnc" or fab.tool_radius <= 0:
+        return None
+    tightest = min_concave_radius(loop)
+    if tightest + 1e-9 < fab.tool_radius:
+        return Finding(f"tool radius {name}", "warning", tightest, fab.tool_radius,
+                       f"{name}: the root fillet bends at {tightest:.3f} mm radius, tighter than the "
+                       f"{fab.tool_radius:g} mm tool: the mill leaves the root rounder and the tips of the mate may touch it; "
+                       "use a smaller tool or a larger module")
+    return Finding(f"tool radius {name}", "ok", tightest, fab.tool_radius,
+                   f"{name}: the tightest root fillet ({tightest:.3f} mm radius) takes the {fab.tool_radius:g} mm tool")
+
+
+def _layout(spec: TrainSpec, chain: _Chain, pairs, bores: dict[int, float], fab: Fabrication) -> tuple[LayoutProblem, Layout]:
+    names = [g[0] for g in chain.gears]
+    gears = tuple(LayoutGear(name, shaft, layer, _gear_of(name, pairs).tip_diameter / 2)
+                  for name, _, _, _, shaft, layer in chain.gears)
+    links = tuple(Link(p, c, pairs[(a, b)].centre_distance) for p, c, a, b in chain.links)
+    meshes = frozenset(frozenset((names.index(a), names.index(b))) for _, _, a, b in chain.links)
+    coaxial = (0, chain.shafts - 1) if spec.coaxial else None
+    if spec.coaxial and any(s.idler for s in spec.stages):
+        raise InputError("a coaxial train cannot carry idlers")
+    problem = LayoutProblem(tuple(bores[s] / 2 for s in range(chain.shafts)), gears, links, meshes,
+                            fab.gear_clearance, fab.plate_margin, coaxial)
+    return problem, solve_layout(problem)
+
+
+def _phases(chain: _Chain, layout: Layout) -> dict[str, float]:
+    rotation: dict[str, float] = {}
+    teeth = {g[0]: g[3].teeth for g in chain.gears}
+    for parent, child, a, b in chain.links:
+        rotation.setdefault(a, 0.0)
+        dx, dy = layout.positions[child] - layout.positions[parent]
+        rotation[b] = mesh_phase(rotation[a], teeth[a], teeth[b], math.atan2(dy, dx))
+    return rotation
+
+
+def _plates(spec: TrainSpec, fab: Fabrication, layout: Layout, shafts: list[PlannedShaft], tolerance: float,
+            layers: int) -> tuple[PlannedPlate, ...]:
+    w, h = layout.width, layout.height
+    inset = fab.plate_margin / 2
+    spacers = tuple((x, y, fab.spacer_hole) for x in (inset, w - inset) for y in (inset, h - inset))
+    outer = rounded_rectangle(w, h, fab.plate_corner_radius, tolerance)
+    pitch = spec.thickness + fab.layer_gap
+    plates = []
+    for name, side, z in (("back-plate", "back", -spec.thickness), ("front-plate", "front", layers * pitch + fab.layer_gap)):
+        holes = tuple((s.x, s.y, s.diameter + fab.bore_clearance) for s in shafts if getattr(s, side))
+        unique = tuple(dict.fromkeys(holes))  # coaxial shafts share one hole
+        part = Part(name, outer, (), unique + spacers, f"{spec.name} {name}")
+        cut = part
+        if fab.kerf:
+            cut = Part(name, offset_loop(outer, fab.kerf / 2, tolerance), (),
+                       tuple((x, y, d - fab.kerf) for x, y, d in unique + spacers), part.label)
+        plates.append(PlannedPlate(name, part, cut, z))
+    return tuple(plates)
+
+
+def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE) -> Plan:
+    """Every figure, outline, position and check of the train ``spec``."""
+    if not spec.stages:
+        raise InputError("the train has no stages: solve its ratio first (gearcad design)")
+    system = _system(spec)
+    fab = load_fabrication(spec.fabrication)
+    chain = _walk(spec)
+    pairs = _pairs(spec, chain, system, fab)
+    bores = {}
+    for name, _, _, gspec, shaft, _ in chain.gears:
+        bore = gspec.bore if gspec.bore is not None else spec.bore
+        _check_bore(name, _gear_of(name, pairs), gspec, bore)
+        bores[shaft] = max(bores.get(shaft, 0.0), bore)
+    problem, layout = _layout(spec, chain, pairs, bores, fab)
+    sides = shaft_sides(problem, layout.positions)
+    shafts = [PlannedShaft(_shaft_name(i, chain.shafts), float(x), float(y), bores[i], back, front)
+              for i, ((x, y), (back, front)) in enumerate(zip(layout.positions, sides))]
+    rotation = _phases(chain, layout)
+    pitch = spec.thickness + fab.layer_gap
+    gears, extra = [], []
+    for name, role, stage, gspec, shaft, layer in chain.gears:
+        gear = _gear_of(name, pairs)
+        bore = gspec.bore if gspec.bore is not None else spec.bore
+        part, cut = _gear_parts(name, gear, gspec, bore, fab, tolerance)
+        finding = _tool_finding(name, part.outer, fab)
+        if finding:
+            extra.append(finding)
+        gears.append(PlannedGear(name, role, stage, gear, gspec, shaft, layer, bore, part, cut,
+                                 rotation[name], fab.layer_gap + layer * pitch))
+    meshes = tuple(PlannedMesh((a, b), pair, analyse_pair(pair), ()) for (a, b), pair in pairs.items())
+    ratio = Fraction(1)
+    for stage in spec.stages:
+        ratio *= Fraction(stage.driver.teeth, stage.driven.teeth)
+    direction = "opposite" if len(chain.links) % 2 else "same"
+    plates = _plates(spec, fab, layout, shafts, tolerance, len(spec.stages))
+    return Plan(spec, system, fab, tuple(gears), meshes, tuple(shafts), plates, layout, ratio, direction, tolerance,
+                tuple(extra))
+
+
+def _shaft_name(index: int, count: int) -> str:
+    if index == 0:
+        return "input"
+    return "output" if index == count - 1 else f"shaft-{index}"
+
+
+def placed_outline(gear: PlannedGear, plan: Plan, cut: bool = False) -> np.ndarray:
+    """The gear's outline turned and moved to its shaft on the plate, (N, 2) mm."""
+    part = gear.cut_part if cut else gear.part
+    pts = part.outer.points()
+    c, s = math.cos(gear.rotation), math.sin(gear.rotation)
+    shaft = plan.shafts[gear.shaft]
+    return pts @ np.array([[c, -s], [s, c]]).T + (shaft.x, shaft.y)

@@ -1,0 +1,135 @@
+"""Candidate pairs (P, Q): driver and driven products whose quotient lies near the target.
+
+Two exact generators, both returning *every* pair ``(P, Q)`` of products of
+``k`` allowed tooth counts with ``|P / (T Q) - 1| <= eps`` (plus a small float
+margin), where ``T`` is the target:
+
+* :class:`SortedCandidates` keeps the sorted set of products and finds, for
+  every driven product ``Q``, the range of driver products within the window
+  by binary search (numpy ``searchsorted``, vectorised over all ``Q``).
+* :class:`ScanCandidates` never builds the (large) set of ``k``-products.  It
+  streams every driven product ``Q`` and, as long as ``eps * P < 1/2``, keeps
+  only the one integer ``P = round(T Q)`` that can lie in the window; those
+  ``P`` are then screened for having no prime factor above the largest tooth
+  count (a vectorised test) and later split into tooth counts exactly.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Callable, Sequence
+
+import numpy as np
+
+from .products import block_count, product_blocks, product_set, product_sum, smooth_mask
+
+__all__ = ["SortedCandidates", "ScanCandidates", "FLOAT_MARGIN", "Progress"]
+
+#: Relative float margin added to every window (float products are good to ~1e-16).
+FLOAT_MARGIN = 1e-14
+Progress = Callable[[float], None]
+
+
+def _unique_pairs(p: np.ndarray, q: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The distinct (p, q) pairs, sorted by p then q."""
+    if len(p) == 0:
+        return p, q
+    order = np.lexsort((q, p))
+    p, q = p[order], q[order]
+    first = np.ones(len(p), dtype=bool)
+    first[1:] = (p[1:] != p[:-1]) | (q[1:] != q[:-1])
+    return p[first], q[first]
+
+
+@dataclass
+class SortedCandidates:
+    """Window search over the sorted set of ``k``-products."""
+
+    teeth: Sequence[int]
+    k: int
+    target: float
+    ratio_range: tuple[float, float]
+
+    def __post_init__(self) -> None:
+        self.products = product_set(self.teeth, self.k)
+        self.floats = self.products.astype(float)
+
+    def nearest_errors(self) -> np.ndarray:
+        """For each driven product, the |relative error| of the nearest driver product."""
+        wanted = self.floats * self.target
+        index = np.clip(np.searchsorted(self.floats, wanted), 1, len(self.floats) - 1)
+        if len(self.floats) == 1:
+            return np.abs(self.floats / wanted - 1)
+        below = np.abs(self.floats[index - 1] / wanted - 1)
+        above = np.abs(self.floats[index] / wanted - 1)
+        return np.minimum(below, above)
+
+    def within(self, eps: float, progress: Progress | None = None) -> tuple[np.ndarray, np.ndarray]:
+        """Every (P, Q) with |P/(T Q) - 1| <= eps (and a margin), inside the ratio range."""
+        q = self.floats
+        lo_ratio, hi_ratio = self.ratio_range
+        lower = np.maximum(q * self.target * (1 - eps - FLOAT_MARGIN), q * lo_ratio * (1 - FLOAT_MARGIN))
+        upper = np.minimum(q * self.target * (1 + eps + FLOAT_MARGIN), q * hi_ratio * (1 + FLOAT_MARGIN))
+        first = np.searchsorted(self.floats, lower, "left")
+        last = np.searchsorted(self.floats, upper, "right")
+        counts = np.maximum(last - first, 0)
+        q_index = np.repeat(np.arange(len(q)), counts)
+        starts = np.cumsum(counts) - counts
+        p_index = first[q_index] + (np.arange(counts.sum()) - starts[q_index])
+        return self.products[p_index], self.products[q_index]
+
+    def max_eps(self) -> float:
+        """An eps that takes in every pair of the ratio range."""
+        lo_ratio, hi_ratio = self.ratio_range
+        return max(hi_ratio / self.target - 1, 1 - lo_ratio / self.target) + 1e-9
+
+
+@dataclass
+class ScanCandidates:
+    """Streaming search that needs no set of ``k``-products (see module notes)."""
+
+    teeth: Sequence[int]
+    k: int
+    target: float
+    ratio_range: tuple[float, float]
+
+    def __post_init__(self) -> None:
+        self.largest = max(self.teeth)
+        self.p_min, self.p_max = min(self.teeth) ** self.k, self.largest ** self.k
+        self.total = product_sum(self.teeth, self.k)
+
+    def eps_for_budget(self, count: float) -> float:
+        """An eps that yields about ``count`` raw candidates."""
+        return count / (2 * self.target * self.total)
+
+    def usable(self, eps: float) -> bool:
+        """Whether the one-integer rule holds for ``eps`` (``eps P < 0.45``)."""
+        return eps * self.p_max < 0.45
+
+    def within(self, eps: float, progress: Progress | None = None) -> tuple[np.ndarray, np.ndarray]:
+        """Every (P, Q) with |P/(T Q) - 1| <= eps, P screened as smooth; see :meth:`usable`."""
+        found_p, found_q = [], []
+        blocks = block_count(self.teeth, self.k)
+        for done, (rows, cols) in enumerate(product_blocks(self.teeth, self.k)):
+            p, q = self._block_hits(rows, cols, eps)
+            found_p.append(p)
+            found_q.append(q)
+            if progress is not None:
+                progress((done + 1) / blocks)
+        p, q = _unique_pairs(np.concatenate(found_p), np.concatenate(found_q))
+        smooth = smooth_mask(p, self.largest)
+        return p[smooth], q[smooth]
+
+    def _block_hits(self, rows: np.ndarray, cols: np.ndarray, eps: float) -> tuple[np.ndarray, np.ndarray]:
+        """Pairs of one block: ``T Q`` within ``eps T Q`` of an integer ``P`` (one-integer rule)."""
+        rows_t, cols_f = rows * self.target, cols.astype(float)
+        x = np.multiply.outer(rows_t, cols_f)
+        nearest = np.rint(x)
+        np.subtract(x, nearest, out=x)
+        np.abs(x, out=x)
+        i, j = np.nonzero(x <= nearest * (eps + FLOAT_MARGIN) + 1e-9)
+        p, q = nearest[i, j].astype(np.int64), rows[i] * cols[j]
+        lo_ratio, hi_ratio = self.ratio_range
+        keep = ((p >= self.p_min) & (p <= self.p_max)
+                & (p >= q * lo_ratio * (1 - FLOAT_MARGIN)) & (p <= q * hi_ratio * (1 + FLOAT_MARGIN)))
+        return p[keep], q[keep]

@@ -1,0 +1,279 @@
+"""Exact search for the best compound trains of ``k`` stages.
+
+The ratio of a train is ``P / Q``: ``P`` the product of its driver tooth
+counts, ``Q`` that of its driven ones.  The search
+
+1. takes every pair of products within a relative window ``eps`` of the
+   target (:mod:`gearcad.ratio.candidates`; nothing outside the window is
+   better than anything inside it),
+2. groups the pairs by their reduced ratio ``p / q`` and ranks the groups by
+   their exact error (rational arithmetic against the target),
+3. for each group in that order, splits ``P`` and ``Q`` into tooth counts
+   (fewest teeth first, pruned by the AM-GM bound ``sum >= k P^(1/k)``) and
+   pairs drivers with driven gears under the per-stage limits, hunting,
+   exclusions and the inventory,
+4. widens ``eps`` and repeats until ``count`` trains are found whose errors
+   are all within a window that has been searched completely.
+
+So the first result is the global optimum (least |relative error|, ties to
+fewer total teeth, then smaller ratio, then the lexicographically first
+stages); the tests check this against an exhaustive enumeration.
+Results are one train per distinct ratio: the one with the fewest teeth.
+"""
+
+from __future__ import annotations
+
+import math
+from collections import Counter
+from dataclasses import dataclass, field
+from fractions import Fraction
+from typing import Callable, Sequence
+
+import numpy as np
+
+from ..errors import InputError
+from ..validate import as_int
+from .candidates import FLOAT_MARGIN, ScanCandidates, SortedCandidates
+from .limits import MAX_STAGES, Limits, assign_stages
+from .products import Factorizer, multiset_count
+from .target import Target
+from .train import Train, exact_relative_error, make_train, output_direction
+
+__all__ = ["solve_compound", "stage_ratio_range", "check_stages", "needs_idler", "rank_key"]
+
+#: Up to this many multisets of k tooth counts the sorted product set is built.
+SORTED_LIMIT = 3_000_000
+_SCAN_BUDGET = 200_000
+Progress = Callable[[float], None]
+
+
+def check_stages(stages: object) -> int:
+    """A stage count from 1 to MAX_STAGES, else :class:`InputError`."""
+    k = as_int(stages, "stages")
+    if not 1 <= k <= MAX_STAGES:
+        raise InputError(f"stages must be from 1 to {MAX_STAGES}, got {stages!r}")
+    return k
+
+
+def needs_idler(k: int, limits: Limits) -> bool:
+    """Whether a train of ``k`` stages needs an idler for the requested direction."""
+    return limits.direction is not None and output_direction(k) != limits.direction
+
+
+def rank_key(train: Train, target: Target) -> tuple:
+    """Sort key of results: |error| (exact), total teeth, ratio, stages."""
+    error = abs(exact_relative_error(train.numerator, train.denominator, target))
+    return (error, train.total_teeth, Fraction(train.numerator, train.denominator), train.stages)
+
+
+def _allowed_stage_grid(limits: Limits) -> tuple[np.ndarray, np.ndarray]:
+    teeth = np.asarray(limits.teeth, dtype=np.int64)
+    d, n = (a.ravel() for a in np.meshgrid(teeth, teeth, indexing="ij"))
+    r = limits.max_stage_ratio
+    ok = (d * r.denominator <= r.numerator * n) & (n * r.denominator <= r.numerator * d)
+    if limits.hunting:
+        ok &= np.gcd(d, n) == 1
+    shelf = limits.shelf()
+    if shelf is not None:
+        ok &= (d != n) | np.array([shelf[int(z)] >= 2 for z in d], dtype=bool)
+    return d[ok], n[ok]
+
+
+def stage_ratio_range(limits: Limits, k: int) -> tuple[Fraction, Fraction] | None:
+    """Least and greatest ratio any ``k``-stage train may have (a bound), or None if no stage exists."""
+    d, n = _allowed_stage_grid(limits)
+    if len(d) == 0:
+        return None
+    ratios = d / n
+    low, high = int(np.argmin(ratios)), int(np.argmax(ratios))
+    return Fraction(int(d[low]), int(n[low])) ** k, Fraction(int(d[high]), int(n[high])) ** k
+
+
+@dataclass
+class _Search:
+    target: Target
+    k: int
+    limits: Limits
+    count: int
+    progress: Progress | None = None
+    found: list[Train] = field(default_factory=list)
+    done_ratios: set = field(default_factory=set)
+
+    def __post_init__(self) -> None:
+        self.factorizer = Factorizer(self.limits.teeth)
+        self.shelf = self.limits.shelf()
+        self.idler = needs_idler(self.k, self.limits)
+        self.idler_floor = min(self.limits.teeth) if self.idler else 0
+        self.smallest = min(self.limits.teeth)
+
+    # -- one ratio ---------------------------------------------------------
+    def _idler_for(self, used: Counter) -> int | None:
+        if self.shelf is None:
+            return self.smallest
+        return next((z for z in sorted(self.shelf) if self.shelf[z] > used[z]), None)
+
+    def _fits_shelf(self, used: Counter) -> bool:
+        return self.shelf is None or all(self.shelf[z] >= n for z, n in used.items())
+
+    def _best_for_pair(self, p: int, q: int, bound: float) -> tuple[int, tuple, int | None] | None:
+        drivers = self.factorizer.by_sum(p, self.k)
+        driven = self.factorizer.by_sum(q, self.k) if drivers else []
+        best = None
+        for sum_p, d in drivers:
+            if not driven or sum_p + driven[0][0] + self.idler_floor > bound:
+                break
+            for sum_q, n in driven:
+                if sum_p + sum_q + self.idler_floor > bound:
+                    break
+                used = Counter(d) + Counter(n)
+                if not self._fits_shelf(used):
+                    continue
+                stages = assign_stages(d, n, self.limits)
+                idler = self._idler_for(used) if self.idler else None
+                if stages is None or (self.idler and idler is None):
+                    continue
+                total = sum_p + sum_q + (idler or 0)
+                if best is None or (total, stages) < (best[0], best[1]):
+                    best, bound = (total, stages, idler), total
+        return best
+
+    def _best_for_ratio(self, ps: np.ndarray, qs: np.ndarray) -> Train | None:
+        k, a = self.k, self.smallest
+        bounds = k * (ps.astype(float) ** (1 / k) + qs.astype(float) ** (1 / k)) * (1 - 1e-12)
+        bounds = np.maximum(np.floor(bounds), 2 * k * a)
+        best = None
+        for i in np.argsort(bounds, kind="stable").tolist():
+            limit = math.inf if best is None else best[0]
+            if bounds[i] + self.idler_floor > limit:
+                break
+            found = self._best_for_pair(int(ps[i]), int(qs[i]), limit)
+            if found is not None and (best is None or (found[0], found[1]) < (best[0], best[1])):
+                best = found
+        return None if best is None else make_train(best[1], self.target, best[2])
+
+    # -- one window --------------------------------------------------------
+    def _groups(self, p: np.ndarray, q: np.ndarray, eps: float) -> list[tuple[Fraction, int, int, np.ndarray]]:
+        """Unprocessed ratio groups of the window with float error <= eps, in exact order."""
+        g = np.gcd(p, q)
+        keys, inverse = np.unique(np.stack([p // g, q // g], axis=1), axis=0, return_inverse=True)
+        inverse = inverse.ravel()
+        t = self.target.value
+        float_err = np.abs((keys[:, 0] - t * keys[:, 1]) / (t * keys[:, 1]))
+        members = np.argsort(inverse, kind="stable")
+        starts = np.searchsorted(inverse[members], np.arange(len(keys)))
+        ends = np.append(starts[1:], len(members))
+        chosen = [i for i in np.argsort(float_err, kind="stable").tolist()
+                  if float_err[i] <= eps + FLOAT_MARGIN and (int(keys[i, 0]), int(keys[i, 1])) not in self.done_ratios]
+        groups = []
+        for i in chosen:
+            num, den = int(keys[i, 0]), int(keys[i, 1])
+            error = abs(exact_relative_error(num, den, self.target))
+            groups.append((error, num, den, members[starts[i]:ends[i]]))
+        groups.sort(key=lambda item: (item[0], Fraction(item[1], item[2])))
+        return groups
+
+    def _enough(self, next_error: Fraction) -> bool:
+        if len(self.found) < self.count:
+            return False
+        kth = sorted(abs(exact_relative_error(t.numerator, t.denominator, self.target)) for t in self.found)[self.count - 1]
+        return next_error > kth
+
+    def window(self, p: np.ndarray, q: np.ndarray, eps: float) -> bool:
+        """Process a complete window; True when the results are final."""
+        if len(p) == 0:
+            return False
+        eps_exact = Fraction(eps)
+        for error, num, den, index in self._groups(p, q, eps):
+            if error > eps_exact:
+                return False
+            if self._enough(error):
+                return True
+            self.done_ratios.add((num, den))
+            train = self._best_for_ratio(p[index], q[index])
+            if train is not None:
+                self.found.append(train)
+        return False
+
+    # -- rounds ------------------------------------------------------------
+    def run_sorted(self, generator: SortedCandidates, start_eps: float = 0.0) -> None:
+        nearest = np.sort(generator.nearest_errors())
+        eps_all = generator.max_eps()
+        eps, m = start_eps, 32 * self.count
+        while True:
+            proposal = float(nearest[min(m, len(nearest) - 1)])
+            if proposal <= eps:
+                positive = nearest[nearest > eps]
+                proposal = max(eps * 8, float(positive[0]) if len(positive) else eps_all)
+            eps = min(max(proposal, eps * 8), eps_all)
+            if self.window(*generator.within(eps), eps) or eps >= eps_all:
+                return
+            m *= 8
+            self._report(0.5)
+
+    def run_scan(self, generator: ScanCandidates) -> float | None:
+        """Scan rounds; returns the eps reached if the scan must hand over, None when finished."""
+        eps = generator.eps_for_budget(_SCAN_BUDGET)
+        while generator.usable(eps):
+            if self.window(*generator.within(eps, self.progress), eps):
+                return None
+            eps *= 4
+        return eps / 4
+
+    def _report(self, fraction: float) -> None:
+        if self.progress is not None:
+            self.progress(fraction)
+
+    def results(self) -> list[Train]:
+        return sorted(self.found, key=lambda t: rank_key(t, self.target))[: self.count]
+
+
+def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, *,
+                   progress: Progress | None = None, method: str = "auto") -> list[Train]:
+    """The best ``count`` trains of exactly ``stages`` stages, best first.
+
+    Parameters
+    ----------
+    target : Target
+        The wanted ratio (output turns per input turn).
+    stages : int
+        Number of stages, 1 to 4.
+    limits : Limits
+        Tooth range, stage-ratio limit, hunting, exclusions, inventory, direction.
+    count : int
+        Number of trains (distinct ratios) wanted.
+    progress : callable, optional
+        Called with a fraction from 0 to 1 as the search advances.
+    method : {"auto", "sorted", "scan"}
+        Candidate generator (see :mod:`gearcad.ratio.candidates`); all give
+        the same results.
+
+    Returns
+    -------
+    list of Train
+        Sorted by |relative error|, then total teeth; empty if no train
+        satisfies the limits.
+    """
+    k = check_stages(stages)
+    count = as_int(count, "count")
+    if count < 1:
+        raise InputError(f"count must be 1 or more, got {count}")
+    if method not in ("auto", "sorted", "scan"):
+        raise InputError(f"method must be auto, sorted or scan, got {method!r}")
+    shelf = limits.shelf()
+    if shelf is not None and sum(shelf.values()) < 2 * k + needs_idler(k, limits):
+        return []
+    span = stage_ratio_range(limits, k)
+    if span is None:
+        return []
+    search = _Search(target, k, limits, count, progress)
+    ratio_range = (float(span[0]), float(span[1]))
+    teeth = limits.teeth
+    use_scan = method == "scan" or (method == "auto" and multiset_count(len(teeth), k) > SORTED_LIMIT)
+    start_eps = 0.0
+    if use_scan:
+        reached = search.run_scan(ScanCandidates(teeth, k, target.value, ratio_range))
+        if reached is None:
+            return search.results()
+        start_eps = reached
+    search.run_sorted(SortedCandidates(teeth, k, target.value, ratio_range), start_eps)
+    return search.results()

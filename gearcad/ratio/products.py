@@ -1,0 +1,171 @@
+"""Products of tooth counts: sorted product sets, row-wise product streams, factorizations.
+
+A train of ``k`` stages has ratio ``P / Q`` with ``P`` the product of the
+``k`` driver tooth counts and ``Q`` that of the ``k`` driven ones.  The search
+works on these products; this module builds them and splits them back into
+tooth counts.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Iterator, Sequence
+
+import numpy as np
+
+__all__ = [
+    "multiset_count", "product_set", "sieve_square_products", "product_blocks", "block_count", "product_sum",
+    "smooth_mask", "Factorizer", "sum_lower_bound",
+]
+
+#: Above this many elements per side a product set is built by a bit sieve, not by sorting.
+_SORT_LIMIT = 8_000_000
+
+
+def multiset_count(n: int, k: int) -> int:
+    """Number of multisets of ``k`` elements from ``n`` kinds: C(n + k - 1, k)."""
+    return math.comb(n + k - 1, k) if k > 0 else 1
+
+
+def _outer_unique(left: np.ndarray, right: np.ndarray) -> np.ndarray:
+    return np.unique(np.multiply.outer(left, right).ravel())
+
+
+def sieve_square_products(values: np.ndarray, segment_bits: int = 1 << 30) -> np.ndarray:
+    """Sorted distinct products ``a * b`` of a sorted array with itself, by a bit sieve.
+
+    Used instead of sorting when the products are many: it marks each product
+    in a bitmap (segment by segment, so memory stays at ``segment_bits / 8``
+    bytes) and reads the set bits back in order.
+    """
+    low, high = int(values[0]) ** 2, int(values[-1]) ** 2
+    masks = (np.uint8(1) << np.arange(8, dtype=np.uint8))
+    rows = np.arange(len(values))
+    found = []
+    for start in range(low, high + 1, segment_bits):
+        stop = min(start + segment_bits, high + 1)
+        bits = np.zeros((stop - start + 7) // 8, np.uint8)
+        first = np.maximum(rows, np.searchsorted(values, -(-start // values)))
+        last = np.searchsorted(values, (stop - 1) // values, "right")
+        for i in np.flatnonzero(last > first).tolist():
+            offsets = values[first[i]:last[i]] * values[i] - start
+            bits[offsets >> 3] |= masks[offsets & 7]  # one row never hits a byte twice (steps >= 8)
+        nonzero = np.flatnonzero(bits)
+        r, c = np.nonzero(np.unpackbits(bits[nonzero][:, None], axis=1, bitorder="little"))
+        found.append(nonzero[r] * 8 + c + start)
+    return np.concatenate(found)
+
+
+def product_set(teeth: Sequence[int], k: int) -> np.ndarray:
+    """Sorted distinct products of ``k`` tooth counts (repetition allowed), int64."""
+    base = np.asarray(sorted(set(teeth)), dtype=np.int64)
+    if k == 0:
+        return np.ones(1, dtype=np.int64)
+    if k == 4 and multiset_count(len(base), 4) > _SORT_LIMIT and min(base) >= 8:
+        return sieve_square_products(product_set(base, 2))
+    result = base
+    for _ in range(k - 1):
+        result = _outer_unique(result, base)
+    return result
+
+
+def _split(k: int) -> tuple[int, int]:
+    return k // 2, k - k // 2
+
+
+def product_blocks(teeth: Sequence[int], k: int, block: int = 1 << 17) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Every product of ``k`` tooth counts, possibly repeated, as blocks of an outer product.
+
+    Yields ``(rows, cols)``: the products of the block are ``rows[i] * cols[j]``
+    (``rows`` are products of ``k // 2`` counts, ``cols`` of the rest).  Each
+    product of ``k`` counts appears at least once over all blocks.
+    """
+    k1, k2 = _split(k)
+    left, right = product_set(teeth, k1), product_set(teeth, k2)
+    same = k1 == k2
+    step = max(1, block // max(1, len(right)))
+    for r0 in range(0, len(left), step):
+        yield left[r0:r0 + step], (right[r0:] if same else right)
+
+
+def block_count(teeth: Sequence[int], k: int, block: int = 1 << 17) -> int:
+    """How many blocks :func:`product_blocks` yields."""
+    k1, k2 = _split(k)
+    rows, cols = multiset_count(len(set(teeth)), k1), multiset_count(len(set(teeth)), k2)
+    return -(-len(product_set(teeth, k1)) // max(1, block // max(1, len(product_set(teeth, k2))))) if rows and cols else 0
+
+
+def product_sum(teeth: Sequence[int], k: int) -> float:
+    """Sum of all values :func:`product_blocks` yields (for sizing a search)."""
+    k1, k2 = _split(k)
+    left, right = product_set(teeth, k1).astype(float), product_set(teeth, k2).astype(float)
+    if k1 != k2:
+        return float(left.sum() * right.sum())
+    step = max(1, (1 << 20) // max(1, len(right)))
+    suffix = np.cumsum(right[::-1])[::-1]
+    return float(sum(left[r0:r0 + step].sum() * suffix[r0] for r0 in range(0, len(left), step)))
+
+
+def smooth_mask(values: np.ndarray, largest_factor: int) -> np.ndarray:
+    """True where every prime factor of ``values`` is at most ``largest_factor``."""
+    rest = values.astype(np.int64).copy()
+    for prime in _primes_up_to(largest_factor):
+        while True:
+            divisible = rest % prime == 0
+            if not divisible.any():
+                break
+            rest[divisible] //= prime
+    return rest == 1
+
+
+def _primes_up_to(n: int) -> list[int]:
+    sieve = bytearray([1]) * (n + 1)
+    sieve[:2] = b"\x00\x00"
+    for i in range(2, int(n ** 0.5) + 1):
+        if sieve[i]:
+            sieve[i * i::i] = bytearray(len(sieve[i * i::i]))
+    return [i for i in range(n + 1) if sieve[i]]
+
+
+def sum_lower_bound(product: int, k: int, smallest: int) -> int:
+    """A lower bound of the sum of ``k`` factors >= ``smallest`` whose product is ``product``.
+
+    By the inequality of arithmetic and geometric means, ``sum >= k * product^(1/k)``.
+    """
+    return max(k * smallest, math.floor(k * product ** (1.0 / k) * (1 - 1e-12)))
+
+
+class Factorizer:
+    """Splits a number into ``k`` allowed tooth counts (non-decreasing tuples), with a cache."""
+
+    def __init__(self, teeth: Sequence[int]) -> None:
+        self.teeth = tuple(sorted(set(teeth)))
+        self.members = frozenset(self.teeth)
+        self._cache: dict[tuple[int, int, int], tuple[tuple[int, ...], ...]] = {}
+
+    def factorizations(self, number: int, k: int, start: int = 0) -> tuple[tuple[int, ...], ...]:
+        """Every non-decreasing ``k``-tuple of allowed counts >= teeth[start] with product ``number``."""
+        key = (number, k, start)
+        cached = self._cache.get(key)
+        if cached is None:
+            cached = self._cache[key] = self._compute(number, k, start)
+        return cached
+
+    def _compute(self, number: int, k: int, start: int) -> tuple[tuple[int, ...], ...]:
+        teeth = self.teeth
+        if start >= len(teeth) or number < teeth[start] ** k or number > teeth[-1] ** k:
+            return ()
+        if k == 1:
+            return ((number,),) if number in self.members else ()
+        found = []
+        for index in range(start, len(teeth)):
+            factor = teeth[index]
+            if factor ** k > number:
+                break
+            if number % factor == 0:
+                found.extend((factor,) + rest for rest in self.factorizations(number // factor, k - 1, index))
+        return tuple(found)
+
+    def by_sum(self, number: int, k: int) -> list[tuple[int, tuple[int, ...]]]:
+        """Factorizations as (sum, tuple), fewest teeth first."""
+        return sorted((sum(f), f) for f in self.factorizations(number, k))
