@@ -22,7 +22,7 @@ from .geometry.bore import bore_loop
 from .geometry.gear import SpurGear
 from .geometry.generate import DEFAULT_TOLERANCE
 from .geometry.offset import min_concave_radius, offset_loop
-from .geometry.shape import Loop, Part, gear_loop, rounded_rectangle
+from .geometry.shape import Loop, Part, circle_loop, gear_loop, rounded_rectangle
 from .layout import Layout, LayoutGear, LayoutProblem, Link, mesh_phase, shaft_sides, solve_layout
 from .pair import GearPair, make_pair
 from .profiles import Fabrication, ToothSystem, load_fabrication, load_tooth_system
@@ -49,6 +49,8 @@ class PlannedGear:
     cut_part: Part  # what the machine follows (kerf applied), centred on the origin
     rotation: float  # turn in the assembly, radians
     z: float  # lower face in the assembly, mm
+    hub: Part | None = None  # boss on the upper face (solid models only), drawn size
+    hub_length: float = 0.0  # mm
 
 
 @dataclass(frozen=True)
@@ -197,6 +199,30 @@ def _gear_parts(name: str, gear: SpurGear, gspec: GearSpec, bore: float, fab: Fa
     return part, cut
 
 
+def _hub_part(name: str, gear: SpurGear, gspec: GearSpec, part: Part, tolerance: float) -> Part | None:
+    hub = gspec.hub
+    if hub is None:
+        return None
+    hole = max([d for _, _, d in part.circles] + [2 * float(np.hypot(*h.points().T).max()) for h in part.holes])
+    if not (math.isfinite(hub.length) and hub.length > 0):
+        raise InputError(f"{name}: hub length must be greater than 0 mm, got {hub.length!r}")
+    if not hole + 1.0 <= hub.diameter <= gear.root_diameter:
+        raise InputError(f"{name}: hub diameter must be from {hole + 1.0:.2f} mm (the bore plus 1 mm) to the root "
+                         f"diameter {gear.root_diameter:.2f} mm, got {hub.diameter!r}")
+    return Part(f"{name}-hub", circle_loop(0.0, 0.0, hub.diameter, tolerance, clockwise=False), part.holes, part.circles)
+
+
+def _layer_heights(spec: TrainSpec, chain: _Chain, fab: Fabrication) -> list[float]:
+    """Lower-face z of each layer, mm: the face width, the gap and the longest hub of the layer below."""
+    layers = len(spec.stages)
+    hubs = [max([g[3].hub.length for g in chain.gears if g[5] == k and g[3].hub] + [0.0]) for k in range(layers)]
+    heights, z = [], fab.layer_gap
+    for k in range(layers):
+        heights.append(z)
+        z += spec.thickness + hubs[k] + fab.layer_gap
+    return heights + [z]
+
+
 def _tool_finding(name: str, loop: Loop, fab: Fabrication) -> Finding | None:
     if fab.process != "cnc" or fab.tool_radius <= 0:
         return None
@@ -235,14 +261,13 @@ def _phases(chain: _Chain, layout: Layout) -> dict[str, float]:
 
 
 def _plates(spec: TrainSpec, fab: Fabrication, layout: Layout, shafts: list[PlannedShaft], tolerance: float,
-            layers: int) -> tuple[PlannedPlate, ...]:
+            front_z: float) -> tuple[PlannedPlate, ...]:
     w, h = layout.width, layout.height
     inset = fab.plate_margin / 2
     spacers = tuple((x, y, fab.spacer_hole) for x in (inset, w - inset) for y in (inset, h - inset))
     outer = rounded_rectangle(w, h, fab.plate_corner_radius, tolerance)
-    pitch = spec.thickness + fab.layer_gap
     plates = []
-    for name, side, z in (("back-plate", "back", -spec.thickness), ("front-plate", "front", layers * pitch + fab.layer_gap)):
+    for name, side, z in (("back-plate", "back", -spec.thickness), ("front-plate", "front", front_z)):
         holes = tuple((s.x, s.y, s.diameter + fab.bore_clearance) for s in shafts if getattr(s, side))
         unique = tuple(dict.fromkeys(holes))  # coaxial shafts share one hole
         part = Part(name, outer, (), unique + spacers, f"{spec.name} {name}")
@@ -272,7 +297,7 @@ def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE) -> Plan:
     shafts = [PlannedShaft(_shaft_name(i, chain.shafts), float(x), float(y), bores[i], back, front)
               for i, ((x, y), (back, front)) in enumerate(zip(layout.positions, sides))]
     rotation = _phases(chain, layout)
-    pitch = spec.thickness + fab.layer_gap
+    heights = _layer_heights(spec, chain, fab)
     gears, extra = [], []
     for name, role, stage, gspec, shaft, layer in chain.gears:
         gear = _gear_of(name, pairs)
@@ -281,14 +306,15 @@ def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE) -> Plan:
         finding = _tool_finding(name, part.outer, fab)
         if finding:
             extra.append(finding)
-        gears.append(PlannedGear(name, role, stage, gear, gspec, shaft, layer, bore, part, cut,
-                                 rotation[name], fab.layer_gap + layer * pitch))
+        gears.append(PlannedGear(name, role, stage, gear, gspec, shaft, layer, bore, part, cut, rotation[name],
+                                 heights[layer], _hub_part(name, gear, gspec, part, tolerance),
+                                 gspec.hub.length if gspec.hub else 0.0))
     meshes = tuple(PlannedMesh((a, b), pair, analyse_pair(pair), ()) for (a, b), pair in pairs.items())
     ratio = Fraction(1)
     for stage in spec.stages:
         ratio *= Fraction(stage.driver.teeth, stage.driven.teeth)
     direction = "opposite" if len(chain.links) % 2 else "same"
-    plates = _plates(spec, fab, layout, shafts, tolerance, len(spec.stages))
+    plates = _plates(spec, fab, layout, shafts, tolerance, heights[-1])
     return Plan(spec, system, fab, tuple(gears), meshes, tuple(shafts), plates, layout, ratio, direction, tolerance,
                 tuple(extra))
 

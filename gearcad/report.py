@@ -56,6 +56,7 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
             "tooth_thickness": gear.tooth_thickness, "tip_thickness": gear.tip_thickness, "thinning": gear.thinning,
             "bore": g.bore, "thickness": spec.thickness, "shaft": plan.shafts[g.shaft].name, "layer": g.layer,
             "z": g.z, "rotation": math.degrees(g.rotation),
+            "hub": {"diameter": g.spec.hub.diameter, "length": g.spec.hub.length} if g.spec.hub else None,
             "files": _files(files, g.name, ("dxf", "step", "stl", "svg")),
         })
     meshes = []

@@ -31,8 +31,8 @@ def add_output_options(p: argparse.ArgumentParser) -> None:
                    help="largest distance between the DXF arcs and the true curves, mm (default 0.001)")
     p.add_argument("--stl-tolerance", type=float, default=0.02, metavar="MM",
                    help="STL chord tolerance, mm (absolute; default 0.02)")
-    p.add_argument("--stl-angle", type=float, default=5.0, metavar="DEG",
-                   help="STL angular tolerance, degrees (default 5)")
+    p.add_argument("--stl-angle", type=float, default=15.0, metavar="DEG",
+                   help="STL angular tolerance, degrees (default 15; the chord tolerance governs accuracy)")
     p.add_argument("--no-assembly", action="store_true", help="skip the assembly STEP")
     p.add_argument("--json", action="store_true", help="print report.json's content on stdout instead of the summary")
 
@@ -112,8 +112,20 @@ def summary(report: dict, folder: Path, files: dict) -> str:
     return "\n".join(lines)
 
 
+def solved(spec):
+    """``spec`` itself, or, when it has no stages but a [solve] table, the solved spec and its train file text."""
+    if spec.stages:
+        return spec, ()
+    from ..design import solve_train_spec
+    from ..trainfile import train_to_toml
+
+    spec, _ = solve_train_spec(spec)
+    return spec, (("train.toml", train_to_toml(spec)),)
+
+
 def run(args: argparse.Namespace) -> int:
     """Run ``build``."""
     from ..trainfile import read_train
 
-    return build_and_write(read_train(args.train), args)
+    spec, extra = solved(read_train(args.train))
+    return build_and_write(spec, args, extra)

@@ -31,7 +31,7 @@ class BuildOptions:
     dxf_version: str = "R2010"
     dxf_tolerance: float = 1e-3
     stl_tolerance: float = 0.02
-    stl_angle: float = 5.0
+    stl_angle: float = 15.0
     assembly: bool = True
     preview: bool = True
     extra_files: tuple[tuple[str, str], ...] = field(default=())  # (name, text) written as they are
@@ -125,14 +125,17 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
 
 
 def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
-    from .step import AssemblyItem, build_solid, kernel_quiet, write_step, write_stl
+    from .step import AssemblyItem, build_solid, kernel_quiet, with_hub, write_step, write_stl
 
     thickness = plan.spec.thickness
     items = []
     with kernel_quiet():
         for g in plan.gears:
             note(f"solid {g.name}")
-            solid = build_solid(g.part, thickness, plan.tolerance).solid
+            built = build_solid(g.part, thickness, plan.tolerance)
+            if g.hub is not None:
+                built = with_hub(built, g.hub, thickness, g.hub_length, plan.tolerance)
+            solid = built.solid
             if "step" in options.formats:
                 write_step(solid, put(g.name, "step", f"{g.name}.step"), names=[g.name])
             if "stl" in options.formats:

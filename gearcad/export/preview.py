@@ -38,7 +38,7 @@ def write_preview(scene, path: str | os.PathLike[str], dpi: int = 110) -> Path:
         ax.autoscale_view()
         ax.set_xlabel("x, mm (plate coordinates)")
         ax.set_ylabel("y, mm")
-        ax.set_title(scene.title + "  (dashed: meshing centre lines; colour: layer)", fontsize=9)
+        ax.set_title(scene.title + "\ndashed: meshing centre lines; colour: layer", fontsize=9)
         ax.grid(True, linewidth=0.3, alpha=0.5)
         return atomic_write(path, lambda tmp: fig.savefig(tmp, dpi=dpi, format="png", metadata={"Software": None}))
     finally:

@@ -46,6 +46,7 @@ __all__ = [
     "STRAIGHT_KINDS",
     "kernel_quiet",
     "build_solid",
+    "with_hub",
     "gear_solid",
     "spline_through",
     "write_step",
@@ -358,6 +359,33 @@ def build_solid(part: "Part", thickness: float, tolerance: float) -> SolidBuild:
         solid = TopoDS.Solid_s(prism.Shape())
         volume = _check_solid(solid, part, thickness)
     return SolidBuild(solid, stats.splines, stats.poles, stats.worst, volume)
+
+
+def with_hub(build: SolidBuild, hub: "Part", thickness: float, length: float, tolerance: float) -> SolidBuild:
+    """Fuse a hub (the flat part ``hub`` extruded by ``length`` mm) onto the top face of a built solid.
+
+    The hub stands on z = ``thickness``; the result is checked for validity and
+    for the volume of both pieces (0.1 %).
+    """
+    from OCP.BRepAlgoAPI import BRepAlgoAPI_Fuse
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_Transform
+    from OCP.gp import gp_Trsf, gp_Vec
+    from OCP.ShapeUpgrade import ShapeUpgrade_UnifySameDomain
+
+    boss = build_solid(hub, length, tolerance)
+    with kernel_quiet():
+        move = gp_Trsf()
+        move.SetTranslation(gp_Vec(0.0, 0.0, float(thickness)))
+        placed = BRepBuilderAPI_Transform(boss.solid, move, True).Shape()
+        fused = BRepAlgoAPI_Fuse(build.solid, placed).Shape()
+        unify = ShapeUpgrade_UnifySameDomain(fused, True, True, False)
+        unify.Build()
+        shape = unify.Shape()
+        volume = _volume(shape)
+    expected = build.volume + boss.volume
+    if abs(volume - expected) > 1e-3 * expected:
+        raise GeometryError(f"{hub.name}: the gear with its hub has volume {volume:.4g} mm³, expected {expected:.4g}")
+    return SolidBuild(shape, build.splines, build.poles, build.worst_deviation, volume)
 
 
 def gear_solid(part: "Part", thickness: float, tolerance: float) -> "TopoDS_Solid":
