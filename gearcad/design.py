@@ -49,8 +49,35 @@ def spec_with_stages(spec: TrainSpec, train, system: ToothSystem | None = None) 
         idler = GearSpec(train.idler) if train.idler is not None and k == len(train.stages) - 1 else None
         stages.append(StageSpec(GearSpec(driver, shift=x1), GearSpec(driven, shift=x2), idler=idler))
     coaxial = bool(spec.solver.coaxial) if spec.solver else spec.coaxial
+    if coaxial and len(stages) == 2 and train.shifts is None:
+        stages = _equal_centres(stages, spec.module, system)
     target = spec.target or (spec.solver.ratio if spec.solver else None)
     return dataclasses.replace(spec, stages=tuple(stages), coaxial=coaxial, target=target, solver=None)
+
+
+def _equal_centres(stages: list[StageSpec], module: float, system: ToothSystem) -> list[StageSpec]:
+    """Give the stage with the shorter centre distance the shift sum that reaches the longer one.
+
+    The pinion keeps its shift against undercut; the wheel takes the rest
+    (ISO 21771's centre distance from the shift sum, inverted).
+    """
+    from .pair import centre_distance_for_shift, total_shift_for_centre
+
+    alpha = system.pressure_angle
+    centres = [centre_distance_for_shift(s.driver.teeth, s.driven.teeth, module, alpha, s.driver.shift + s.driven.shift)
+               for s in stages]
+    if abs(centres[0] - centres[1]) < 1e-12:
+        return stages
+    k = 0 if centres[0] < centres[1] else 1
+    s = stages[k]
+    total = total_shift_for_centre(s.driver.teeth, s.driven.teeth, module, alpha, max(centres))
+    if s.driver.teeth <= s.driven.teeth:
+        new = StageSpec(s.driver, dataclasses.replace(s.driven, shift=round(total - s.driver.shift, 12)), s.module, s.idler)
+    else:
+        new = StageSpec(dataclasses.replace(s.driver, shift=round(total - s.driven.shift, 12)), s.driven, s.module, s.idler)
+    stages = list(stages)
+    stages[k] = new
+    return stages
 
 
 def solve(solver: SolverSpec, inventory=None, shift_limit: float | None = None, progress=None):

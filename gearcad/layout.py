@@ -211,7 +211,7 @@ def _fixed_turns(problem: LayoutProblem) -> np.ndarray:
     fixed = np.full(max(len(problem.links) - 1, 0), np.nan)
     if problem.coaxial is None:
         return fixed
-    if len(problem.links) != 2 or abs(problem.links[0].distance - problem.links[1].distance) > 1e-9:
+    if len(problem.links) != 2 or abs(problem.links[0].distance - problem.links[1].distance) > 1e-6:
         raise InputError("a coaxial train needs exactly two stages with equal centre distances "
                          f"(got {', '.join(f'{l.distance:.4f}' for l in problem.links)} mm)")
     fixed[0] = math.pi

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import math
 from fractions import Fraction
+from functools import lru_cache
 from itertools import combinations_with_replacement
 
 import pytest
@@ -29,6 +30,7 @@ def stages_of(limits):
             and (not limits.hunting or math.gcd(d, n) == 1)]
 
 
+@lru_cache(maxsize=None)
 def reachable(stage, limit):
     """Centre distances (module 1) of a stage with shift sum in [-2X, 2X], by a fine scan."""
     values = []
@@ -93,7 +95,7 @@ def test_shift_limit_matches_exhaustive_and_shifts_equalise_centres():
 
 
 def test_four_stage_coaxial_matches_pairs_of_pairs():
-    limits = make_limits(10, 22)
+    limits = make_limits(10, 18)
     target = parse_target("pi")
     pairs = [(a, b) for a, b in combinations_with_replacement(stages_of(limits), 2) if sum(a) == sum(b)]
     best = {}

@@ -18,8 +18,10 @@ from gearcad.ratio import best_approximations, make_limits, parse_target
 from gearcad.ratio.solve import approximations_with_trains
 
 # OEIS A002485 and A002486 from the third term on (after 0/1 and 1/0) (from memory).
-PI_NUMERATORS = [3, 22, 333, 355, 103993, 104348, 208341, 312689, 833719, 1146408, 4272943, 5419351, 80143857]
-PI_DENOMINATORS = [1, 7, 106, 113, 33102, 33215, 66317, 99532, 265381, 364913, 1360120, 1725033, 25510582]
+PI_NUMERATORS = [3, 22, 333, 355, 103993, 104348, 208341, 312689, 833719, 1146408, 4272943, 5419351, 80143857,
+                 165707065, 245850922]
+PI_DENOMINATORS = [1, 7, 106, 113, 33102, 33215, 66317, 99532, 265381, 364913, 1360120, 1725033, 25510582,
+                   52746197, 78256779]
 # OEIS A007676 and A007677 (from memory).
 E_NUMERATORS = [2, 3, 8, 11, 19, 87, 106, 193, 1264, 1457, 2721, 23225, 25946, 49171, 517656, 566827, 1084483]
 E_DENOMINATORS = [1, 1, 3, 4, 7, 32, 39, 71, 465, 536, 1001, 8544, 9545, 18089, 190435, 208524, 398959]
@@ -50,21 +52,28 @@ def brute_best_approximations(x, bound):
     found, best = [], None
     for q in range(1, bound + 1):
         p = round(x * q)
-        for cand in (p - 1, p, p + 1):
-            if cand <= 0:
-                continue
-            distance = abs(Fraction(cand, q) - x)
-            if best is None or distance < best:
-                best = distance
-                found.append((cand, q))
+        distance, cand = min((abs(Fraction(c, q) - x), c) for c in (p - 1, p, p + 1) if c >= 0)
+        if best is None or distance < best:
+            best = distance
+            found.append((cand, q))
     return found
 
 
 def test_semiconvergents_are_exactly_the_best_approximations():
-    for expression in ("pi", "29.530588853", "0.2718"):
+    # Every best approximation is a convergent or a semiconvergent (Khinchin, Continued Fractions, from memory);
+    # the list holds all convergents (sympy) and, beyond them, exactly the best approximations (brute force).
+    for expression, value in (("pi", sympy.pi), ("29.530588853", sympy.Rational(29530588853, 10 ** 9)),
+                              ("0.2718", sympy.Rational(2718, 10000))):
         target = parse_target(expression)
-        listed = [(a.numerator, a.denominator) for a in best_approximations(target, 3000)]
-        assert listed == brute_best_approximations(target.approx, 3000), expression  # definition, brute force
+        listed = best_approximations(target, 3000)
+        semis = {(a.numerator, a.denominator) for a in listed if a.kind == "semiconvergent"}
+        convs = {(a.numerator, a.denominator) for a in listed if a.kind == "convergent"}
+        reference = {(int(c.p), int(c.q)) for c in islice(continued_fraction_convergents(continued_fraction_iterator(value)), 30)
+                     if 0 < c.q <= 3000 and c.p > 0}
+        best = {f for f in brute_best_approximations(target.approx, 3000) if f[0] > 0}
+        assert convs == reference, expression  # sympy
+        assert semis == best - reference, expression  # definition, brute force
+        assert [a.denominator for a in listed] == sorted(a.denominator for a in listed)
 
 
 def test_marks_use_exact_trains_in_range():

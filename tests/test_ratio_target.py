@@ -41,7 +41,7 @@ def test_irrational_targets_agree_with_mpmath_to_60_digits():
 @pytest.mark.parametrize("text, words", [
     ("0", "greater than 0"), ("-2", "greater than 0"), ("sqrt(-1)", "not a real"), ("foo", "unknown name"),
     ("1/0", "divides by zero"), ("2**", "ends too early"), ("", "empty"), ("__import__('os')", "cannot be read"),
-    ("10^10^10", "exponent"), ("log(0)", "finite"), ("(2", "expected ')'"),
+    ("10^10^10", "exponent"), ("log(0)", "finite"), ("(2", "ends too early"),
 ])
 def test_bad_targets_raise_one_line_input_errors(text, words):
     with pytest.raises(InputError, match=words) as info:

@@ -21,7 +21,7 @@ from typing import Callable, Sequence
 
 import numpy as np
 
-from .products import block_count, product_blocks, product_set, product_sum, smooth_mask
+from .products import product_blocks, product_set, product_sum, smooth_mask
 
 __all__ = ["SortedCandidates", "ScanCandidates", "FLOAT_MARGIN", "Progress"]
 
@@ -96,7 +96,9 @@ class ScanCandidates:
     def __post_init__(self) -> None:
         self.largest = max(self.teeth)
         self.p_min, self.p_max = min(self.teeth) ** self.k, self.largest ** self.k
-        self.total = product_sum(self.teeth, self.k)
+        self.q_range = (self.p_min / self.target * (1 - 1e-6), self.p_max / self.target * (1 + 1e-6))
+        self.blocks = sum(1 for _ in product_blocks(self.teeth, self.k, self.q_range))
+        self.total = max(product_sum(self.teeth, self.k, self.q_range), 1.0)
 
     def eps_for_budget(self, count: float) -> float:
         """An eps that yields about ``count`` raw candidates."""
@@ -109,13 +111,14 @@ class ScanCandidates:
     def within(self, eps: float, progress: Progress | None = None) -> tuple[np.ndarray, np.ndarray]:
         """Every (P, Q) with |P/(T Q) - 1| <= eps, P screened as smooth; see :meth:`usable`."""
         found_p, found_q = [], []
-        blocks = block_count(self.teeth, self.k)
-        for done, (rows, cols) in enumerate(product_blocks(self.teeth, self.k)):
+        for done, (rows, cols) in enumerate(product_blocks(self.teeth, self.k, self.q_range)):
             p, q = self._block_hits(rows, cols, eps)
             found_p.append(p)
             found_q.append(q)
             if progress is not None:
-                progress((done + 1) / blocks)
+                progress((done + 1) / max(1, self.blocks))
+        if not found_p:
+            return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64)
         p, q = _unique_pairs(np.concatenate(found_p), np.concatenate(found_q))
         smooth = smooth_mask(p, self.largest)
         return p[smooth], q[smooth]

@@ -85,10 +85,10 @@ def best_approximations(target: Target, max_denominator: int) -> list[Approximan
     terms = _terms_for(target, max_denominator)
     found: list[Approximant] = []
     h0, h1, k0, k1 = 0, 1, 1, 0
-    for a in terms:
-        for j in range((a + 1) // 2 if found else a, a):
+    for index, a in enumerate(terms):
+        for j in range((a + 1) // 2 if index else a, a):
             h, k = h0 + j * h1, k0 + j * k1
-            if 0 < j and k <= max_denominator and (2 * j > a or abs(Fraction(h, k) - x) < abs(Fraction(h1, k1) - x)):
+            if 0 < j and h > 0 and k <= max_denominator and (2 * j > a or abs(Fraction(h, k) - x) < abs(Fraction(h1, k1) - x)):
                 found.append(_approximant(h, k, "semiconvergent", target))
         h0, h1, k0, k1 = h1, a * h1 + h0, k1, a * k1 + k0
         if k1 > max_denominator:

@@ -14,7 +14,7 @@ from typing import Iterator, Sequence
 import numpy as np
 
 __all__ = [
-    "multiset_count", "product_set", "sieve_square_products", "product_blocks", "block_count", "product_sum",
+    "multiset_count", "product_set", "sieve_square_products", "product_blocks", "product_sum",
     "smooth_mask", "Factorizer", "sum_lower_bound",
 ]
 
@@ -73,37 +73,37 @@ def _split(k: int) -> tuple[int, int]:
     return k // 2, k - k // 2
 
 
-def product_blocks(teeth: Sequence[int], k: int, block: int = 1 << 17) -> Iterator[tuple[np.ndarray, np.ndarray]]:
-    """Every product of ``k`` tooth counts, possibly repeated, as blocks of an outer product.
+def product_blocks(teeth: Sequence[int], k: int, q_range: tuple[float, float] = (0.0, math.inf),
+                   block: int = 1 << 17) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """Every product of ``k`` tooth counts within ``q_range``, possibly repeated, as outer-product blocks.
 
     Yields ``(rows, cols)``: the products of the block are ``rows[i] * cols[j]``
     (``rows`` are products of ``k // 2`` counts, ``cols`` of the rest).  Each
-    product of ``k`` counts appears at least once over all blocks.
+    product of ``k`` counts within ``q_range`` appears at least once over all
+    blocks (blocks may also hold products outside the range).
     """
     k1, k2 = _split(k)
     left, right = product_set(teeth, k1), product_set(teeth, k2)
+    low, high = q_range
     same = k1 == k2
     step = max(1, block // max(1, len(right)))
     for r0 in range(0, len(left), step):
-        yield left[r0:r0 + step], (right[r0:] if same else right)
+        rows = left[r0:r0 + step]
+        cols = right[r0:] if same else right
+        cols = cols[np.searchsorted(cols, low / rows[-1], "left"):np.searchsorted(cols, high / rows[0], "right")]
+        rows = rows[rows * cols[0] <= high] if len(cols) else rows[:0]
+        if len(rows) and len(cols):
+            yield rows, cols
 
 
-def block_count(teeth: Sequence[int], k: int, block: int = 1 << 17) -> int:
-    """How many blocks :func:`product_blocks` yields."""
-    k1, k2 = _split(k)
-    rows, cols = multiset_count(len(set(teeth)), k1), multiset_count(len(set(teeth)), k2)
-    return -(-len(product_set(teeth, k1)) // max(1, block // max(1, len(product_set(teeth, k2))))) if rows and cols else 0
-
-
-def product_sum(teeth: Sequence[int], k: int) -> float:
-    """Sum of all values :func:`product_blocks` yields (for sizing a search)."""
-    k1, k2 = _split(k)
-    left, right = product_set(teeth, k1).astype(float), product_set(teeth, k2).astype(float)
-    if k1 != k2:
-        return float(left.sum() * right.sum())
-    step = max(1, (1 << 20) // max(1, len(right)))
-    suffix = np.cumsum(right[::-1])[::-1]
-    return float(sum(left[r0:r0 + step].sum() * suffix[r0] for r0 in range(0, len(left), step)))
+def product_sum(teeth: Sequence[int], k: int, q_range: tuple[float, float] = (0.0, math.inf)) -> float:
+    """Sum of the products within ``q_range`` that :func:`product_blocks` yields (for sizing a search)."""
+    low, high = q_range
+    total = 0.0
+    for rows, cols in product_blocks(teeth, k, q_range):
+        block = np.multiply.outer(rows.astype(float), cols.astype(float))
+        total += float(block[(block >= low) & (block <= high)].sum())
+    return total
 
 
 def smooth_mask(values: np.ndarray, largest_factor: int) -> np.ndarray:

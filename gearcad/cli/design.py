@@ -1,0 +1,61 @@
+"""``gearcad design``: solve a ratio, take the best train, build every file of it."""
+
+from __future__ import annotations
+
+import argparse
+
+from ._solver import add_solver_options, exclusions
+from .build import add_output_options, build_and_write
+
+__all__ = ["add_parser", "run"]
+
+DESCRIPTION = """\
+Solve TARGET with the ratio solver (same options as `gearcad ratio`), take the best
+train, give undercut pinions the least profile shift that avoids undercut (balanced by
+the mate where it can take it), then build it as `gearcad build` does.  The train file
+it built is written as train.toml beside the other files: edit it and rebuild.
+
+Ratio = output turns per input turn = the product over stages of driver teeth / driven teeth."""
+
+
+def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParser:
+    """Register ``design``."""
+    p = subparsers.add_parser("design", help="solve a ratio and build the best train", description=DESCRIPTION,
+                              formatter_class=argparse.RawDescriptionHelpFormatter)
+    p.add_argument("target", help="wanted ratio: output turns per input turn (decimal, fraction or expression)")
+    add_solver_options(p)
+    p.add_argument("--module", "-m", type=float, required=True, metavar="MM", help="module of every stage, mm")
+    p.add_argument("--thickness", type=float, default=3.0, metavar="MM", help="face width of every gear, mm (default 3)")
+    p.add_argument("--profile", default="laser-3mm-acrylic", metavar="NAME",
+                   help="fabrication profile (default laser-3mm-acrylic; see gearcad profiles)")
+    p.add_argument("--system", default="iso53-a", metavar="NAME", help="tooth system (default iso53-a)")
+    p.add_argument("--bore", type=float, default=3.0, metavar="MM", help="shaft diameter, mm (default 3)")
+    p.add_argument("--name", default="design", help="train name: output folder and file prefix (default design)")
+    add_output_options(p)
+    return p
+
+
+def run(args: argparse.Namespace) -> int:
+    """Run ``design``."""
+    from ..design import solve, spec_with_stages
+    from ..profiles import load_fabrication, load_tooth_system
+    from ..ratio.inventory import read_inventory
+    from ..trainfile import train_to_toml
+    from ..trainspec import SolverSpec, TrainSpec
+
+    load_tooth_system(args.system)  # unknown names fail before the search
+    load_fabrication(args.profile)
+    if args.shift_limit is not None and not args.coaxial:
+        from ..errors import InputError
+
+        raise InputError("--shift-limit works only with --coaxial")
+    solver = SolverSpec(ratio=args.target, stages=args.stages, min_teeth=args.min_teeth, max_teeth=args.max_teeth,
+                        max_stage_ratio=args.max_stage_ratio, direction=args.direction, hunting=args.hunting,
+                        coaxial=args.coaxial, exclude=tuple(exclusions(args.exclude)))
+    inventory = read_inventory(args.inventory) if args.inventory is not None else None
+    train = solve(solver, inventory=inventory, shift_limit=args.shift_limit)
+    base = TrainSpec(name=args.name, module=args.module, thickness=args.thickness, stages=(), target=args.target,
+                     tooth_system=args.system, fabrication=args.profile, bore=args.bore, solver=solver,
+                     title=f"Train for {args.target}")
+    spec = spec_with_stages(base, train)
+    return build_and_write(spec, args, (("train.toml", train_to_toml(spec)),))
