@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import signal
 import sys
 from typing import Sequence
 
@@ -66,13 +67,33 @@ def main(argv: Sequence[str] | None = None) -> int:
     if not getattr(args, "_run", None):
         parser.print_help()
         return 2
+    interrupted = []
+
+    def on_interrupt(signum, frame):  # remember it: a library may turn the KeyboardInterrupt into another error
+        interrupted.append(signum)
+        raise KeyboardInterrupt
+
+    previous = signal.signal(signal.SIGINT, on_interrupt)
     try:
         return int(args._run(args))
     except GearcadError as exc:
+        if interrupted:
+            return _interrupted(args.command)
         print(f"gearcad {args.command}: error: {exc}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
-        print(f"gearcad {args.command}: interrupted; no partial file was left", file=sys.stderr)
-        return 130
+        return _interrupted(args.command)
     except BrokenPipeError:
         return 0
+    except Exception:
+        if interrupted:  # e.g. the CAD kernel's import, cut short, reports an ImportError
+            return _interrupted(args.command)
+        raise
+    finally:
+        signal.signal(signal.SIGINT, previous)
+
+
+def _interrupted(command: str) -> int:
+    print(f"gearcad {command}: interrupted; every file written so far is complete, no partial file was left",
+          file=sys.stderr)
+    return 130

@@ -54,6 +54,8 @@ def prepare_folder(folder: Path, force: bool) -> list[str]:
             return [line for line in marker.read_text(encoding="utf-8").splitlines() if line and "/" not in line]
         except OSError:
             return []
+    # Claim the folder before the first file, so that a build cut short can be rebuilt in place.
+    atomic_write(marker, lambda tmp: tmp.write_text("", encoding="utf-8"))
     return []
 
 

@@ -192,7 +192,7 @@ class _Search:
             train = self._best_for_ratio(p[index], q[index])
             if train is not None:
                 self.found.append(train)
-        return False
+        return len(self.found) >= self.count  # every group within eps is done
 
     # -- rounds ------------------------------------------------------------
     def run_sorted(self, generator: SortedCandidates, start_eps: float = 0.0) -> None:
