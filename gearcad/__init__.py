@@ -1,2 +1,65 @@
-"""gearcad: from a ratio to gears that mesh and files a machine accepts."""
+"""gearcad: from a ratio to gears that mesh and files a machine accepts.
+
+The public API (names load on first use, so ``import gearcad`` stays light and
+never loads the CAD kernel):
+
+- ratios: :func:`parse_target`, :func:`make_limits`, :class:`RatioQuery`, :func:`solve_ratio`,
+  :func:`read_inventory`, :class:`Train`
+- gears: :class:`SpurGear`, :func:`load_tooth_system`, :func:`outline`, :func:`tooth_profile`,
+  :class:`TipRelief`, :func:`make_pair`, :func:`analyse_pair`, :class:`Finding`
+- trains and files: :func:`read_train`, :func:`parse_train`, :func:`plan_train`, :func:`write_plan`,
+  :class:`BuildOptions`, :func:`load_fabrication`
+- errors: :class:`GearcadError` and its subclasses
+
+Lengths are in mm and angles in radians inside the API; files and reports use mm and degrees.
+"""
+
+from __future__ import annotations
+
+import importlib
+from typing import Any
+
+from .errors import ExportError, GearcadError, GeometryError, InputError, ProfileError
+
 __version__ = "0.1.0"
+
+_LAZY = {
+    "parse_target": "gearcad.ratio.target",
+    "make_limits": "gearcad.ratio.limits",
+    "RatioQuery": "gearcad.ratio.solve",
+    "solve_ratio": "gearcad.ratio.solve",
+    "read_inventory": "gearcad.ratio.inventory",
+    "Train": "gearcad.ratio.train",
+    "SpurGear": "gearcad.geometry.gear",
+    "outline": "gearcad.geometry.generate",
+    "tooth_profile": "gearcad.geometry.generate",
+    "TipRelief": "gearcad.geometry.generate",
+    "inv": "gearcad.geometry.involute",
+    "inv_inverse": "gearcad.geometry.involute",
+    "load_tooth_system": "gearcad.profiles",
+    "load_fabrication": "gearcad.profiles",
+    "make_pair": "gearcad.pair",
+    "GearPair": "gearcad.pair",
+    "analyse_pair": "gearcad.checks",
+    "Finding": "gearcad.checks",
+    "read_train": "gearcad.trainfile",
+    "parse_train": "gearcad.trainfile",
+    "TrainSpec": "gearcad.trainspec",
+    "plan_train": "gearcad.plan",
+    "write_plan": "gearcad.export.bundle",
+    "BuildOptions": "gearcad.export.bundle",
+}
+
+__all__ = ["GearcadError", "InputError", "ProfileError", "GeometryError", "ExportError", "__version__", *_LAZY]
+
+
+def __getattr__(name: str) -> Any:
+    if name in _LAZY:
+        value = getattr(importlib.import_module(_LAZY[name]), name)
+        globals()[name] = value
+        return value
+    raise AttributeError(f"module 'gearcad' has no attribute {name!r}")
+
+
+def __dir__() -> list[str]:
+    return sorted(__all__)

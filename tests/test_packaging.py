@@ -57,3 +57,10 @@ def test_a_non_editable_install_carries_the_profiles(tmp_path):
     result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=tmp_path, env=env)
     assert result.returncode == 0, result.stderr
     assert str(target) in result.stdout and result.stdout.strip().endswith("1.25")
+
+
+def test_every_public_name_resolves():
+    import gearcad
+
+    for name in gearcad.__all__:
+        assert getattr(gearcad, name) is not None, name

@@ -221,3 +221,13 @@ def test_inventory_idler_comes_from_the_shelf():
     for train in found:
         used = Counter(z for s in train.stages for z in s) + Counter([train.idler])
         assert all(shelf.quantity(z) >= c for z, c in used.items())
+
+
+@pytest.mark.parametrize("expression", ["3", "1", "1/3", "5/4"])
+@pytest.mark.parametrize("method", ["scan", "sorted"])
+def test_simple_rational_targets_match_exhaustive(expression, method):
+    # exact hits are many here: the exact group is settled first, then the windows skip it
+    limits = make_limits(10, 17, 6, expression == "1")
+    target = parse_target(expression)
+    for k in (3, 4):
+        assert solved(target, k, limits, 3, method) == exhaustive(target, k, limits, 3)  # exhaustive reference

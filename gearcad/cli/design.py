@@ -15,7 +15,8 @@ train, give undercut pinions the least profile shift that avoids undercut (balan
 the mate where it can take it), then build it as `gearcad build` does.  The train file
 it built is written as train.toml beside the other files: edit it and rebuild.
 
-Ratio = output turns per input turn = the product over stages of driver teeth / driven teeth."""
+Ratio = output turns per input turn = the product over stages of driver teeth / driven teeth.
+Inventory syntax (--inventory): as for `gearcad ratio` (see its --help), e.g. 20x2,25-60/5,127."""
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParser:

@@ -8,6 +8,7 @@ import time
 from typing import Any, Sequence
 
 from ._format import print_json, table
+from ._solver import add_solver_options, exclusions
 
 __all__ = ["add_parser", "run"]
 
@@ -20,7 +21,9 @@ the limits allow.  The search is exact: for each stage count the first train is
 the best there is within the limits (least |relative error|, ties to fewer
 teeth).  One train is shown per distinct ratio, the one with the fewest teeth.
 
-{CONVENTION}
+Ratio = output turns per input turn = the product over stages of driver
+teeth / driven teeth.  Each external mesh reverses the direction of rotation;
+an idler adds a mesh and changes no ratio.
 
 TARGET is a decimal (29.530588853), a fraction (127/20) or an expression
 (2*pi, 25.4/(8*pi), sqrt(2), 366.2422/365.2422); it is read exactly, never
@@ -37,39 +40,15 @@ Exit codes: 0 found; 1 nothing within --tolerance (or no train at all);
 
 def add_parser(subparsers: Any) -> argparse.ArgumentParser:
     """Register ``gearcad ratio``."""
-    from ..ratio.limits import DEFAULT_MAX_STAGE_RATIO, DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH
 
     parser = subparsers.add_parser("ratio", help="best tooth counts of a gear train for a ratio",
                                    description=DESCRIPTION, formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("target", help="wanted ratio: output turns per input turn")
-    parser.add_argument("--stages", type=int, metavar="N",
-                        help="number of stages, 1 to 4 (default: search 1, 2 and 3 and show the best of each; "
-                             "with --coaxial: 2)")
-    parser.add_argument("--min-teeth", type=int, metavar="Z",
-                        help=f"fewest teeth of a gear (default {DEFAULT_MIN_TEETH}; with --inventory: the shelf's)")
-    parser.add_argument("--max-teeth", type=int, metavar="Z",
-                        help=f"most teeth of a gear (default {DEFAULT_MAX_TEETH}; with --inventory: the shelf's)")
-    parser.add_argument("--max-stage-ratio", type=float, default=DEFAULT_MAX_STAGE_RATIO, metavar="R",
-                        help=f"largest ratio of one stage either way, 1/R <= driver/driven <= R (default "
-                             f"{DEFAULT_MAX_STAGE_RATIO:g}, common practice for a spur stage)")
     parser.add_argument("--tolerance", type=float, metavar="REL",
                         help="list every train with |relative error| <= REL (up to --count); exit 1 if none")
     parser.add_argument("--count", type=int, metavar="K",
                         help="trains listed per stage count (default 5; 1 when --stages is left out)")
-    parser.add_argument("--hunting", action="store_true",
-                        help="driver and driven of every stage share no factor (even wear; common practice)")
-    parser.add_argument("--exclude", metavar="Z,...", default="", help="tooth counts never to use")
-    parser.add_argument("--inventory", metavar="LIST|FILE",
-                        help="use only these gears, each physical gear once (syntax above)")
-    parser.add_argument("--coaxial", action="store_true",
-                        help="output on the input's axis: each pair of stages has one centre distance "
-                             "(equal tooth sums with one module)")
-    parser.add_argument("--shift-limit", type=float, metavar="X",
-                        help="with --coaxial: allow unequal tooth sums where profile shift within +-X per gear "
-                             "equalises the centre distances (reports the shifts)")
-    parser.add_argument("--direction", choices=("same", "opposite"),
-                        help="output turns the same way as the input or the opposite way; adds an idler "
-                             "(smallest tooth count available) where needed")
+    add_solver_options(parser)
     parser.add_argument("--fractions", action="store_true",
                         help="list the continued-fraction convergents and semiconvergents of the target and mark "
                              "those that a train of at most N stages realises exactly")
@@ -103,10 +82,6 @@ class _LazyProgress:
             self.bar.stop()
 
 
-def _exclusions(text: str) -> list[str]:
-    return [part for part in text.replace(" ", ",").split(",") if part]
-
-
 def _limits(args: argparse.Namespace) -> Any:
     from ..ratio.inventory import read_inventory
     from ..ratio.limits import DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH, make_limits
@@ -114,7 +89,7 @@ def _limits(args: argparse.Namespace) -> Any:
     inventory = read_inventory(args.inventory) if args.inventory is not None else None
     low = args.min_teeth if args.min_teeth is not None else (min(inventory.teeth) if inventory else DEFAULT_MIN_TEETH)
     high = args.max_teeth if args.max_teeth is not None else (max(inventory.teeth) if inventory else DEFAULT_MAX_TEETH)
-    return make_limits(low, high, args.max_stage_ratio, args.hunting, _exclusions(args.exclude), inventory,
+    return make_limits(low, high, args.max_stage_ratio, args.hunting, exclusions(args.exclude), inventory,
                        args.direction)
 
 

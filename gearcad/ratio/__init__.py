@@ -2,25 +2,39 @@
 
 Convention: ratio = output turns per input turn = the product over stages of
 driver teeth / driven teeth.  Each external mesh reverses the direction.
+
+Names are loaded on first use (PEP 562), so importing a light submodule such
+as :mod:`gearcad.ratio.limits` does not pull in sympy or numpy.
 """
 
 from __future__ import annotations
 
-from .coaxial import solve_coaxial
-from .compound import solve_compound
-from .convergents import Approximant, best_approximations, continued_fraction_terms, convergents
-from .inventory import Inventory, parse_inventory, read_inventory
-from .limits import (DEFAULT_MAX_STAGE_RATIO, DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH, MAX_STAGES, Limits,
-                     make_limits)
-from .solve import (RatioQuery, approximations_with_trains, binding_limits, realising_stages, solve_ratio,
-                    within_tolerance)
-from .target import Target, parse_target
-from .train import Train, make_train
+import importlib
+from typing import Any
 
-__all__ = [
-    "Approximant", "Inventory", "Limits", "RatioQuery", "Target", "Train",
-    "DEFAULT_MAX_STAGE_RATIO", "DEFAULT_MAX_TEETH", "DEFAULT_MIN_TEETH", "MAX_STAGES",
-    "approximations_with_trains", "best_approximations", "binding_limits", "continued_fraction_terms",
-    "convergents", "make_limits", "make_train", "parse_inventory", "parse_target", "read_inventory",
-    "realising_stages", "solve_coaxial", "solve_compound", "solve_ratio", "within_tolerance",
-]
+_HOMES = {
+    "solve_coaxial": "coaxial", "solve_compound": "compound",
+    "Approximant": "convergents", "best_approximations": "convergents",
+    "continued_fraction_terms": "convergents", "convergents": "convergents",
+    "Inventory": "inventory", "parse_inventory": "inventory", "read_inventory": "inventory",
+    "DEFAULT_MAX_STAGE_RATIO": "limits", "DEFAULT_MAX_TEETH": "limits", "DEFAULT_MIN_TEETH": "limits",
+    "MAX_STAGES": "limits", "Limits": "limits", "make_limits": "limits",
+    "RatioQuery": "solve", "approximations_with_trains": "solve", "binding_limits": "solve",
+    "realising_stages": "solve", "solve_ratio": "solve", "within_tolerance": "solve",
+    "Target": "target", "parse_target": "target",
+    "Train": "train", "make_train": "train",
+}
+
+__all__ = sorted(_HOMES)
+
+
+def __getattr__(name: str) -> Any:
+    if name not in _HOMES:
+        raise AttributeError(f"module 'gearcad.ratio' has no attribute {name!r}")
+    value = getattr(importlib.import_module(f".{_HOMES[name]}", __name__), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(__all__))

@@ -23,7 +23,7 @@ import numpy as np
 
 from .products import product_blocks, product_set, product_sum, smooth_mask
 
-__all__ = ["SortedCandidates", "ScanCandidates", "FLOAT_MARGIN", "Progress"]
+__all__ = ["SortedCandidates", "ScanCandidates", "FLOAT_MARGIN", "Progress", "not_exact"]
 
 #: Relative float margin added to every window (float products are good to ~1e-16).
 FLOAT_MARGIN = 1e-14
@@ -41,6 +41,18 @@ def _unique_pairs(p: np.ndarray, q: np.ndarray) -> tuple[np.ndarray, np.ndarray]
     return p[first], q[first]
 
 
+def not_exact(p: np.ndarray, q: np.ndarray, exact: tuple[int, int] | None) -> np.ndarray:
+    """Mask of pairs whose ratio is not exactly ``exact = (a, b)`` (all True without it)."""
+    if exact is None or len(p) == 0:
+        return np.ones(len(p), dtype=bool)
+    a, b = exact
+    if a > int(p.max()) or b > int(q.max()):  # no multiple of a/b lies among these pairs
+        return np.ones(len(p), dtype=bool)
+    if max(a, b) * max(int(p.max()), int(q.max())) >= 2 ** 62:  # rare hits; int64 would overflow
+        return np.array([int(x) * b != a * int(y) for x, y in zip(p, q)], dtype=bool)
+    return p * b != a * q
+
+
 @dataclass
 class SortedCandidates:
     """Window search over the sorted set of ``k``-products."""
@@ -49,20 +61,25 @@ class SortedCandidates:
     k: int
     target: float
     ratio_range: tuple[float, float]
+    exact: tuple[int, int] | None = None
 
     def __post_init__(self) -> None:
         self.products = product_set(self.teeth, self.k)
         self.floats = self.products.astype(float)
 
     def nearest_errors(self) -> np.ndarray:
-        """For each driven product, the |relative error| of the nearest driver product."""
+        """For each driven product, the least non-zero |relative error| of its nearest driver products.
+
+        Only sizes the first windows (so errors below 1e-14, exact hits, are passed over).
+        """
         wanted = self.floats * self.target
-        index = np.clip(np.searchsorted(self.floats, wanted), 1, len(self.floats) - 1)
-        if len(self.floats) == 1:
-            return np.abs(self.floats / wanted - 1)
-        below = np.abs(self.floats[index - 1] / wanted - 1)
-        above = np.abs(self.floats[index] / wanted - 1)
-        return np.minimum(below, above)
+        index = np.searchsorted(self.floats, wanted)
+        best = np.full(len(wanted), np.inf)
+        for shift in (-2, -1, 0, 1):
+            at = np.clip(index + shift, 0, len(self.floats) - 1)
+            error = np.abs(self.floats[at] / wanted - 1)
+            best = np.where(error > 1e-14, np.minimum(best, error), best)
+        return best
 
     def within(self, eps: float, progress: Progress | None = None) -> tuple[np.ndarray, np.ndarray]:
         """Every (P, Q) with |P/(T Q) - 1| <= eps (and a margin), inside the ratio range."""
@@ -76,7 +93,9 @@ class SortedCandidates:
         q_index = np.repeat(np.arange(len(q)), counts)
         starts = np.cumsum(counts) - counts
         p_index = first[q_index] + (np.arange(counts.sum()) - starts[q_index])
-        return self.products[p_index], self.products[q_index]
+        p, q = self.products[p_index], self.products[q_index]
+        keep = not_exact(p, q, self.exact)
+        return p[keep], q[keep]
 
     def max_eps(self) -> float:
         """An eps that takes in every pair of the ratio range."""
@@ -92,6 +111,7 @@ class ScanCandidates:
     k: int
     target: float
     ratio_range: tuple[float, float]
+    exact: tuple[int, int] | None = None
 
     def __post_init__(self) -> None:
         self.largest = max(self.teeth)
@@ -135,4 +155,6 @@ class ScanCandidates:
         lo_ratio, hi_ratio = self.ratio_range
         keep = ((p >= self.p_min) & (p <= self.p_max)
                 & (p >= q * lo_ratio * (1 - FLOAT_MARGIN)) & (p <= q * hi_ratio * (1 + FLOAT_MARGIN)))
+        p, q = p[keep], q[keep]
+        keep = not_exact(p, q, self.exact)
         return p[keep], q[keep]

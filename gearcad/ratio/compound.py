@@ -35,7 +35,7 @@ from ..errors import InputError
 from ..validate import as_int
 from .candidates import FLOAT_MARGIN, ScanCandidates, SortedCandidates
 from .limits import MAX_STAGES, Limits, assign_stages
-from .products import Factorizer, multiset_count
+from .products import Factorizer, multiset_count, smooth_mask
 from .target import Target
 from .train import Train, exact_relative_error, make_train, output_direction
 
@@ -151,6 +151,50 @@ class _Search:
                 best = found
         return None if best is None else make_train(best[1], self.target, best[2])
 
+    # -- the exact ratio, first ----------------------------------------------
+    def exact_first(self, max_checks: int = 20_000, max_multiples: int = 20_000_000) -> tuple[int, int] | None:
+        """Settle the group of the exact target ratio ``a/b`` by its multiples ``(g a, g b)``.
+
+        The AM-GM bound of ``(g a, g b)`` grows with ``g``, so the multiples
+        are tried in increasing ``g`` until the bound passes the best train
+        found.  Returns ``(a, b)`` when settled (the windows then leave exact
+        pairs out), None when the target is not rational or the work caps are
+        hit (the windows then treat the exact group like any other).
+        """
+        exact = self.target.rational
+        if exact is None:
+            return None
+        a, b = exact.numerator, exact.denominator
+        largest, k = max(self.limits.teeth), self.k
+        g_low = max(-(-self.smallest ** k // a), -(-self.smallest ** k // b), 1)
+        g_high = min(largest ** k // a, largest ** k // b)
+        if g_high < g_low:  # no train can have this ratio at all
+            return None
+        best, checks = None, 0
+        for start in range(g_low, g_high + 1, 100_000):
+            if start - g_low > max_multiples:
+                return None
+            g = np.arange(start, min(start + 100_000, g_high + 1), dtype=np.int64)
+            bounds = np.floor(k * ((a * g).astype(float) ** (1 / k) + (b * g).astype(float) ** (1 / k)) * (1 - 1e-12))
+            limit = math.inf if best is None else best[0]
+            if bounds[0] + self.idler_floor > limit:
+                break
+            smooth = smooth_mask(a * g, largest) & smooth_mask(b * g, largest)
+            for i in np.flatnonzero(smooth).tolist():
+                limit = math.inf if best is None else best[0]
+                if bounds[i] + self.idler_floor > limit:
+                    break
+                checks += 1
+                if checks > max_checks:
+                    return None
+                found = self._best_for_pair(int(a * g[i]), int(b * g[i]), limit)
+                if found is not None and (best is None or (found[0], found[1]) < (best[0], best[1])):
+                    best = found
+        self.done_ratios.add((a, b))
+        if best is not None:
+            self.found.append(make_train(best[1], self.target, best[2]))
+        return (a, b)
+
     # -- one window --------------------------------------------------------
     def _groups(self, p: np.ndarray, q: np.ndarray, eps: float) -> list[tuple[Fraction, int, int, np.ndarray]]:
         """Unprocessed ratio groups of the window with float error <= eps, in exact order."""
@@ -196,12 +240,14 @@ class _Search:
 
     # -- rounds ------------------------------------------------------------
     def run_sorted(self, generator: SortedCandidates, start_eps: float = 0.0) -> None:
+        if len(self.found) >= self.count:
+            return
         nearest = np.sort(generator.nearest_errors())
         eps_all = generator.max_eps()
         eps, m = start_eps, 32 * self.count
         while True:
             proposal = float(nearest[min(m, len(nearest) - 1)])
-            if proposal <= eps:
+            if not math.isfinite(proposal) or proposal <= eps:
                 positive = nearest[nearest > eps]
                 proposal = max(eps * 8, float(positive[0]) if len(positive) else eps_all)
             eps = min(max(proposal, eps * 8), eps_all)
@@ -212,6 +258,8 @@ class _Search:
 
     def run_scan(self, generator: ScanCandidates) -> float | None:
         """Scan rounds; returns the eps reached if the scan must hand over, None when finished."""
+        if len(self.found) >= self.count:
+            return None
         eps = generator.eps_for_budget(_SCAN_BUDGET)
         while generator.usable(eps):
             if self.window(*generator.within(eps, self.progress), eps):
@@ -270,10 +318,11 @@ def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, 
     teeth = limits.teeth
     use_scan = method == "scan" or (method == "auto" and multiset_count(len(teeth), k) > SORTED_LIMIT)
     start_eps = 0.0
+    exact = search.exact_first() if span[0] <= (target.rational or 0) <= span[1] else None
     if use_scan:
-        reached = search.run_scan(ScanCandidates(teeth, k, target.value, ratio_range))
+        reached = search.run_scan(ScanCandidates(teeth, k, target.value, ratio_range, exact))
         if reached is None:
             return search.results()
         start_eps = reached
-    search.run_sorted(SortedCandidates(teeth, k, target.value, ratio_range), start_eps)
+    search.run_sorted(SortedCandidates(teeth, k, target.value, ratio_range, exact), start_eps)
     return search.results()

@@ -67,11 +67,11 @@ def _in_fresh_process(*args):
     return result
 
 
-def compare_with_exhaustive() -> None:
+def compare_with_exhaustive(low: int, high: int) -> None:
     from gearcad.ratio import make_limits, parse_target, solve_compound
 
     exhaustive = _reference()
-    target, limits = parse_target("29.530588853"), make_limits(10, 120)
+    target, limits = parse_target("29.530588853"), make_limits(low, high)
     solve_compound(parse_target("3.3"), 2, limits, 1)  # warm caches of imports
     start = time.perf_counter()
     repeats = 20
@@ -82,14 +82,15 @@ def compare_with_exhaustive() -> None:
     reference = exhaustive(target, 2, limits, 1)[0]
     reference_time = time.perf_counter() - start
     same = (solver.numerator, solver.denominator, solver.total_teeth) == reference
-    print("2 stages, 10-120 teeth, target 29.530588853")
+    print(f"2 stages, {low}-{high} teeth, target 29.530588853")
     print(f"  solver      {solver_time * 1e3:9.2f} ms  {solver.stages}  error {solver.relative_error:+.3e}")
     print(f"  exhaustive  {reference_time * 1e3:9.2f} ms  {reference}")
     print(f"  speed-up    {reference_time / solver_time:9.0f} x   same optimum: {same}")
 
 
 def main() -> None:
-    compare_with_exhaustive()
+    compare_with_exhaustive(10, 120)
+    compare_with_exhaustive(10, 200)
     print()
     print(f"  {'case':24} {'target':20} {'time s':>8} {'traced MiB':>11} {'max RSS MiB':>12}  best")
     for label, expression, stages, low, high in CASES:
