@@ -28,7 +28,7 @@ from .pair import GearPair, make_pair
 from .profiles import Fabrication, ToothSystem, load_fabrication, load_tooth_system
 from .trainspec import GearSpec, TrainSpec
 
-__all__ = ["Plan", "PlannedGear", "PlannedMesh", "PlannedShaft", "PlannedPlate", "plan_train", "MIN_RIM"]
+__all__ = ["Plan", "PlannedGear", "PlannedMesh", "PlannedShaft", "PlannedPlate", "InputLoad", "plan_train", "MIN_RIM"]
 
 MIN_RIM = 1.0  # modules of material between the bore (or keyway) and the root circle; common practice
 
@@ -54,13 +54,22 @@ class PlannedGear:
 
 
 @dataclass(frozen=True)
+class InputLoad:
+    """A steady load on the input shaft: torque (N·m) and speed (rpm)."""
+
+    torque: float
+    speed: float
+
+
+@dataclass(frozen=True)
 class PlannedMesh:
-    """A meshing pair of the plan, with its analysis and extra findings."""
+    """A meshing pair of the plan, with its analysis, load rating and extra findings."""
 
     names: tuple[str, str]
     pair: GearPair
     analysis: PairAnalysis
     findings: tuple[Finding, ...]
+    rating: object | None = None  # gearcad.strength.PairRating when a load was given
 
 
 @dataclass(frozen=True)
@@ -279,8 +288,42 @@ def _plates(spec: TrainSpec, fab: Fabrication, layout: Layout, shafts: list[Plan
     return tuple(plates)
 
 
-def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE) -> Plan:
-    """Every figure, outline, position and check of the train ``spec``."""
+def _shaft_loads(chain: _Chain, pairs: dict[tuple[str, str], GearPair], load: InputLoad) -> dict[str, tuple[float, float]]:
+    """Torque (N·m) and speed (rpm) of every gear, losses neglected: each mesh scales them by z2 / z1."""
+    loads: dict[str, tuple[float, float]] = {}
+    teeth = {g[0]: g[3].teeth for g in chain.gears}
+    shaft_of = {g[0]: g[4] for g in chain.gears}
+    by_shaft: dict[int, tuple[float, float]] = {0: (load.torque, load.speed)}
+    for _, _, a, b in chain.links:
+        torque, speed = loads.get(a) or by_shaft[shaft_of[a]]
+        loads[a] = (torque, speed)
+        ratio = teeth[b] / teeth[a]
+        loads[b] = (torque * ratio, speed / ratio)
+        by_shaft[shaft_of[b]] = loads[b]
+    return loads
+
+
+def _meshes(chain: _Chain, pairs, fab: Fabrication, spec: TrainSpec, load: InputLoad | None):
+    loads = _shaft_loads(chain, pairs, load) if load else {}
+    material = None
+    if load:
+        from .materials import load_material
+
+        material = load_material(fab.material_profile)
+    for (a, b), pair in pairs.items():
+        rating, extra = None, ()
+        if load:
+            from .strength import PROCESS_CLASS, rate_pair
+
+            torque, speed = loads[a]
+            rating = rate_pair(pair, torque, speed, spec.thickness, material, material,
+                               PROCESS_CLASS[fab.process])
+            extra = rating.findings()
+        yield PlannedMesh((a, b), pair, analyse_pair(pair), extra, rating)
+
+
+def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: InputLoad | None = None) -> Plan:
+    """Every figure, outline, position and check of the train ``spec``; with ``load``, the load ratings too."""
     if not spec.stages:
         raise InputError("the train has no stages: solve its ratio first (gearcad design)")
     system = _system(spec)
@@ -309,7 +352,7 @@ def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE) -> Plan:
         gears.append(PlannedGear(name, role, stage, gear, gspec, shaft, layer, bore, part, cut, rotation[name],
                                  heights[layer], _hub_part(name, gear, gspec, part, tolerance),
                                  gspec.hub.length if gspec.hub else 0.0))
-    meshes = tuple(PlannedMesh((a, b), pair, analyse_pair(pair), ()) for (a, b), pair in pairs.items())
+    meshes = tuple(_meshes(chain, pairs, fab, spec, load))
     ratio = Fraction(1)
     for stage in spec.stages:
         ratio *= Fraction(stage.driver.teeth, stage.driven.teeth)

@@ -60,12 +60,13 @@ def _locate(kind: str, name: str):
     if name.endswith(".toml"):
         path = Path(name)
         if not path.is_file():
-            raise ProfileError(f"{kind} profile file {name!r} does not exist")
+            raise ProfileError(f"{ {'materials': 'material'}.get(kind, kind)} profile file {name!r} does not exist")
         return path, str(path)
     candidate = _profile_dir(kind).joinpath(f"{name}.toml")
     if not candidate.is_file():
         choices = ", ".join(profile_names(kind)) or "none"
-        raise ProfileError(f"unknown {kind} profile {name!r}; choose one of: {choices}")
+        label = {"materials": "material"}.get(kind, kind)
+        raise ProfileError(f"unknown {label} profile {name!r}; choose one of: {choices}")
     return candidate, f"profiles/{kind}/{name}.toml"
 
 
@@ -245,6 +246,7 @@ class Fabrication:
     spacer_hole: float
     note: str = ""
     sources: Mapping[str, str] = field(default_factory=dict, compare=False)
+    material_profile: str = ""
 
 
 _FABRICATION_KEYS = {
@@ -262,13 +264,14 @@ _FABRICATION_KEYS = {
 
 def load_fabrication(name: str = DEFAULT_FABRICATION) -> Fabrication:
     """Load a fabrication profile by name (see :func:`fabrication_names`) or ``.toml`` path."""
-    values, sources, texts = read_profile("fabrication", name, _FABRICATION_KEYS, texts=("title", "process", "material"))
+    values, sources, texts = read_profile("fabrication", name, _FABRICATION_KEYS,
+                                          texts=("title", "process", "material", "material_profile"))
     if texts["process"] not in PROCESSES:
         raise ProfileError(f"fabrication profile {name}: process must be one of {', '.join(PROCESSES)}, got {texts['process']!r}")
     if values["spacer_hole"] >= values["plate_margin"]:
         raise ProfileError(f"fabrication profile {name}: spacer_hole ({values['spacer_hole']:g} mm) must be smaller than plate_margin")
     return Fabrication(name=name, title=texts["title"], process=texts["process"], material=texts["material"],
-                       note=texts.get("note", ""), sources=sources, **values)
+                       note=texts.get("note", ""), sources=sources, material_profile=texts["material_profile"], **values)
 
 
 def fabrication_names() -> list[str]:

@@ -15,8 +15,9 @@ __all__ = ["CAUTIONS", "report_data", "report_markdown", "ratio_data"]
 
 CAUTIONS = (
     "Gears are machinery: guard every pinch point where teeth meet before anything drives the train.",
-    "Strength and wear are not rated by this report; any load figures are estimates for light duty only. "
-    "Powered or load-bearing machinery needs a rating to the applicable standard (ISO 6336, AGMA 2001) by a qualified engineer.",
+    "Load ratings (Lewis bending, Hertz contact), where given, are estimates for light duty only, with typical material "
+    "values to verify with your supplier. Powered or load-bearing machinery needs guarding and a rating to the applicable "
+    "standard (ISO 6336, AGMA 2001) by a qualified engineer.",
     "Laser cutting: never cut PVC or vinyl (they give off chlorine gas); run the extraction and never leave the laser unattended.",
     "Follow local codes and the machine makers' instructions; defer to a qualified engineer where safety depends on the mechanism.",
 )
@@ -67,6 +68,7 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
             "standard_centre_distance": m.pair.standard_centre_distance,
             "working_pressure_angle": math.degrees(m.pair.operating_pressure_angle), "contact_ratio": a.contact_ratio,
             "backlash": a.backlash,
+            "rating": rating_data(m.rating) if m.rating is not None else None,
             "findings": [{"check": f.check, "severity": f.severity, "message": f.message, "value": f.value, "limit": f.limit}
                          for f in a.findings + m.findings],
         })
@@ -90,6 +92,18 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
                      for f in plan.findings],
         "tolerance": plan.tolerance,
         "cautions": list(CAUTIONS) + ([plan.fabrication.note] if plan.fabrication.note else []),
+    }
+
+
+def rating_data(r) -> dict[str, Any]:
+    """A pair's load rating: N, N·m, rpm, m/s, MPa."""
+    return {
+        "torque": r.torque, "speed": r.speed, "face_width": r.face_width, "process": r.process,
+        "pitch_line_speed": r.pitch_line_speed, "velocity_factor": r.velocity_factor,
+        "contact_stress": r.contact_stress, "contact_allowable": r.contact_allowable, "contact_safety": r.contact_safety,
+        "gears": [{"material": g.material.name, "torque": g.torque, "speed": g.speed, "tangential_load": g.tangential_load,
+                   "form_factor": g.lewis.form_factor, "bending_stress": g.bending_stress, "allowable": g.allowable,
+                   "safety_factor": g.safety_factor, "min_safety_factor": g.min_safety} for g in r.gears],
     }
 
 
@@ -131,6 +145,16 @@ def report_markdown(data: Mapping[str, Any]) -> str:
                   f"- centre distance {m['centre_distance']:.4f} mm (reference {m['standard_centre_distance']:.4f} mm)",
                   f"- working pressure angle {m['working_pressure_angle']:.4f} deg; contact ratio {m['contact_ratio']:.4f}; "
                   f"backlash {m['backlash']:.4f} mm", ""]
+        if m["rating"]:
+            r = m["rating"]
+            lines += [f"Load rating (estimates for light duty): input of this mesh {r['gears'][0]['torque']:.4g} N·m at "
+                      f"{r['speed']:.4g} rpm; pitch-line speed {r['pitch_line_speed']:.3g} m/s, velocity factor "
+                      f"{r['velocity_factor']:.3f}; contact stress {r['contact_stress']:.3g} MPa "
+                      f"(allowable {r['contact_allowable']:.3g}, safety {r['contact_safety']:.2f})", ""]
+            lines += _table(["gear", "material", "torque N·m", "Lewis Y", "bending MPa", "allowable MPa", "safety"],
+                            [[n, g["material"], f"{g['torque']:.4g}", f"{g['form_factor']:.3f}", f"{g['bending_stress']:.3g}",
+                              f"{g['allowable']:.3g}", f"{g['safety_factor']:.2f}"] for n, g in zip(m["gears"], r["gears"])])
+            lines.append("")
         lines += [f"- **{x['severity']}** {x['check']}: {x['message']}" for x in m["findings"]]
         lines.append("")
     if data["findings"]:

@@ -7,6 +7,7 @@ import sys
 from pathlib import Path
 
 from ._format import print_json
+from ._load import add_load_options, load_from_args
 
 __all__ = ["add_parser", "run", "add_output_options", "build_and_write"]
 
@@ -35,6 +36,7 @@ def add_output_options(p: argparse.ArgumentParser) -> None:
                    help="STL angular tolerance, degrees (default 15; the chord tolerance governs accuracy)")
     p.add_argument("--no-assembly", action="store_true", help="skip the assembly STEP")
     p.add_argument("--json", action="store_true", help="print report.json's content on stdout instead of the summary")
+    add_load_options(p)
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParser:
@@ -74,7 +76,7 @@ def build_and_write(spec, args: argparse.Namespace, extra_files=()) -> int:
 
     options = _options(args, extra_files)
     folder = Path(args.out) if args.out else Path("output") / spec.name
-    plan = plan_train(spec, tolerance=min(options.dxf_tolerance, 1e-3))
+    plan = plan_train(spec, tolerance=min(options.dxf_tolerance, 1e-3), load=load_from_args(args))
     files = write_plan(plan, folder, options, force=args.force, progress=_note)
     import json
 
@@ -102,13 +104,19 @@ def summary(report: dict, folder: Path, files: dict) -> str:
         worst = max((f["severity"] for f in m["findings"]), key=("ok", "warning", "failure").index)
         lines.append(f"  mesh {m['gears'][0]} / {m['gears'][1]}: centre {m['centre_distance']:.4f} mm, "
                      f"contact ratio {m['contact_ratio']:.3f}, {worst}")
+        if m.get("rating"):
+            r = m["rating"]
+            worst_bend = min(g["safety_factor"] for g in r["gears"])
+            lines.append(f"    load: bending safety {worst_bend:.2f}, contact safety {r['contact_safety']:.2f} "
+                         "(estimates for light duty)")
     for f in report["findings"]:
         if f["severity"] != "ok":
             lines.append(f"  {f['severity']}: {f['message']}")
     lay = report["layout"]
     count = sum(len(v) for v in files.values())
     lines.append(f"  plate {lay['width']:.1f} x {lay['height']:.1f} mm; {count} files in {folder}/ (see report.md)")
-    lines.append("Caution: guard pinch points; strength is not rated; never laser-cut PVC or vinyl. See report.md.")
+    lines.append("Caution: guard pinch points; strength figures are estimates for light duty; never laser-cut PVC or vinyl. "
+                 "See report.md.")
     return "\n".join(lines)
 
 

@@ -7,6 +7,7 @@ import dataclasses
 import math
 
 from ._format import fmt, print_json, table
+from ._load import add_load_options, load_from_args
 
 __all__ = ["add_parser", "run", "analysis_to_dict"]
 
@@ -37,6 +38,13 @@ def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParse
                    help="set the shafts this much further apart than the zero-backlash distance, mm (default 0)")
     p.add_argument("--full-tips", action="store_true", help="keep full tips (no tip shortening)")
     p.add_argument("--json", action="store_true", help="print one JSON object instead of the table")
+    add_load_options(p)
+    p.add_argument("--face-width", type=float, metavar="MM", help="face width for the load rating, mm (default 10 modules, common practice)")
+    p.add_argument("--material", default="acetal", metavar="NAME",
+                   help="material of both gears for the load rating (default acetal; see profiles/materials)")
+    p.add_argument("--mate-material", metavar="NAME", help="material of gear 2, if it differs")
+    p.add_argument("--made-by", choices=("laser", "fdm", "cnc"), default="cnc",
+                   help="how the teeth are made, for the velocity factor (default cnc)")
     return p
 
 
@@ -73,11 +81,39 @@ def run(args: argparse.Namespace) -> int:
     pair = make_pair(z1, z2, args.module, system, shifts=tuple(args.shift) if args.shift else None, centre=args.centre,
                      backlash=args.backlash, centre_allowance=args.centre_allowance, shorten_tips=not args.full_tips)
     analysis = analyse_pair(pair)
+    rating = _rating(args, pair)
+    findings = list(analysis.findings) + (list(rating.findings()) if rating else [])
     if args.json:
-        print_json(analysis_to_dict(analysis))
+        data = analysis_to_dict(analysis)
+        if rating:
+            from ..report import rating_data
+
+            data["rating"] = rating_data(rating)
+            data["findings"] = [finding_to_dict(f) for f in findings]
+            data["verdict"] = _worst(findings)
+        print_json(data)
     else:
-        print(render(analysis))
-    return 1 if analysis.worst == "failure" else 0
+        print(render(analysis, rating))
+    return 1 if _worst(findings) == "failure" else 0
+
+
+def _worst(findings) -> str:
+    order = ("ok", "warning", "failure")
+    return max((f.severity for f in findings), key=order.index, default="ok")
+
+
+def _rating(args: argparse.Namespace, pair):
+    load = load_from_args(args)
+    if load is None:
+        return None
+    from ..materials import load_material
+    from ..strength import PROCESS_CLASS, rate_pair
+    from ..validate import positive
+
+    width = positive(args.face_width, "face width", "mm") if args.face_width is not None else 10 * pair.module
+    first = load_material(args.material)
+    second = load_material(args.mate_material) if args.mate_material else first
+    return rate_pair(pair, load.torque, load.speed, width, first, second, PROCESS_CLASS[args.made_by])
 
 
 def gear_to_dict(fig) -> dict:
@@ -131,8 +167,19 @@ def analysis_to_dict(a) -> dict:
 MARK = {"ok": "ok", "warning": "WARN", "failure": "FAIL"}
 
 
-def render(a) -> str:
-    """The readable table of ``pair``."""
+def _rating_lines(r) -> list[str]:
+    rows = [(f"gear {i}", g.material.title, f"{g.torque:.4g}", f"{g.tangential_load:.4g}", f"{g.lewis.form_factor:.3f}",
+             f"{g.bending_stress:.3g}", f"{g.allowable:.3g}", f"{g.safety_factor:.2f}") for i, g in enumerate(r.gears, 1)]
+    return ["load rating (estimates for light duty; Lewis bending, Hertz contact)",
+            table(rows, header=("", "material", "torque N·m", "load N", "Lewis Y", "bending MPa", "allowable", "safety"),
+                  left=(0, 1)),
+            f"  face width {r.face_width:g} mm; pitch-line speed {r.pitch_line_speed:.3g} m/s; velocity factor "
+            f"{r.velocity_factor:.3f}; contact stress {r.contact_stress:.3g} MPa (allowable {r.contact_allowable:.3g}, "
+            f"safety {r.contact_safety:.2f})", ""]
+
+
+def render(a, rating=None) -> str:
+    """The readable table of ``pair`` (and its load rating, if any)."""
     p = a.pair
     g1, g2 = a.gears
     head = (f"Spur pair {g1.gear.teeth} : {g2.gear.teeth}   module {p.module:g} mm   "
@@ -160,16 +207,19 @@ def render(a) -> str:
         ("transverse contact ratio", f"{a.contact_ratio:.4f}"),
         ("backlash, circumferential / normal", f"{a.backlash:.4f} / {a.normal_backlash:.4f} mm"),
     ]
-    checks = [(MARK[f.severity], f.check, f.message) for f in a.findings]
-    verdict = {"ok": "meshes well", "warning": "meshes, with warnings", "failure": "does NOT mesh as it stands"}[a.worst]
+    findings = list(a.findings) + (list(rating.findings()) if rating else [])
+    checks = [(MARK[f.severity], f.check, f.message) for f in findings]
+    worst = _worst(findings)
+    verdict = {"ok": "meshes well", "warning": "meshes, with warnings", "failure": "does NOT work as it stands"}[worst]
     parts = [
         head, "",
         table(rows, header=("gear figures (mm)", "gear 1", "gear 2")), "",
         table(mesh, header=("mesh", "")), "",
+        *(_rating_lines(rating) if rating else []),
         "checks",
         "\n".join(f"  [{mark:>4}] {name}: {msg}" for mark, name, msg in checks), "",
         f"verdict: the pair {verdict}.",
-        "Caution: gears are machinery. Guard pinch points; strength is not checked here; "
+        "Caution: gears are machinery. Guard pinch points; strength figures are estimates for light duty; "
         "defer to local codes and a qualified engineer for anything that carries load.",
     ]
     return "\n".join(parts)
