@@ -169,3 +169,56 @@ def test_an_interrupted_build_leaves_no_partial_file(tmp_path):
     again = subprocess.run([sys.executable, "-m", "gearcad", "build", train, "--out", str(out), "--formats", "dxf"],
                            capture_output=True, text=True)
     assert again.returncode == 0, again.stderr
+
+
+from fractions import Fraction  # noqa: E402
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@settings(max_examples=15, deadline=None)
+@given(value=st.floats(0.05, 20), stages=st.integers(1, 3), hunting=st.booleans())
+def test_every_solver_result_is_exactly_the_product_of_its_stages(value, stages, hunting):
+    # Arithmetic fact: ratio = prod(driver) / prod(driven), reduced; the error is ratio / target - 1.
+    from gearcad.ratio import RatioQuery, make_limits, parse_target, solve_ratio
+
+    target = parse_target(repr(round(value, 6)))
+    trains = solve_ratio(RatioQuery(target, (stages,), make_limits(10, 40, 6, hunting), 3))
+    for t in trains:
+        exact = Fraction(1)
+        for driver, driven in t.stages:
+            exact *= Fraction(driver, driven)
+        assert Fraction(t.numerator, t.denominator) == exact
+        assert t.relative_error == pytest.approx(float(exact / target.approx - 1), rel=1e-9, abs=1e-15)
+
+
+def _pointed_shift(teeth: int) -> float:
+    """The profile shift at which the tip thickness reaches 0 (bisection on ISO 21771's tip thickness)."""
+    from gearcad.geometry.gear import SpurGear
+
+    lo, hi = -0.5, 3.9
+    for _ in range(60):
+        mid = (lo + hi) / 2
+        try:
+            SpurGear.make(teeth, 1.0, shift=mid)
+            lo = mid
+        except Exception:
+            hi = mid
+    return lo
+
+
+@settings(max_examples=12, deadline=None)
+@given(teeth=st.integers(6, 120))
+def test_just_inside_the_domain_valid_geometry_just_outside_an_error(teeth):
+    # Reference for validity: shapely (GEOS) is_valid on the outline polygon.
+    import shapely
+
+    from gearcad.errors import GearcadError
+    from gearcad.geometry import SpurGear, outline
+
+    x = _pointed_shift(teeth)
+    inside = SpurGear.make(teeth, 1.0, shift=x - 0.02)
+    assert shapely.Polygon(outline(inside)).is_valid
+    with pytest.raises(GearcadError):
+        SpurGear.make(teeth, 1.0, shift=x + 0.02)
