@@ -3,28 +3,17 @@
 from __future__ import annotations
 
 import json
-import math
 import sys
 from typing import Any, Iterable, Sequence
+
+from ..jsonable import jsonable
 
 __all__ = ["print_json", "table", "fmt"]
 
 
-def _clean(value: Any) -> Any:
-    if isinstance(value, float):
-        return value if math.isfinite(value) else None
-    if isinstance(value, dict):
-        return {k: _clean(v) for k, v in value.items()}
-    if isinstance(value, (list, tuple)):
-        return [_clean(v) for v in value]
-    if hasattr(value, "item"):  # numpy scalars
-        return _clean(value.item())
-    return value
-
-
 def print_json(obj: Any) -> None:
     """Print ``obj`` as indented JSON on stdout (the only thing on stdout with --json)."""
-    sys.stdout.write(json.dumps(_clean(obj), indent=2, ensure_ascii=False) + "\n")
+    sys.stdout.write(json.dumps(jsonable(obj), indent=2, ensure_ascii=False) + "\n")
 
 
 def fmt(value: float, digits: int = 4) -> str:

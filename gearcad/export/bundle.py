@@ -14,6 +14,7 @@ from pathlib import Path
 from typing import Callable
 
 from ..errors import ExportError
+from ..jsonable import jsonable
 from .atomic import atomic_write
 
 __all__ = ["BuildOptions", "write_plan", "prepare_folder", "MARKER", "FORMATS"]
@@ -118,7 +119,7 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
     data = report_data(plan, files)
     data["warnings"] = sorted(set(warnings))
     atomic_write(put("report", "json", "report.json"),
-                 lambda tmp: tmp.write_text(json.dumps(_finite(data), indent=2, ensure_ascii=False) + "\n", encoding="utf-8"))
+                 lambda tmp: tmp.write_text(json.dumps(jsonable(data), indent=2, ensure_ascii=False) + "\n", encoding="utf-8"))
     atomic_write(put("report", "md", "report.md"), lambda tmp: tmp.write_text(report_markdown(data), encoding="utf-8"))
     for stale in set(old) - set(written):
         (folder / stale).unlink(missing_ok=True)
@@ -155,13 +156,3 @@ def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
 
             note("assembly")
             assembly_step(items, put("assembly", "step", "assembly.step"), name=plan.spec.name)
-
-
-def _finite(value):
-    if isinstance(value, float):
-        return value if math.isfinite(value) else None
-    if isinstance(value, dict):
-        return {k: _finite(v) for k, v in value.items()}
-    if isinstance(value, (list, tuple)):
-        return [_finite(v) for v in value]
-    return value
