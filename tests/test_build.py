@@ -242,3 +242,15 @@ def test_an_unwritable_output_path_is_refused(tmp_path, capsys):
     blocker.write_text("x")
     assert main(["build", str(train), "--out", str(blocker / "sub"), "--formats", "dxf"]) == 2
     assert "cannot create output folder" in capsys.readouterr().err
+
+
+def test_dxf_layers_can_be_renamed_for_the_cutter(tmp_path):
+    train = tmp_path / "one.toml"
+    train.write_text('name = "one"\nmodule = 1\nthickness = 2\n[[stage]]\ndriver = 20\ndriven = 30\n')
+    out = tmp_path / "o"
+    assert main(["build", str(train), "--out", str(out), "--formats", "dxf", "--dxf-layers", "outer=CUT:1,marking=ENGRAVE:2"]) == 0
+    doc = ezdxf.readfile(out / "s1-driver.dxf")  # ezdxf reads the layer table back
+    layers = {layer.dxf.name: layer.dxf.color for layer in doc.layers}
+    assert layers["CUT"] == 1 and layers["ENGRAVE"] == 2
+    kinds = {(e.dxftype(), e.dxf.layer) for e in doc.modelspace()}
+    assert ("LWPOLYLINE", "CUT") in kinds and ("TEXT", "ENGRAVE") in kinds

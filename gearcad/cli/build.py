@@ -28,6 +28,9 @@ def add_output_options(p: argparse.ArgumentParser) -> None:
                    help="DXF contours as tangent arcs (default), straight segments, or SPLINE entities")
     p.add_argument("--dxf-version", choices=("R2010", "R2000", "R2013", "R2018", "R12"), default="R2010",
                    help="DXF version (default R2010; R12 for old controllers, carries no units)")
+    p.add_argument("--dxf-layers", default="", metavar="SPEC",
+                   help="rename DXF layers for your cutter: role=NAME[:COLOUR],... with roles outer, inner, marking "
+                        "(defaults CUT_OUTER:5, CUT_INNER:6, MARKING:3; colours are AutoCAD colour indices 1-255)")
     p.add_argument("--dxf-tolerance", type=float, default=0.001, metavar="MM",
                    help="largest distance between the DXF arcs and the true curves, mm (default 0.001)")
     p.add_argument("--stl-tolerance", type=float, default=0.02, metavar="MM",
@@ -61,7 +64,28 @@ def _options(args: argparse.Namespace, extra_files=()):
                         dxf_tolerance=in_range(args.dxf_tolerance, "--dxf-tolerance", 1e-5, 0.5, "mm"),
                         stl_tolerance=in_range(args.stl_tolerance, "--stl-tolerance", 1e-3, 1.0, "mm"),
                         stl_angle=in_range(args.stl_angle, "--stl-angle", 0.5, 45.0, "degrees"),
-                        assembly=not args.no_assembly, extra_files=tuple(extra_files))
+                        assembly=not args.no_assembly, extra_files=tuple(extra_files),
+                        dxf_layers=_layer_spec(args.dxf_layers))
+
+
+def _layer_spec(text: str) -> tuple[tuple[str, str, int], ...]:
+    """``outer=CUT:5,marking=TEXT`` -> ((role, name, colour), ...); colours default to the role's."""
+    from ..errors import InputError
+    from ..export.dxf import DEFAULT_LAYERS, resolve_layers
+
+    out = []
+    for item in (part.strip() for part in text.split(",") if part.strip()):
+        role, _, rest = item.partition("=")
+        name, _, colour = rest.partition(":")
+        if role not in DEFAULT_LAYERS or not name:
+            raise InputError(f"--dxf-layers entry {item!r} must read role=NAME[:COLOUR] with role outer, inner or marking")
+        try:
+            number = int(colour) if colour else DEFAULT_LAYERS[role].colour
+        except ValueError:
+            raise InputError(f"--dxf-layers colour {colour!r} must be a whole number from 1 to 255") from None
+        out.append((role, name, number))
+    resolve_layers({r: (n, c) for r, n, c in out})  # the writer's own checks, before any file
+    return tuple(out)
 
 
 def _note(message: str) -> None:

@@ -36,6 +36,7 @@ class BuildOptions:
     assembly: bool = True
     preview: bool = True
     extra_files: tuple[tuple[str, str], ...] = field(default=())  # (name, text) written as they are
+    dxf_layers: tuple[tuple[str, str, int], ...] = ()  # (role, layer name, colour) remappings
 
 
 def prepare_folder(folder: Path, force: bool) -> list[str]:
@@ -93,7 +94,8 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
         drawing = part_drawing(g.cut_part, options.dxf_mode, options.dxf_tolerance, at, height)
         if "dxf" in options.formats:
             note(f"DXF {g.name}")
-            warnings += write_dxf(drawing, put(g.name, "dxf", f"{g.name}.dxf"), version=options.dxf_version)
+            warnings += write_dxf(drawing, put(g.name, "dxf", f"{g.name}.dxf"), version=options.dxf_version,
+                                  layers=_layers(options))
         if "svg" in options.formats:
             if options.dxf_mode == "splines":  # SVG takes arcs, not spline fit points
                 drawing = part_drawing(g.cut_part, "arcs", options.dxf_tolerance, at, height)
@@ -104,7 +106,8 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
                                min(3.0, margin / 3))
         if "dxf" in options.formats:
             note(f"DXF {p.name}")
-            warnings += write_dxf(drawing, put(p.name, "dxf", f"{p.name}.dxf"), version=options.dxf_version)
+            warnings += write_dxf(drawing, put(p.name, "dxf", f"{p.name}.dxf"), version=options.dxf_version,
+                                  layers=_layers(options))
         if "svg" in options.formats:
             write_svg(drawing, put(p.name, "svg", f"{p.name}.svg"))
     if "step" in options.formats or "stl" in options.formats:
@@ -125,6 +128,10 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
         (folder / stale).unlink(missing_ok=True)
     atomic_write(folder / MARKER, lambda tmp: tmp.write_text("\n".join(sorted(written)) + "\n", encoding="utf-8"))
     return files
+
+
+def _layers(options: BuildOptions) -> dict[str, tuple[str, int]] | None:
+    return {role: (name, colour) for role, name, colour in options.dxf_layers} or None
 
 
 def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
