@@ -52,7 +52,7 @@ class GearFigures:
 
     gear: SpurGear
     undercut: bool
-    min_shift: float  # least profile shift without undercut (coefficient)
+    min_shift: float  # least nominal profile shift without undercut, with this gear's thinning (coefficient)
     form_diameter: float  # where the generated involute begins
     active_root_diameter: float  # lowest point the mate's tip reaches
     working_diameter: float
@@ -104,7 +104,10 @@ def _gear_figures(pair: GearPair, index: int, working_diameter: float) -> GearFi
     rb = gear.base_diameter / 2
     reach = pair.centre_distance * math.sin(pair.operating_pressure_angle) - _roll_length(mate.tip_diameter / 2, mate.base_diameter / 2)
     active_root = 2 * math.sqrt(rb ** 2 + reach ** 2) if reach >= 0 else gear.base_diameter
-    x_min = min_shift_without_undercut(gear.teeth, gear.pressure_angle, gear.system.straight_flank_depth)
+    # The least nominal shift without undercut: the cutter feeds deeper by the thinning, so the
+    # generating shift x_E = x - thinning / (2 m tan alpha) must reach x_min.
+    x_min = (min_shift_without_undercut(gear.teeth, gear.pressure_angle, gear.system.straight_flank_depth)
+             + gear.shift - gear.generating_shift)
     return GearFigures(gear, profile.undercut, x_min, profile.form_diameter, active_root, working_diameter)
 
 

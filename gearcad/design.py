@@ -21,16 +21,21 @@ from .trainspec import GearSpec, SolverSpec, StageSpec, TrainSpec
 __all__ = ["balanced_shifts", "spec_with_stages", "solve_train_spec", "solve"]
 
 
-def balanced_shifts(driver: int, driven: int, system: ToothSystem) -> tuple[float, float]:
-    """Profile shifts (driver, driven) that keep both gears free of undercut, summing to zero where possible."""
+def balanced_shifts(driver: int, driven: int, system: ToothSystem, thinning: float = 0.0) -> tuple[float, float]:
+    """Profile shifts (driver, driven) that keep both gears free of undercut, summing to zero where possible.
+
+    ``thinning`` is the tooth-thinning allowance per gear as a shift coefficient
+    (``thinning_mm / (2 m tan(alpha))``): the cutter feeds that much deeper.
+    """
     depth, alpha = system.straight_flank_depth, system.pressure_angle
-    need = [max(0.0, math.ceil(min_shift_without_undercut(z, alpha, depth) * 100 - 1e-9) / 100) for z in (driver, driven)]
+    need = [max(0.0, math.ceil((min_shift_without_undercut(z, alpha, depth) + thinning) * 100 - 1e-9) / 100)
+            for z in (driver, driven)]
     if need == [0.0, 0.0]:
         return 0.0, 0.0
     small, big = (0, 1) if driver <= driven else (1, 0)
     shifts = [0.0, 0.0]
     shifts[small] = need[small]
-    mate_least = min_shift_without_undercut((driver, driven)[big], alpha, depth)
+    mate_least = min_shift_without_undercut((driver, driven)[big], alpha, depth) + thinning
     shifts[big] = -need[small] if -need[small] >= mate_least + 0.01 else need[big]
     return shifts[0], shifts[1]
 
@@ -40,12 +45,16 @@ def spec_with_stages(spec: TrainSpec, train, system: ToothSystem | None = None) 
     system = system or load_tooth_system(spec.tooth_system)
     if spec.pressure_angle is not None:
         system = dataclasses.replace(system, pressure_angle=math.radians(spec.pressure_angle))
+    from .profiles import load_fabrication
+
+    # Each gear is thinned by about half the profile's backlash (gearcad.pair.make_pair).
+    thinning = load_fabrication(spec.fabrication).backlash / 2 / (2 * spec.module * math.tan(system.pressure_angle))
     stages = []
     for k, (driver, driven) in enumerate(train.stages):
         if train.shifts is not None:
             x1, x2 = train.shifts[k]
         else:
-            x1, x2 = balanced_shifts(driver, driven, system)
+            x1, x2 = balanced_shifts(driver, driven, system, thinning)
         idler = GearSpec(train.idler) if train.idler is not None and k == len(train.stages) - 1 else None
         stages.append(StageSpec(GearSpec(driver, shift=x1), GearSpec(driven, shift=x2), idler=idler))
     coaxial = bool(spec.solver.coaxial) if spec.solver else spec.coaxial

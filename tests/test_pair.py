@@ -179,3 +179,18 @@ def test_impossible_teeth_are_refused(kwargs):
 
 def test_reference_centre_distance():
     assert standard_centre_distance(12, 24, 3) == 54.0
+
+
+def test_least_shift_accounts_for_the_tooth_thinning():
+    # The cutter feeds deeper by the thinning: x_E = x - s_thin / (2 m tan alpha) (ISO 21771 generating shift),
+    # so the nominal shift that avoids undercut rises by the same amount; the outline agrees.
+    from gearcad.geometry import SpurGear, tooth_profile
+
+    pair = make_pair(12, 40, 2, A, shifts=(0.3, 0.0), backlash=0.2)
+    fig = analyse_pair(pair).gears[0]
+    x_min = min_shift_without_undercut(12, A.pressure_angle, A.straight_flank_depth)
+    thinning = pair.gear1.thinning / (2 * 2 * math.tan(A.pressure_angle))
+    assert fig.min_shift == pytest.approx(x_min + thinning, abs=1e-12)
+    for x, undercut in ((fig.min_shift - 1e-4, True), (fig.min_shift + 1e-4, False)):
+        gear = SpurGear(12, 2, A, shift=x, thinning=pair.gear1.thinning)
+        assert tooth_profile(gear).undercut is undercut
