@@ -1,0 +1,78 @@
+"""Summing trains: exact where compound trains cannot be, optimal against exhaustive search, kinematics by sympy."""
+
+import itertools
+from fractions import Fraction
+
+import pytest
+import sympy
+
+from gearcad.ratio import parse_target
+from gearcad.summing import solve_summing, summing_ratio
+
+
+def willis_carrier_speed(sun_speed, ring_speed, sun, ring):
+    """Carrier speed from Willis's equation (w_s - w_c) / (w_r - w_c) = -z_r / z_s, solved by sympy."""
+    w_c = sympy.Symbol("w_c")
+    solution = sympy.solve(sympy.Eq((sun_speed - w_c) * sun, -(ring_speed - w_c) * ring), w_c)
+    return Fraction(str(solution[0]))
+
+
+def test_a_large_prime_numerator_is_reached_exactly_by_the_mean_differential():
+    # 127/200: 127 is a prime above the 100-tooth limit, so no compound train of 12..100 teeth hits it
+    # (a compound ratio's numerator is a product of tooth counts); the sum of two stages does.
+    best = solve_summing(parse_target("127/200"), list(range(12, 101)), "mean", 1)[0]
+    assert best.ratio == Fraction(127, 200) and best.relative_error == 0.0
+    rho_a = Fraction(*best.path_a) * best.sign_a
+    rho_b = Fraction(*best.path_b) * best.sign_b
+    assert (rho_a + rho_b) / 2 == Fraction(127, 200)  # the mean differential: carrier at the mean of the sides
+
+
+def test_a_large_prime_denominator_is_reached_exactly_by_a_planetary_differential():
+    # 1/131: 131 is prime and above the tooth limit; with the set's z_s + z_r = 2 (z_s + z_p) = 262 it is reached.
+    best = solve_summing(parse_target("1/131"), list(range(12, 101)), "planetary", 1, planets=2)[0]
+    assert best.ratio == Fraction(1, 131)
+    sun, planet, ring, planets = best.planetary
+    assert ring == sun + 2 * planet and (sun + ring) % planets == 0  # coaxial, assembly conditions
+    carrier = willis_carrier_speed(Fraction(*best.path_a) * best.sign_a, Fraction(*best.path_b) * best.sign_b, sun, ring)
+    assert carrier == Fraction(1, 131)  # sympy's solution of Willis's equation agrees
+
+
+def exhaustive_mean(target: Fraction, teeth, count):
+    results = {}
+    for a, b, c, d in itertools.product(teeth, repeat=4):
+        if max(a, b) > 6 * min(a, b) or max(c, d) > 6 * min(c, d):
+            continue
+        for sa, sb in itertools.product((-1, 1), repeat=2):
+            ratio = summing_ratio("mean", Fraction(a, b) * sa, Fraction(c, d) * sb)
+            if ratio <= 0:
+                continue
+            key = ratio
+            teeth_count = a + b + c + d
+            if key not in results or teeth_count < results[key]:
+                results[key] = teeth_count
+    ranked = sorted(results.items(), key=lambda kv: (abs(kv[0] / target - 1), kv[1]))
+    return [(r, t) for r, t in ranked[:count]]
+
+
+@pytest.mark.parametrize("expression", ["0.3137", "29.530588853/100", "1/7.77", "2.414213"])
+def test_mean_kind_matches_exhaustive_search_on_a_small_range(expression):
+    target = parse_target(expression)
+    teeth = list(range(10, 19))
+    found = solve_summing(target, teeth, "mean", 3)
+    expected = exhaustive_mean(target.approx, teeth, 3)  # reference: every combination, in the test
+    assert [(t.ratio, t.total_teeth) for t in found] == expected
+
+
+def test_closest_when_exact_is_impossible():
+    # 1/127 by the mean kind: the denominator 2 b d has no factor 127, so only an approximation exists.
+    best = solve_summing(parse_target("1/127"), list(range(12, 101)), "mean", 1)[0]
+    assert best.ratio != Fraction(1, 127) and abs(best.relative_error) < 1e-3
+
+
+def test_bad_kind_and_planet_count():
+    from gearcad.errors import InputError
+
+    with pytest.raises(InputError, match="summing kind"):
+        solve_summing(parse_target("2"), list(range(12, 30)), "bevel")
+    with pytest.raises(InputError, match="at least 2 planets"):
+        solve_summing(parse_target("2"), list(range(12, 30)), "planetary", planets=1)
