@@ -34,6 +34,19 @@ comments; Z (one gear), ZxN (N gears), A-B (every count from A to B), A-B/S
 (every S-th count); e.g. 20x2,25-60/5,127.  A name of an existing file is read
 as a file.
 
+Planetary sets (--kind planetary): a sun, N equal planets (simple, or with
+--stepped two gears on each planet shaft: the first meshes the sun, the second
+the ring) and a ring, one of sun, ring and carrier fixed (--fixed), one of the
+others the input (--input), the third the output.  The search is exact over
+sun and planet teeth in --min-teeth..--max-teeth and the ring up to
+--max-ring-teeth; every set shown meets the coaxial condition (one module;
+with --shift-limit X profile shift within +-X may equalise the centre
+distances), the assembly condition (planets equally spaced) and the neighbour
+condition (adjacent planet tips clear by --neighbour-margin modules).  Its
+ratio comes from the kinematic model (Willis' equation on each mesh); a
+negative ratio is reported as output direction "opposite".  --max-stage-ratio
+does not apply to planetary sets; --hunting asks every mesh to hunt.
+
 Exit codes: 0 found; 1 nothing within --tolerance (or no train at all);
 2 bad input."""
 
@@ -52,8 +65,49 @@ def add_parser(subparsers: Any) -> argparse.ArgumentParser:
     parser.add_argument("--fractions", action="store_true",
                         help="list the continued-fraction convergents and semiconvergents of the target and mark "
                              "those that a train of at most N stages realises exactly")
+    _add_planetary_options(parser)
     parser.add_argument("--json", action="store_true", help="print JSON on stdout instead of a table")
     return parser
+
+
+#: The defaults of gearcad.planetary, written out so that building the parser imports neither sympy nor numpy
+#: (tests/test_ratio_planetary_cli.py checks that they agree).
+MEMBERS = ("sun", "ring", "carrier")
+DEFAULT_PLANETS, MAX_PLANETS, DEFAULT_MAX_RING_TEETH, NEIGHBOUR_MARGIN = 3, 24, 200, 0.5
+
+
+def _add_planetary_options(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("--kind", choices=("compound", "planetary"), default="compound",
+                        help="a compound train (default) or a planetary set")
+    parser.add_argument("--planets", type=int, metavar="N",
+                        help=f"planetary: number of planets, 1 to {MAX_PLANETS} (default {DEFAULT_PLANETS})")
+    parser.add_argument("--fixed", choices=MEMBERS, help="planetary: the member held still (default ring)")
+    parser.add_argument("--input", choices=MEMBERS, dest="input_member",
+                        help="planetary: the input member, turned by the drive (default: the first of sun, ring, "
+                             "carrier not fixed); the output is the third")
+    parser.add_argument("--stepped", action="store_true",
+                        help="planetary: stepped planets (one gear meshes the sun, another the ring)")
+    parser.add_argument("--max-ring-teeth", type=int, metavar="Z",
+                        help=f"planetary: most teeth of the ring (default {DEFAULT_MAX_RING_TEETH})")
+    parser.add_argument("--neighbour-margin", type=float, metavar="M",
+                        help=f"planetary: least clearance between adjacent planets' tips, modules (default "
+                             f"{NEIGHBOUR_MARGIN:g}, common practice)")
+
+
+_PLANETARY_ONLY = (("planets", "--planets"), ("fixed", "--fixed"), ("input_member", "--input"),
+                   ("stepped", "--stepped"), ("max_ring_teeth", "--max-ring-teeth"),
+                   ("neighbour_margin", "--neighbour-margin"))
+_COMPOUND_ONLY = (("stages", "--stages"), ("coaxial", "--coaxial"), ("inventory", "--inventory"),
+                  ("fractions", "--fractions"))
+
+
+def _refuse(args: argparse.Namespace, options: Sequence[tuple[str, str]], kind: str) -> None:
+    from ..errors import InputError
+
+    for attr, flag in options:
+        if getattr(args, attr, None) not in (None, False):
+            raise InputError(f"{flag} does not apply to --kind {kind}; allowed: "
+                             f"{'--kind planetary' if kind == 'compound' else '--kind compound'} for it")
 
 
 class _LazyProgress:
@@ -189,6 +243,10 @@ def run(args: argparse.Namespace) -> int:
     from ..ratio.solve import solve_ratio, tolerance_value, within_tolerance
     from ..ratio.target import parse_target
 
+    if args.kind == "planetary":
+        _refuse(args, _COMPOUND_ONLY, "planetary")
+        return _run_planetary(args)
+    _refuse(args, _PLANETARY_ONLY, "compound")
     target = parse_target(args.target)
     limits = _limits(args)
     if args.tolerance is not None:
@@ -210,4 +268,101 @@ def run(args: argparse.Namespace) -> int:
         return 0
     print(_heading(target, limits))
     print(table(_rows(shown), _HEADER))
+    return 0
+
+
+# --- planetary sets -----------------------------------------------------------------------------------------
+
+def _planetary_query(args: argparse.Namespace, target: Any) -> Any:
+    from ..planetary import NEIGHBOUR_MARGIN, make_arrangement, make_query
+    from ..profiles import load_tooth_system
+    from ..ratio.solve import count_value
+
+    system = load_tooth_system()
+    default_count = 5 if args.tolerance is not None else 1
+    count = count_value(args.count if args.count is not None else default_count)
+    margin = args.neighbour_margin if args.neighbour_margin is not None else NEIGHBOUR_MARGIN
+    return make_query(target, _limits(args), make_arrangement(args.fixed or "ring", args.input_member),
+                      args.planets, args.stepped, args.max_ring_teeth, args.shift_limit, margin, count,
+                      system.pressure_angle, system.addendum)
+
+
+def _planetary_json(result: Any) -> dict[str, Any]:
+    import math
+
+    s, c, a = result.set, result.conditions, result.arrangement
+    return {"kind": "planetary", "numerator": result.numerator, "denominator": result.denominator,
+            "ratio": result.ratio, "relative_error": result.relative_error, "direction": result.direction,
+            "stages": [], "idler": None, "total_teeth": result.total_teeth,
+            "members": {"sun": s.sun, "planet": s.planet, "planet_ring": s.planet_ring, "ring": s.ring,
+                        "planets": s.planets, "fixed": a.fixed, "input": a.input, "output": a.output},
+            "conditions": {f.check: {"severity": f.severity, "value": f.value, "limit": f.limit,
+                                     "message": f.message} for f in c.findings},
+            "centre_distance_modules": c.centre_distance,
+            "shifts": dict(zip(("sun", "planet_sun", "planet_ring", "ring"), c.shifts)),
+            "planet_angles_degrees": [round(math.degrees(x), 9) for x in c.angles]}
+
+
+def _planetary_rows(results: Sequence[Any]) -> list[list[str]]:
+    rows = []
+    for i, r in enumerate(results, 1):
+        s, c = r.set, r.conditions
+        planet = f"{s.planet}/{s.planet_ring}" if s.stepped else str(s.planet)
+        shifts = "-" if not any(c.shifts) else " ".join(f"{x:+.3f}" for x in c.shifts)
+        rows.append([str(i), str(s.sun), planet, str(s.ring), str(s.planets), f"{r.numerator}/{r.denominator}",
+                     f"{r.ratio:.15g}", f"{r.relative_error * 1e6:+.6f}", f"{r.relative_error:+.3e}", r.direction,
+                     str(r.total_teeth), f"{c.centre_distance:.4f}", f"{c.neighbour.value:.3f}", shifts])
+    return rows
+
+
+_PLANETARY_HEADER = ["#", "sun", "planet", "ring", "N", "exact ratio", "decimal", "error ppm", "rel. error", "output",
+                     "teeth", "centre/m", "tip gap/m", "shifts s p p r"]
+
+
+def _planetary_heading(query: Any) -> str:
+    kind = "stepped planets (sun-side/ring-side teeth)" if query.stepped else "simple planets"
+    limits = query.limits
+    parts = [f"sun and planet teeth {limits.min_teeth}-{limits.max_teeth}", f"ring <= {query.max_ring_teeth}",
+             f"shift within +-{query.shift_limit:g} (ISO sign)" if query.shift_limit else "no shift",
+             f"planet tips clear by >= {query.margin:g} module"]
+    if limits.hunting:
+        parts.append("hunting meshes")
+    if limits.exclude:
+        parts.append("excluding " + ",".join(map(str, sorted(limits.exclude))))
+    return (f"target {query.target.expression} = {query.target.digits(20)}\n"
+            f"planetary set, {kind}, {query.planets} planets: {query.arrangement.describe()}\n"
+            f"limits: {', '.join(parts)}\n"
+            f"every set: coaxial, equally spaced planets assemble, neighbours clear "
+            f"(centre distance and tip gap in modules; shifts sun, planet at sun, planet at ring, ring)\n"
+            f"ratio = output turns per input turn, from the kinematic model of the set")
+
+
+def _run_planetary(args: argparse.Namespace) -> int:
+    from ..planetary import solve_planetary
+    from ..ratio.solve import tolerance_value, within_tolerance
+    from ..ratio.target import parse_target
+
+    target = parse_target(args.target)
+    if args.tolerance is not None:
+        tolerance_value(args.tolerance)
+    query = _planetary_query(args, target)
+    results = solve_planetary(query)
+    shown = within_tolerance(results, args.tolerance) if args.tolerance is not None else results
+    head = {"expression": target.expression, "value": target.value}
+    if not shown:
+        if args.json:
+            print_json({"target": head, "results": [], "best": _planetary_json(results[0]) if results else None})
+            return 1
+        print(_planetary_heading(query))
+        if not results:
+            print("no set meets the three conditions within the limits")
+        else:
+            print(f"no set within tolerance {args.tolerance:g}; the best found:")
+            print(table(_planetary_rows(results[:1]), _PLANETARY_HEADER))
+        return 1
+    if args.json:
+        print_json({"target": head, "results": [_planetary_json(r) for r in shown]})
+        return 0
+    print(_planetary_heading(query))
+    print(table(_planetary_rows(shown), _PLANETARY_HEADER))
     return 0
