@@ -23,6 +23,7 @@ from .geometry.gear import SpurGear
 from .geometry.generate import DEFAULT_TOLERANCE
 from .geometry.offset import min_concave_radius, offset_loop
 from .geometry.shape import Loop, Part, circle_loop, gear_loop, rounded_rectangle
+from .kinematics import direction_of
 from .layout import Layout, LayoutGear, LayoutProblem, Link, mesh_phase, shaft_sides, solve_layout
 from .pair import GearPair, make_pair
 from .profiles import Fabrication, ToothSystem, load_fabrication, load_tooth_system
@@ -353,13 +354,20 @@ def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: Inpu
                                  heights[layer], _hub_part(name, gear, gspec, part, tolerance),
                                  gspec.hub.length if gspec.hub else 0.0))
     meshes = tuple(_meshes(chain, pairs, fab, spec, load))
-    ratio = Fraction(1)
-    for stage in spec.stages:
-        ratio *= Fraction(stage.driver.teeth, stage.driven.teeth)
-    direction = "opposite" if len(chain.links) % 2 else "same"
+    signed = _network_ratio(chain)
+    ratio, direction = abs(signed), direction_of(signed)
     plates = _plates(spec, fab, layout, shafts, tolerance, heights[-1])
     return Plan(spec, system, fab, tuple(gears), meshes, tuple(shafts), plates, layout, ratio, direction, tolerance,
                 tuple(extra))
+
+
+def _network_ratio(chain: _Chain) -> Fraction:
+    """Signed output turns per input turn of the chain, from the kinematic model (Willis on every mesh)."""
+    from .kinematics import Gear, Mesh, make_network, network_ratio
+
+    gears = [Gear(name, f"shaft{shaft}", gspec.teeth) for name, _, _, gspec, shaft, _ in chain.gears]
+    meshes = [Mesh(a, b) for _, _, a, b in chain.links]
+    return network_ratio(make_network(gears, meshes), (), "shaft0", f"shaft{chain.shafts - 1}")
 
 
 def _shaft_name(index: int, count: int) -> str:

@@ -78,11 +78,11 @@ def output_direction(meshes: int) -> str:
 def make_train(stages: Sequence[tuple[int, int]], target: Target, idler: int | None = None,
                shifts: tuple[tuple[float, float], ...] | None = None) -> Train:
     """Build a :class:`Train`, computing its reduced ratio, error and direction."""
-    ratio = Fraction(1)
-    for driver, driven in stages:
-        ratio *= Fraction(driver, driven)
+    from ..kinematics import compound_ratio, direction_of
+
+    signed = compound_ratio(stages, idler)  # the one kinematic model computes every reported ratio
+    ratio = abs(signed)
     error = exact_relative_error(ratio.numerator, ratio.denominator, target)
-    meshes = len(stages) + (1 if idler is not None else 0)
     total = sum(d + n for d, n in stages) + (idler or 0)
     return Train(tuple((int(d), int(n)) for d, n in stages), ratio.numerator, ratio.denominator,
-                 float(error), output_direction(meshes), idler, total, shifts)
+                 float(error), direction_of(signed), idler, total, shifts)
