@@ -31,7 +31,7 @@ import numpy as np
 
 from .errors import InputError
 
-__all__ = ["SummingTrain", "solve_summing", "summing_ratio", "KINDS"]
+__all__ = ["SummingTrain", "solve_summing", "summing_ratio", "summing_network", "KINDS"]
 
 KINDS = ("mean", "planetary")
 
@@ -187,3 +187,35 @@ def _best_for(best, kind, block, goal, sign_a, sign_b, a, b, values, order, sort
         key = (exact, plan)
         if key not in best or train.total_teeth < best[key].total_teeth:
             best[key] = train
+
+
+def summing_network(train: SummingTrain):
+    """The kinematic network of a summing train: input shaft, two paths, the differential.
+
+    Returns ``(network, fixed, input, output)`` for :func:`gearcad.kinematics.network_ratio`.
+    The mean differential is a spur differential: two equal sun gears (one per
+    side member) and meshing pairs of planets on the output carrier (a planet
+    of one pair meshes one sun and its mate, the mate the other sun), which makes
+    the carrier turn at the mean of the side members (Willis on each mesh).
+    """
+    from .kinematics import Gear, Mesh, make_network
+
+    gears: list = []
+    meshes: list = []
+    for name, (driver, driven), sign in (("a", train.path_a, train.sign_a), ("b", train.path_b, train.sign_b)):
+        gears += [Gear(f"{name}-driver", "input", driver), Gear(f"{name}-driven", f"side-{name}", driven)]
+        if sign > 0:  # an idler between them turns the side member with the input
+            gears.append(Gear(f"{name}-idler", f"idler-{name}", max(driver, driven)))
+            meshes += [Mesh(f"{name}-driver", f"{name}-idler"), Mesh(f"{name}-idler", f"{name}-driven")]
+        else:
+            meshes.append(Mesh(f"{name}-driver", f"{name}-driven"))
+    if train.kind == "planetary":
+        sun, planet, ring, _ = train.planetary
+        gears += [Gear("sun", "side-a", sun), Gear("planet", "planet", planet), Gear("ring", "side-b", ring)]
+        meshes += [Mesh("sun", "planet", carrier="carrier"), Mesh("planet", "ring", carrier="carrier", internal=True)]
+    else:
+        gears += [Gear("sun-a", "side-a", 20), Gear("sun-b", "side-b", 20),
+                  Gear("planet-a", "planet-a", 10), Gear("planet-b", "planet-b", 10)]
+        meshes += [Mesh("sun-a", "planet-a", carrier="carrier"), Mesh("planet-a", "planet-b", carrier="carrier"),
+                   Mesh("planet-b", "sun-b", carrier="carrier")]
+    return make_network(gears, meshes), (), "input", "carrier"

@@ -38,7 +38,8 @@ BAD_TOOTH_PROFILE = ('title = "x"\n[pressure_angle]\nvalue = 20\nunit = "degree"
 CASES = [
     # pair: tooth counts
     (lambda p: ["pair", "0", "20", "-m", "1"], "tooth count must be from 3"),
-    (lambda p: ["pair", "-5", "20", "-m", "1"], "tooth count must be from 3"),
+    (lambda p: ["pair", "-5", "20", "-m", "1"], "tooth count z1 must be positive"),
+    (lambda p: ["pair", "20", "-15", "-m", "1"], "ring"),
     (lambda p: ["pair", "12.5", "20", "-m", "1"], "whole number"),
     (lambda p: ["pair", "1e9", "20", "-m", "1"], "whole number"),
     (lambda p: ["pair", "20", "20000", "-m", "1"], "tooth count must be from 3 to 10000"),

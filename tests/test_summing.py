@@ -76,3 +76,29 @@ def test_bad_kind_and_planet_count():
         solve_summing(parse_target("2"), list(range(12, 30)), "bevel")
     with pytest.raises(InputError, match="at least 2 planets"):
         solve_summing(parse_target("2"), list(range(12, 30)), "planetary", planets=1)
+
+
+def test_every_summing_result_agrees_with_the_kinematic_model():
+    # The network model (Willis on every mesh, exact rationals) against the search's own formula.
+    from gearcad.kinematics import network_ratio
+    from gearcad.summing import summing_network
+
+    for kind, planets in (("mean", 3), ("planetary", 3)):
+        for t in solve_summing(parse_target("0.4142"), list(range(12, 41)), kind, 3, planets=planets):
+            assert network_ratio(*summing_network(t)) == t.ratio
+
+
+def test_ratio_command_kind_summing(capsys):
+    import json
+
+    from gearcad.cli import main
+
+    assert main(["ratio", "127/200", "--kind", "summing", "--min-teeth", "12", "--max-teeth", "100", "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    best = data["results"][0]
+    for key in ("numerator", "denominator", "ratio", "relative_error", "direction", "stages", "idler", "total_teeth"):
+        assert key in best
+    assert (best["numerator"], best["denominator"], best["relative_error"]) == (127, 200, 0.0)
+    assert best["kind"] == "summing" and best["members"]["differential"] == "mean"
+    assert main(["ratio", "2", "--kind", "summing", "--stepped"]) == 2
+    assert "--stepped does not apply" in capsys.readouterr().err

@@ -9,13 +9,18 @@ import math
 from ._format import fmt, print_json, table
 from ._load import add_load_options, load_from_args
 
-__all__ = ["add_parser", "run", "analysis_to_dict"]
+__all__ = ["add_parser", "run", "analysis_to_dict", "internal_to_dict", "render_internal"]
 
 DESCRIPTION = """\
-Figures and checks of two external spur gears in mesh.  Give the tooth counts
-and the module; optionally the profile shifts, or a centre distance that the
-shifts must reach.  Exit 0: no check failed; 1: a check failed; 2: bad input.
-Defaults: 20 degrees, ISO 53 profile A, tips shortened to keep the bottom clearance."""
+Figures and checks of two spur gears in mesh.  Give the tooth counts and the
+module; optionally the profile shifts, or a centre distance that the shifts
+must reach.  Exit 0: no check failed; 1: a check failed; 2: bad input.
+Defaults: 20 degrees, ISO 53 profile A, tips shortened to keep the bottom clearance.
+
+Internal pair (a pinion inside a ring gear): give the ring's teeth negative, as
+ISO 21771 does, e.g.  gearcad pair 16 -24 -m 3 --shift 0 -0.516
+Shifts keep ISO 21771's sign (positive towards the tooth tips, for the ring
+towards its axis).  The ring is cut by a pinion-type cutter (--cutter-teeth)."""
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParser:
@@ -23,7 +28,7 @@ def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParse
     p = subparsers.add_parser("pair", help="figures and checks of a meshing pair", description=DESCRIPTION,
                               formatter_class=argparse.RawDescriptionHelpFormatter)
     p.add_argument("z1", help="teeth of gear 1 (the pinion, usually)")
-    p.add_argument("z2", help="teeth of gear 2")
+    p.add_argument("z2", help="teeth of gear 2; negative for a ring gear (internal pair, ISO 21771 sign)")
     p.add_argument("--module", "-m", required=True, type=float, metavar="MM", help="module, mm")
     p.add_argument("--pressure-angle", type=float, metavar="DEG",
                    help="pressure angle, degrees (10 to 35; default: the tooth system's)")
@@ -37,6 +42,10 @@ def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParse
     p.add_argument("--centre-allowance", type=float, default=0.0, metavar="MM",
                    help="set the shafts this much further apart than the zero-backlash distance, mm (default 0)")
     p.add_argument("--full-tips", action="store_true", help="keep full tips (no tip shortening)")
+    p.add_argument("--cutter-teeth", type=int, metavar="Z0",
+                   help="internal pair: teeth of the ring's pinion-type cutter (default: nearest 20 that cuts cleanly)")
+    p.add_argument("--cutter-shift", type=float, default=0.0, metavar="X0",
+                   help="internal pair: profile shift of the ring's cutter (default 0)")
     p.add_argument("--json", action="store_true", help="print one JSON object instead of the table")
     add_load_options(p)
     p.add_argument("--face-width", type=float, metavar="MM", help="face width for the load rating, mm (default 10 modules, common practice)")
@@ -78,6 +87,16 @@ def run(args: argparse.Namespace) -> int:
 
     system = _system(args.system, args.pressure_angle)
     z1, z2 = as_int(args.z1, "tooth count z1"), as_int(args.z2, "tooth count z2")
+    if z1 < 0:
+        from ..errors import InputError
+
+        raise InputError(f"tooth count z1 must be positive (only gear 2 may be a ring, given negative), got {z1}")
+    if z2 < 0:
+        return _run_internal(args, system, z1, -z2)
+    if args.cutter_teeth is not None or args.cutter_shift:
+        from ..errors import InputError
+
+        raise InputError("--cutter-teeth and --cutter-shift apply to a ring gear only (give z2 negative)")
     pair = make_pair(z1, z2, args.module, system, shifts=tuple(args.shift) if args.shift else None, centre=args.centre,
                      backlash=args.backlash, centre_allowance=args.centre_allowance, shorten_tips=not args.full_tips)
     analysis = analyse_pair(pair)
@@ -95,6 +114,113 @@ def run(args: argparse.Namespace) -> int:
     else:
         print(render(analysis, rating))
     return 1 if _worst(findings) == "failure" else 0
+
+
+def _run_internal(args: argparse.Namespace, system, z1: int, z2: int) -> int:
+    """``pair`` for a pinion of ``z1`` teeth inside a ring of ``z2`` teeth."""
+    from ..errors import InputError
+    from ..internal import analyse_internal_pair, make_internal_pair
+
+    if args.centre is not None:
+        raise InputError("--centre is not available for an internal pair; give the shifts with --shift X1 X2")
+    if load_from_args(args) is not None:
+        raise InputError("the load rating (--torque, --power) is not available for an internal pair")
+    pair = make_internal_pair(z1, z2, args.module, system, shifts=tuple(args.shift) if args.shift else None,
+                              backlash=args.backlash, centre_allowance=args.centre_allowance,
+                              shorten_tips=not args.full_tips, cutter_teeth=args.cutter_teeth, cutter_shift=args.cutter_shift)
+    analysis = analyse_internal_pair(pair)
+    if args.json:
+        print_json(internal_to_dict(analysis))
+    else:
+        print(render_internal(analysis))
+    return 1 if analysis.worst == "failure" else 0
+
+
+def internal_to_dict(a) -> dict:
+    """JSON form of an internal pair analysis: the keys of :func:`analysis_to_dict` plus ``internal: true``."""
+    p = a.pair
+    pin, ring = a.gears
+    gears = []
+    for fig in a.gears:
+        g = fig.gear
+        gears.append({
+            "teeth": g.teeth, "module": g.module, "shift": g.shift,
+            "reference_diameter": g.reference_diameter, "base_diameter": g.base_diameter,
+            "working_diameter": fig.working_diameter, "tip_diameter": g.tip_diameter, "root_diameter": g.root_diameter,
+            "form_diameter": fig.form_diameter, "active_diameter": fig.active_diameter,
+            "tooth_thickness": g.tooth_thickness, "tip_thickness": g.tip_thickness, "thinning": g.thinning,
+            "tip_shortening": g.tip_shortening, "undercut": fig.undercut,
+            "min_shift": fig.min_shift if fig is pin else None,
+        })
+    r = p.ring
+    gears[1].update({"internal": True, "iso_teeth": r.iso_teeth, "nominal_root_diameter": r.nominal_root_diameter,
+                     "cutter_teeth": r.cutter_teeth, "cutter_shift": r.cutter_shift,
+                     "cutting_centre_distance": r.cutting_centre_distance, "outer_diameter": r.outer_diameter})
+    return {
+        "internal": True,
+        "module": p.module,
+        "pressure_angle": math.degrees(p.pressure_angle),
+        "tooth_system": p.pinion.system.name,
+        "standard_centre_distance": p.standard_centre_distance,
+        "centre_distance": p.centre_distance,
+        "centre_modification": p.centre_modification,
+        "working_pressure_angle": math.degrees(p.operating_pressure_angle),
+        "contact_ratio": a.contact_ratio,
+        "backlash": a.backlash,
+        "normal_backlash": a.normal_backlash,
+        "least_tooth_difference": a.least_difference,
+        "gears": gears,
+        "findings": [finding_to_dict(f) for f in a.findings],
+        "verdict": a.worst,
+    }
+
+
+def render_internal(a) -> str:
+    """The readable table of ``pair`` for an internal pair."""
+    p = a.pair
+    pin, ring = a.gears
+    r = p.ring
+    head = (f"Internal pair {pin.gear.teeth} : {r.teeth} (ring; ISO 21771 z2 = {r.iso_teeth})   module {p.module:g} mm   "
+            f"pressure angle {math.degrees(p.pressure_angle):g} deg   {p.pinion.system.title}")
+    rows = [
+        ("teeth", str(pin.gear.teeth), str(r.teeth)),
+        ("profile shift x (ISO sign)", f"{pin.gear.shift:+.4f}", f"{r.shift:+.4f}"),
+        ("reference diameter", fmt(pin.gear.reference_diameter), fmt(r.reference_diameter)),
+        ("base diameter", fmt(pin.gear.base_diameter), fmt(r.base_diameter)),
+        ("working pitch diameter", fmt(pin.working_diameter), fmt(ring.working_diameter)),
+        ("tip diameter (ring: inner)", fmt(pin.gear.tip_diameter), fmt(r.tip_diameter)),
+        ("root diameter (ring: outer, cut)", fmt(pin.gear.root_diameter), fmt(r.root_diameter)),
+        ("form diameter (involute ends)", fmt(pin.form_diameter), fmt(ring.form_diameter)),
+        ("tooth thickness at reference (arc)", fmt(pin.gear.tooth_thickness), fmt(r.tooth_thickness)),
+        ("tip thickness (arc)", fmt(pin.gear.tip_thickness), fmt(r.tip_thickness)),
+        ("least shift without undercut", f"{pin.min_shift:+.4f}", "-"),
+        ("undercut", "yes" if pin.undercut else "no", "-"),
+    ]
+    least = "none found" if a.least_difference is None else str(a.least_difference)
+    mesh = [
+        ("reference centre distance", f"{fmt(p.standard_centre_distance)} mm"),
+        ("centre distance", f"{fmt(p.centre_distance)} mm"),
+        ("centre-distance modification y", f"{p.centre_modification:+.4f}"),
+        ("working pressure angle", f"{math.degrees(p.operating_pressure_angle):.4f} deg"),
+        ("transverse contact ratio", f"{a.contact_ratio:.4f}"),
+        ("backlash, circumferential / normal", f"{a.backlash:.4f} / {a.normal_backlash:.4f} mm"),
+        ("least tooth-count difference", least),
+        ("ring cutter: teeth, shift", f"{r.cutter_teeth}, {r.cutter_shift:+.4f}"),
+        ("cutting centre distance", f"{fmt(r.cutting_centre_distance)} mm"),
+        ("blank outer diameter", f"{fmt(r.outer_diameter)} mm"),
+    ]
+    checks = [(MARK[f.severity], f.check, f.message) for f in a.findings]
+    verdict = {"ok": "meshes well", "warning": "meshes, with warnings", "failure": "does NOT work as it stands"}[a.worst]
+    return "\n".join([
+        head, "",
+        table(rows, header=("gear figures (mm)", "pinion", "ring")), "",
+        table(mesh, header=("mesh", "")), "",
+        "checks",
+        "\n".join(f"  [{mark:>4}] {name}: {msg}" for mark, name, msg in checks), "",
+        f"verdict: the pair {verdict}.",
+        "Caution: gears are machinery. Guard pinch points; strength figures are estimates for light duty; "
+        "defer to local codes and a qualified engineer for anything that carries load.",
+    ])
 
 
 def _worst(findings) -> str:

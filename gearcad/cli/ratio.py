@@ -66,6 +66,9 @@ def add_parser(subparsers: Any) -> argparse.ArgumentParser:
                         help="list the continued-fraction convergents and semiconvergents of the target and mark "
                              "those that a train of at most N stages realises exactly")
     _add_planetary_options(parser)
+    from ._summing import add_summing_options
+
+    add_summing_options(parser)
     parser.add_argument("--json", action="store_true", help="print JSON on stdout instead of a table")
     return parser
 
@@ -77,8 +80,9 @@ DEFAULT_PLANETS, MAX_PLANETS, DEFAULT_MAX_RING_TEETH, NEIGHBOUR_MARGIN = 3, 24, 
 
 
 def _add_planetary_options(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("--kind", choices=("compound", "planetary"), default="compound",
-                        help="a compound train (default) or a planetary set")
+    parser.add_argument("--kind", choices=("compound", "planetary", "summing"), default="compound",
+                        help="a compound train (default), a planetary set, or a summing train (two paths and a "
+                             "differential: reaches fractions with primes above the largest tooth count)")
     parser.add_argument("--planets", type=int, metavar="N",
                         help=f"planetary: number of planets, 1 to {MAX_PLANETS} (default {DEFAULT_PLANETS})")
     parser.add_argument("--fixed", choices=MEMBERS, help="planetary: the member held still (default ring)")
@@ -244,9 +248,15 @@ def run(args: argparse.Namespace) -> int:
     from ..ratio.target import parse_target
 
     if args.kind == "planetary":
-        _refuse(args, _COMPOUND_ONLY, "planetary")
+        _refuse(args, _COMPOUND_ONLY + (("differential", "--differential"),), "planetary")
         return _run_planetary(args)
-    _refuse(args, _PLANETARY_ONLY, "compound")
+    if args.kind == "summing":
+        from ._summing import run_summing
+
+        _refuse(args, _COMPOUND_ONLY + (("fixed", "--fixed"), ("input_member", "--input"), ("stepped", "--stepped")),
+                "summing")
+        return run_summing(args, _limits(args))
+    _refuse(args, _PLANETARY_ONLY + (("differential", "--differential"),), "compound")
     target = parse_target(args.target)
     limits = _limits(args)
     if args.tolerance is not None:

@@ -1,0 +1,72 @@
+"""``gearcad ratio --kind summing``: two paths recombined in a differential."""
+
+from __future__ import annotations
+
+import argparse
+
+from ._format import print_json, table
+
+__all__ = ["add_summing_options", "run_summing"]
+
+
+def add_summing_options(parser: argparse.ArgumentParser) -> None:
+    """``--differential``: what recombines the two paths."""
+    parser.add_argument("--differential", choices=("mean", "planetary"),
+                        help="summing: a differential whose carrier turns at the mean of its sides (default), or a "
+                             "planetary set with the sun and the ring driven and the carrier the output")
+
+
+def _json(train, check) -> dict:
+    paths = [{"driver": d, "driven": n, "idler": s > 0} for (d, n), s in ((train.path_a, train.sign_a), (train.path_b, train.sign_b))]
+    members = {"differential": train.kind, "paths": paths, "kinematic_check": str(check)}
+    if train.planetary:
+        sun, planet, ring, count = train.planetary
+        members.update({"sun": sun, "planet": planet, "ring": ring, "planets": count})
+    return {"numerator": train.ratio.numerator, "denominator": train.ratio.denominator, "ratio": float(train.ratio),
+            "relative_error": train.relative_error, "direction": "same",
+            "stages": [{"driver": p["driver"], "driven": p["driven"]} for p in paths], "idler": None,
+            "total_teeth": train.total_teeth, "kind": "summing", "members": members}
+
+
+def run_summing(args: argparse.Namespace, limits) -> int:
+    """Solve, check every result with the kinematic model, print."""
+    from ..errors import GearcadError
+    from ..kinematics import network_ratio
+    from ..ratio.solve import tolerance_value, within_tolerance
+    from ..ratio.target import parse_target
+    from ..summing import solve_summing, summing_network
+
+    target = parse_target(args.target)
+    if args.tolerance is not None:
+        tolerance_value(args.tolerance)
+    count = args.count or 5
+    kind = args.differential or "mean"
+    trains = solve_summing(target, sorted(limits.teeth), kind, count, float(limits.max_stage_ratio),
+                           args.max_ring_teeth or 200, args.planets or 3, args.neighbour_margin or 0.5)
+    checked = []
+    for t in trains:
+        model = network_ratio(*summing_network(t))
+        if model != t.ratio:  # the one kinematic model has the last word
+            raise GearcadError(f"internal check failed: the network gives {model}, the search {t.ratio}")
+        checked.append((t, model))
+    shown = [(t, m) for t, m in checked if args.tolerance is None or abs(t.relative_error) <= args.tolerance]
+    if args.json:
+        print_json({"target": {"expression": target.expression, "value": target.value},
+                    "results": [_json(t, m) for t, m in shown]})
+        return 0 if shown else 1
+    print(f"target {target.expression} = {target.digits(20)}")
+    print(f"summing train: two one-stage paths from the input into a {kind} differential; "
+          "ratio = output (carrier) turns per input turn")
+    rows = []
+    for n, (t, _) in enumerate(shown, start=1):
+        path = lambda p, s: f"{p[0]}/{p[1]}{' +idler' if s > 0 else ''}"  # noqa: E731
+        diff = "mean" if not t.planetary else "sun {0} planet {1} ring {2} x{3}".format(*t.planetary)
+        rows.append((str(n), path(t.path_a, t.sign_a), path(t.path_b, t.sign_b), diff,
+                     f"{t.ratio.numerator}/{t.ratio.denominator}", f"{float(t.ratio):.15g}",
+                     f"{t.relative_error * 1e6:+.6f}", str(t.total_teeth)))
+    print(table(rows, ("#", "path A", "path B", "differential", "exact ratio", "decimal", "error ppm", "teeth"),
+                left=(1, 2, 3)))
+    if not shown:
+        print(f"nothing within tolerance {args.tolerance:g}")
+        return 1
+    return 0
