@@ -82,7 +82,8 @@ from dataclasses import dataclass  # noqa: E402
 class Scene:
     """Everything a preview draws, placed in plate coordinates (mm).
 
-    ``gears``: (name, layer, (N, 2) outline, (x, y) centre, tip radius);
+    ``gears``: (name, layer, (N, 2) outline, (x, y) centre, tip radius); ``gear_holes``: each gear's
+    shaped holes (a ring's teeth) placed the same way;
     ``plate``: (N, 2) outline; ``holes``: (x, y, diameter); ``links``: centre
     lines of the meshing pairs.
     """
@@ -92,11 +93,12 @@ class Scene:
     gears: tuple[tuple[str, int, np.ndarray, tuple[float, float], float], ...]
     links: tuple[tuple[tuple[float, float], tuple[float, float]], ...]
     title: str
+    gear_holes: tuple[tuple[np.ndarray, ...], ...] = ()
 
 
 def plate_scene(plan) -> Scene:
     """The plate with every gear drawn in place (turned to its assembly phase)."""
-    from .plan import placed_outline
+    from .plan import placed_holes, placed_outline
 
     gears = tuple((g.name, g.layer, placed_outline(g, plan), (plan.shafts[g.shaft].x, plan.shafts[g.shaft].y),
                    g.gear.tip_diameter / 2) for g in plan.gears)
@@ -104,4 +106,5 @@ def plate_scene(plan) -> Scene:
     links = tuple((centre[a], centre[b]) for a, b in (m.names for m in plan.meshes))
     holes = tuple(dict.fromkeys(plan.plates[0].part.circles + plan.plates[1].part.circles))
     title = f"{plan.spec.title or plan.spec.name}: ratio {plan.ratio.numerator}/{plan.ratio.denominator}"
-    return Scene(plan.plates[0].part.outer.points(), holes, gears, links, title)
+    gear_holes = tuple(tuple(placed_holes(g, plan)) for g in plan.gears)
+    return Scene(plan.plates[0].part.outer.points(), holes, gears, links, title, gear_holes)

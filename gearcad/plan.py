@@ -52,6 +52,7 @@ class PlannedGear:
     z: float  # lower face in the assembly, mm
     hub: Part | None = None  # boss on the upper face (solid models only), drawn size
     hub_length: float = 0.0  # mm
+    label_at: tuple[float, float] | None = None  # where the marking text goes (default: in the rim), mm
 
 
 @dataclass(frozen=True)
@@ -325,6 +326,10 @@ def _meshes(chain: _Chain, pairs, fab: Fabrication, spec: TrainSpec, load: Input
 
 def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: InputLoad | None = None) -> Plan:
     """Every figure, outline, position and check of the train ``spec``; with ``load``, the load ratings too."""
+    if spec.planetary is not None:
+        from .epicyclic import plan_planetary
+
+        return plan_planetary(spec, tolerance, load)
     if not spec.stages:
         raise InputError("the train has no stages: solve its ratio first (gearcad design)")
     system = _system(spec)
@@ -379,7 +384,15 @@ def _shaft_name(index: int, count: int) -> str:
 def placed_outline(gear: PlannedGear, plan: Plan, cut: bool = False) -> np.ndarray:
     """The gear's outline turned and moved to its shaft on the plate, (N, 2) mm."""
     part = gear.cut_part if cut else gear.part
-    pts = part.outer.points()
+    return _placed(part.outer.points(), gear, plan)
+
+
+def placed_holes(gear: PlannedGear, plan: Plan) -> list[np.ndarray]:
+    """The gear's shaped holes (a ring's teeth, a D-flat bore) turned and moved like its outline, mm."""
+    return [_placed(h.points(), gear, plan) for h in gear.part.holes]
+
+
+def _placed(pts: np.ndarray, gear: PlannedGear, plan: Plan) -> np.ndarray:
     c, s = math.cos(gear.rotation), math.sin(gear.rotation)
     shaft = plan.shafts[gear.shaft]
     return pts @ np.array([[c, -s], [s, c]]).T + (shaft.x, shaft.y)

@@ -29,12 +29,13 @@ from pathlib import Path
 from typing import Any
 
 from .errors import InputError
-from .trainspec import GearSpec, Hub, Keyway, SolverSpec, StageSpec, TrainSpec
+from .trainspec import GearSpec, Hub, Keyway, PlanetarySpec, SolverSpec, StageSpec, TrainSpec
 
 __all__ = ["parse_train", "read_train", "train_to_toml"]
 
 TOP_KEYS = {"name", "title", "target", "module", "thickness", "tooth_system", "pressure_angle", "fabrication",
-            "bore", "coaxial", "stage", "solve"}
+            "bore", "coaxial", "stage", "solve", "planetary"}
+PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit"}
 STAGE_KEYS = {"driver", "driven", "module", "idler"}
 GEAR_KEYS = {"teeth", "shift", "bore", "flat", "keyway", "hub"}
 SOLVE_KEYS = {"ratio", "stages", "min_teeth", "max_teeth", "max_stage_ratio", "direction", "hunting", "coaxial", "exclude"}
@@ -167,6 +168,25 @@ def _solver(data: dict, ctx: _Context) -> SolverSpec | None:
                       coaxial=_flag(s, "coaxial", ctx, "solve"), exclude=tuple(exclude), **ints)
 
 
+def _planetary(data: dict, ctx: _Context) -> PlanetarySpec | None:
+    if "planetary" not in data:
+        return None
+    p = data["planetary"]
+    if not isinstance(p, dict):
+        raise ctx.error("must be a [planetary] table", "planetary")
+    _check_keys(p, PLANETARY_KEYS, ctx, "planetary")
+    counts = {}
+    for key in ("sun", "planet", "ring", "planets", "planet_ring"):
+        if key in p:
+            if isinstance(p[key], bool) or not isinstance(p[key], int):
+                raise ctx.error(f"must be a whole number, got {p[key]!r}", key, "planetary")
+            counts[key] = p[key]
+        elif key in ("sun", "planet", "ring"):
+            raise ctx.error("missing (a tooth count)", key, "planetary")
+    return PlanetarySpec(fixed=_text(p, "fixed", ctx, "ring", "planetary"), input=_text(p, "input", ctx, None, "planetary"),
+                         shift_limit=_number(p, "shift_limit", ctx, "planetary"), **counts)
+
+
 def parse_train(text: str, filename: str = "train file") -> TrainSpec:
     """Parse a train file's text; raise :class:`InputError` naming file, line and key."""
     ctx = _Context(text, filename)
@@ -185,7 +205,8 @@ def parse_train(text: str, filename: str = "train file") -> TrainSpec:
             module=_number(data, "module", ctx, required=True), thickness=_number(data, "thickness", ctx, required=True),
             stages=_stages(data, ctx), tooth_system=_text(data, "tooth_system", ctx, "iso53-a"),
             pressure_angle=_number(data, "pressure_angle", ctx), fabrication=_text(data, "fabrication", ctx, "laser-3mm-acrylic"),
-            bore=_number(data, "bore", ctx, default=3.0), coaxial=_flag(data, "coaxial", ctx), solver=_solver(data, ctx))
+            bore=_number(data, "bore", ctx, default=3.0), coaxial=_flag(data, "coaxial", ctx), solver=_solver(data, ctx),
+            planetary=_planetary(data, ctx))
     except InputError as exc:
         if str(exc).startswith(filename):
             raise
@@ -238,6 +259,16 @@ def train_to_toml(spec: TrainSpec) -> str:
     lines += [f"fabrication = {_quoted(spec.fabrication)}", f"bore = {spec.bore!r}"]
     if spec.coaxial:
         lines.append("coaxial = true")
+    if spec.planetary is not None:
+        p = spec.planetary
+        lines += ["", "[planetary]", f"sun = {p.sun}", f"planet = {p.planet}", f"ring = {p.ring}", f"planets = {p.planets}"]
+        if p.planet_ring is not None:
+            lines.append(f"planet_ring = {p.planet_ring}")
+        lines.append(f"fixed = {_quoted(p.fixed)}")
+        if p.input is not None:
+            lines.append(f"input = {_quoted(p.input)}")
+        if p.shift_limit is not None:
+            lines.append(f"shift_limit = {p.shift_limit!r}")
     for stage in spec.stages:
         lines += ["", "[[stage]]", f"driver = {_gear_toml(stage.driver)}", f"driven = {_gear_toml(stage.driven)}"]
         if stage.module is not None:

@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 from .errors import InputError
 from .validate import as_int, finite
 
-__all__ = ["GearSpec", "StageSpec", "TrainSpec", "Hub", "Keyway", "SolverSpec"]
+__all__ = ["GearSpec", "StageSpec", "TrainSpec", "Hub", "Keyway", "SolverSpec", "PlanetarySpec"]
 
 
 @dataclass(frozen=True)
@@ -82,6 +82,21 @@ class SolverSpec:
 
 
 @dataclass(frozen=True)
+class PlanetarySpec:
+    """A planetary set: teeth of sun, planet (at the sun), ring, planet gear at the ring (stepped), the planets,
+    the fixed and input members (the third is the output), and the largest profile shift allowed."""
+
+    sun: int
+    planet: int
+    ring: int
+    planets: int = 3
+    planet_ring: int | None = None
+    fixed: str = "ring"
+    input: str | None = None
+    shift_limit: float | None = None
+
+
+@dataclass(frozen=True)
 class TrainSpec:
     """A whole train: defaults for every gear and the stages.
 
@@ -100,6 +115,7 @@ class TrainSpec:
     bore: float = 3.0
     coaxial: bool = False
     solver: SolverSpec | None = field(default=None, compare=False)
+    planetary: PlanetarySpec | None = None
 
     def __post_init__(self) -> None:
         if not self.name or any(c in self.name for c in '/\\:*?"<>|') or self.name.startswith("."):
@@ -110,5 +126,5 @@ class TrainSpec:
             raise InputError(f"module must be greater than 0 mm, got {self.module!r}")
         if not (math.isfinite(self.bore) and self.bore > 0):
             raise InputError(f"bore must be greater than 0 mm, got {self.bore!r}")
-        if not self.stages and self.solver is None:
+        if not self.stages and self.solver is None and self.planetary is None:
             raise InputError("a train needs at least one [[stage]], or a [solve] table to find them")

@@ -146,7 +146,7 @@ def summary(report: dict, folder: Path, files: dict) -> str:
 
 def solved(spec):
     """``spec`` itself, or, when it has no stages but a [solve] table, the solved spec and its train file text."""
-    if spec.stages:
+    if spec.stages or spec.planetary is not None:
         return spec, ()
     from ..design import solve_train_spec
     from ..trainfile import train_to_toml

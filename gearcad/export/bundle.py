@@ -62,6 +62,8 @@ def prepare_folder(folder: Path, force: bool) -> list[str]:
 
 
 def _label_height(plan, gear) -> tuple[tuple[float, float], float]:
+    if gear.label_at is not None:
+        return gear.label_at, 2.0
     root = gear.gear.root_diameter / 2
     hole = gear.bore / 2
     rim = max(root - hole, 0.5)

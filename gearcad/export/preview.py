@@ -28,10 +28,16 @@ def write_preview(scene, path: str | os.PathLike[str], dpi: int = 110) -> Path:
         ax.add_patch(Polygon(scene.plate, closed=True, facecolor="#f4f1ea", edgecolor="#555555", linewidth=1.0))
         for x, y, d in scene.holes:
             ax.add_patch(Circle((x, y), d / 2, facecolor="white", edgecolor="#555555", linewidth=0.6))
-        for name, layer, outline, (cx, cy), tip in scene.gears:
+        holes_of = scene.gear_holes or tuple(() for _ in scene.gears)
+        order = sorted(range(len(scene.gears)), key=lambda i: not holes_of[i])  # rings first, gears on top
+        for i in order:
+            name, layer, outline, (cx, cy), tip = scene.gears[i]
             colour = LAYER_COLOURS[layer % len(LAYER_COLOURS)]
             ax.add_patch(Polygon(outline, closed=True, facecolor=colour, alpha=0.18, edgecolor=colour, linewidth=0.6))
-            ax.annotate(name, (cx, cy - 0.55 * tip), ha="center", va="center", fontsize=7, color=colour)
+            for hole in holes_of[i]:
+                ax.add_patch(Polygon(hole, closed=True, facecolor="#f4f1ea", edgecolor=colour, linewidth=0.5))
+            at = (cx, cy - 0.55 * tip) if not holes_of[i] else (cx, cy - 0.93 * tip)
+            ax.annotate(name, at, ha="center", va="center", fontsize=7, color=colour)
         for (x0, y0), (x1, y1) in scene.links:
             ax.plot([x0, x1], [y0, y1], color="#333333", linewidth=0.6, linestyle="--")
         ax.set_aspect("equal")

@@ -1,0 +1,176 @@
+"""The plan of a planetary set: sun, planets and ring in place and in phase, the carrier and the plates.
+
+Pure.  The sun, the ring and the carrier share one axis at the plate's centre;
+the planets sit at the assembly angles on the working centre distance.  Each
+planet is turned so its teeth sit in the sun's spaces (external mesh), and the
+ring so its spaces take the planets' teeth (internal mesh: a planet turned by
+``d`` turns the ring by ``d z_p / z_r`` the same way); the assembly condition
+makes that ring phase the same for every planet, which the plan checks.
+Lengths in mm, angles in radians.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from fractions import Fraction
+
+import numpy as np
+
+from .checks import Finding, analyse_pair
+from .errors import GeometryError, InputError
+from .geometry.bore import bore_loop
+from .geometry.internal import RingGear, ring_part
+from .geometry.offset import offset_loop
+from .geometry.shape import Part, circle_loop, gear_loop, rounded_rectangle
+from .internal import analyse_internal_pair, make_internal_pair
+from .kinematics import direction_of
+from .layout import Layout, mesh_phase
+from .pair import make_pair
+from .plan import InputLoad, Plan, PlannedGear, PlannedMesh, PlannedPlate, PlannedShaft, _system
+from .planetary import check_set, make_arrangement, make_set, set_ratio
+from .profiles import Fabrication, load_fabrication
+from .trainspec import GearSpec, TrainSpec
+
+__all__ = ["plan_planetary", "ring_phase"]
+
+RING_BOLTS = 6  # mounting holes in the rim of a fixed ring; common practice
+
+
+def ring_phase(planet_rotation: float, planet_teeth: int, ring_teeth: int, direction: float) -> float:
+    """Rotation (radians) of a ring (tooth 0 on +x) so that a planet at ``direction`` meshes it.
+
+    With a planet tooth on the line from the ring's centre through the planet's,
+    the ring shows a space there (its spaces lie half a pitch from its teeth);
+    turning the planet by ``d`` turns the ring by ``d z_p / z_r`` the same way.
+    """
+    offset = planet_rotation - direction
+    return direction - math.pi / ring_teeth + offset * planet_teeth / ring_teeth
+
+
+def _same_phase(angles: list[float], teeth: int) -> bool:
+    pitch = 2 * math.pi / teeth
+    first = angles[0]
+    return all(abs((a - first + pitch / 2) % pitch - pitch / 2) < 1e-9 for a in angles)
+
+
+def _cut(part: Part, fab: Fabrication, tolerance: float) -> Part:
+    if not fab.kerf:
+        return part
+    half = fab.kerf / 2
+    return Part(part.name, offset_loop(part.outer, half, tolerance), tuple(offset_loop(h, half, tolerance) for h in part.holes),
+                tuple((x, y, d - fab.kerf) for x, y, d in part.circles), part.label, part.symmetry)
+
+
+def _gear_part(name: str, gear, bore: float, fab: Fabrication, tolerance: float) -> tuple[Part, Part]:
+    hole = bore + fab.bore_clearance
+    part = Part(name, gear_loop(gear, tolerance), (), ((0.0, 0.0, hole),),
+                f"{name}  z{gear.teeth}  m{gear.module:g}  x{gear.shift:+.3f}", symmetry=gear.teeth)
+    return part, _cut(part, fab, tolerance)
+
+
+def _ring_part(ring: RingGear, fixed: bool, fab: Fabrication, tolerance: float) -> tuple[Part, Part, float]:
+    base = ring_part(ring, tolerance, name="ring")
+    bolt_circle = (ring.root_diameter / 2 + ring.outer_diameter / 2) / 2
+    bolts = tuple((bolt_circle * math.cos(2 * math.pi * k / RING_BOLTS + math.pi / RING_BOLTS),
+                   bolt_circle * math.sin(2 * math.pi * k / RING_BOLTS + math.pi / RING_BOLTS), fab.spacer_hole)
+                  for k in range(RING_BOLTS)) if fixed else ()
+    part = Part("ring", base.outer, base.holes, bolts, f"ring  z{ring.teeth}  m{ring.module:g}  x{ring.shift:+.3f}")
+    return part, _cut(part, fab, tolerance), bolt_circle
+
+
+def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = None) -> Plan:
+    """Plan a planetary set described by ``spec.planetary``."""
+    ps = spec.planetary
+    if load is not None:
+        raise InputError("load ratings of planetary sets are not supported yet; leave out --torque and --power")
+    system = _system(spec)
+    fab = load_fabrication(spec.fabrication)
+    m = spec.module
+    pset = make_set(ps.sun, ps.planet, ps.ring, ps.planets, ps.planet_ring)
+    arrangement = make_arrangement(ps.fixed, ps.input)
+    conditions = check_set(pset, m, ps.shift_limit, pressure_angle=system.pressure_angle, addendum=system.addendum)
+    failed = [f for f in conditions.findings if f.severity == "failure"]
+    if failed:
+        raise InputError(f"the planetary set {pset.describe()} cannot be built: {failed[0].message}")
+    x_s, x_p1, x_p2, x_r = conditions.shifts
+    sun_pair = make_pair(ps.sun, ps.planet, m, system, shifts=(x_s, x_p1), backlash=fab.backlash)
+    ring_pair = make_internal_pair(pset.ring_planet, ps.ring, m, system, shifts=(x_p2, x_r), backlash=fab.backlash)
+    centre = sun_pair.centre_distance
+    if abs(ring_pair.centre_distance - centre) > 1e-6:
+        raise GeometryError(f"sun and ring centre distances differ ({centre:.6f} and {ring_pair.centre_distance:.6f} mm)")
+    ring = ring_pair.ring
+    if ps.fixed == "ring":  # a fixed ring is bolted to the frame: a rim wide enough for the bolts
+        rim = ring.root_diameter + 2 * (1.5 * fab.spacer_hole + 2.0)
+        ring = dataclasses.replace(ring, rim_diameter=max(rim, ring.outer_diameter))
+    sun_gear, planet_sun, planet_ring = sun_pair.gear1, sun_pair.gear2, ring_pair.pinion
+
+    # Plate coordinates: the set's axis at the centre of a square plate.
+    half = ring.outer_diameter / 2 + fab.plate_margin
+    cx = cy = half
+    angles = conditions.angles
+    planet_rot_a = [mesh_phase(0.0, ps.sun, ps.planet, a) for a in angles]
+    # A stepped planet's two gears are one part: give the ring-side gear the same turn offset on every planet.
+    planet_rot_b = planet_rot_a if not pset.stepped else [r for r in planet_rot_a]
+    ring_rots = [ring_phase(rb, pset.ring_planet, ps.ring, a) for rb, a in zip(planet_rot_b, angles)]
+    if not _same_phase(ring_rots, ps.ring):
+        raise GeometryError("the planets do not all mesh the ring at one ring position: the assembly condition fails")
+
+    bore = spec.bore
+    layer_b = 1 if pset.stepped else 0
+    z0 = fab.layer_gap
+    pitch = spec.thickness + fab.layer_gap
+    gears: list[PlannedGear] = []
+    sun_part, sun_cut = _gear_part("sun", sun_gear, bore, fab, tolerance)
+    gears.append(PlannedGear("sun", "sun", 1, sun_gear, GearSpec(ps.sun, x_s), 0, 0, bore, sun_part, sun_cut, 0.0, z0))
+    shafts = [PlannedShaft("centre", cx, cy, bore, True, True)]
+    pin = bore
+    for k, a in enumerate(angles, start=1):
+        shafts.append(PlannedShaft(f"planet-{k}", cx + centre * math.cos(a), cy + centre * math.sin(a), pin, False, False))
+        part, cut = _gear_part(f"planet-{k}", planet_sun, pin, fab, tolerance)
+        gears.append(PlannedGear(f"planet-{k}", "planet", 1, planet_sun, GearSpec(ps.planet, x_p1), k, 0, pin, part, cut,
+                                 planet_rot_a[k - 1], z0))
+        if pset.stepped:
+            part, cut = _gear_part(f"planet-{k}-ring-side", planet_ring, pin, fab, tolerance)
+            gears.append(PlannedGear(f"planet-{k}-ring-side", "planet", 1, planet_ring, GearSpec(pset.ring_planet, x_p2), k,
+                                     1, pin, part, cut, planet_rot_b[k - 1], z0 + pitch))
+    ring_drawn, ring_cut, bolt_circle = _ring_part(ring, ps.fixed == "ring", fab, tolerance)
+    label_r = (ring.root_diameter / 2 + ring.outer_diameter / 2) / 2
+    gears.append(PlannedGear("ring", "ring", 1, ring, GearSpec(ps.ring, x_r), 0, layer_b, bore, ring_drawn, ring_cut,
+                             ring_rots[0], z0 + layer_b * pitch, label_at=(0.0, -label_r)))
+
+    meshes = (PlannedMesh(("sun", "planet-1"), sun_pair, analyse_pair(sun_pair), ()),
+              PlannedMesh(("planet-1-ring-side" if pset.stepped else "planet-1", "ring"), ring_pair,
+                          analyse_internal_pair(ring_pair), ()))
+    top = z0 + (layer_b + 1) * pitch
+    plates = _plates(spec, fab, tolerance, cx, cy, centre, angles, ps, ring, bolt_circle, top, pin)
+    layout = Layout(np.array([[s.x, s.y] for s in shafts]), 2 * half, 2 * half,
+                    "concentric: sun, ring and carrier on the plate's centre; planets at the assembly angles")
+    signed = set_ratio(pset, arrangement)
+    findings = tuple(conditions.findings) + (Finding(
+        "arrangement", "ok", float(signed), 0.0,
+        f"{arrangement.describe()}: ratio {signed.numerator}/{signed.denominator} from the kinematic model"),)
+    return Plan(spec, system, fab, tuple(gears), meshes, tuple(shafts), plates, layout, abs(Fraction(signed)),
+                direction_of(signed), tolerance, findings)
+
+
+def _plates(spec, fab, tolerance, cx, cy, centre, angles, ps, ring, bolt_circle, top, pin) -> tuple[PlannedPlate, ...]:
+    side = 2 * cx
+    outer = rounded_rectangle(side, side, fab.plate_corner_radius, tolerance)
+    inset = fab.plate_margin / 2
+    corners = tuple((x, y, fab.spacer_hole) for x in (inset, side - inset) for y in (inset, side - inset))
+    shaft_hole = ((cx, cy, spec.bore + fab.bore_clearance),)
+    bolts = tuple((cx + bolt_circle * math.cos(2 * math.pi * k / RING_BOLTS + math.pi / RING_BOLTS),
+                   cy + bolt_circle * math.sin(2 * math.pi * k / RING_BOLTS + math.pi / RING_BOLTS), fab.spacer_hole)
+                  for k in range(RING_BOLTS)) if ps.fixed == "ring" else ()
+    plates = []
+    for name, z in (("back-plate", -spec.thickness), ("front-plate", top + spec.thickness + fab.layer_gap)):
+        part = Part(name, outer, (), shaft_hole + bolts + corners, f"{spec.name} {name}")
+        plates.append(PlannedPlate(name, part, _cut(part, fab, tolerance), z))
+    # The carrier: a disc on the set's axis holding the planet pins at their angles.
+    radius = centre + pin / 2 + max(2.0, 2 * spec.module)
+    pins = tuple((cx + centre * math.cos(a), cy + centre * math.sin(a), pin + fab.bore_clearance) for a in angles)
+    carrier = Part("carrier", circle_loop(cx, cy, 2 * radius, tolerance, clockwise=False), (), shaft_hole + pins,
+                   f"{spec.name} carrier, {len(angles)} planet pins on {2 * centre:.3f} mm")
+    plates.append(PlannedPlate("carrier", carrier, _cut(carrier, fab, tolerance), top))
+    return tuple(plates)
