@@ -54,6 +54,16 @@ def _same_phase(angles: list[float], teeth: int) -> bool:
     return all(abs((a - first + pitch / 2) % pitch - pitch / 2) < 1e-9 for a in angles)
 
 
+def _stepped_turn(turn: float, angle: float, ps, pset, first_turn: float, first_angle: float) -> float:
+    """The sun-side turn (this turn plus whole sun-side pitches) that meshes the ring in planet 1's ring phase."""
+    target = ring_phase(first_turn, pset.ring_planet, ps.ring, first_angle)
+    for j in range(ps.planet):
+        candidate = turn + 2 * math.pi * j / ps.planet
+        if _same_phase([target, ring_phase(candidate, pset.ring_planet, ps.ring, angle)], ps.ring):
+            return candidate
+    return turn
+
+
 def _cut(part: Part, fab: Fabrication, tolerance: float) -> Part:
     if not fab.kerf:
         return part
@@ -110,8 +120,13 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
     cx = cy = half
     angles = conditions.angles
     planet_rot_a = [mesh_phase(0.0, ps.sun, ps.planet, a) for a in angles]
-    # A stepped planet's two gears are one part: give the ring-side gear the same turn offset on every planet.
-    planet_rot_b = planet_rot_a if not pset.stepped else [r for r in planet_rot_a]
+    if pset.stepped:
+        # A stepped planet's two gears are one part, so the ring-side gear turns with the sun-side one.  Any
+        # whole pitch of the sun-side gear meshes the sun as well; pick, planet by planet, the pitch that puts
+        # the ring-side teeth where the ring (phased by planet 1) has its spaces.
+        planet_rot_a = [planet_rot_a[0]] + [_stepped_turn(r, a, ps, pset, planet_rot_a[0], angles[0])
+                                            for r, a in zip(planet_rot_a[1:], angles[1:])]
+    planet_rot_b = planet_rot_a
     ring_rots = [ring_phase(rb, pset.ring_planet, ps.ring, a) for rb, a in zip(planet_rot_b, angles)]
     if not _same_phase(ring_rots, ps.ring):
         raise GeometryError("the planets do not all mesh the ring at one ring position: the assembly condition fails")

@@ -108,3 +108,44 @@ def test_planets_that_collide_are_refused(tmp_path, capsys):
     err = capsys.readouterr().err
     assert "tip circles" in err and len(err.strip().splitlines()) == 1
     assert not (tmp_path / "o").exists()
+
+
+STEPPED = """name = "stepped"
+module = 1.0
+thickness = 3.0
+fabrication = "fdm-pla-0.4mm"
+[planetary]
+sun = 53
+planet = 116
+ring = 191
+planets = 3
+planet_ring = 22
+fixed = "ring"
+"""
+
+
+def test_stepped_planets_mesh_the_sun_in_one_layer_and_the_ring_in_the_next():
+    # shapely: each planet's sun-side gear clears the sun, its ring-side gear clears the ring; one rigid part each.
+    stepped = plan_train(parse_train(STEPPED))
+    ring = polygon(stepped.gear("ring"), stepped)
+    sun = polygon(stepped.gear("sun"), stepped)
+    for k in (1, 2, 3):
+        a, b = stepped.gear(f"planet-{k}"), stepped.gear(f"planet-{k}-ring-side")
+        assert a.layer != b.layer and a.rotation == b.rotation
+        assert sun.intersection(polygon(a, stepped)).area < 1e-6
+        assert ring.intersection(polygon(b, stepped)).area < 1e-6
+    # Ring fixed, sun in, carrier out: 1 / (1 + z_r z_p1 / (z_s z_p2)) (Dudley's table, stepped planets; from memory).
+    from fractions import Fraction
+
+    assert stepped.ratio == 1 / (1 + Fraction(191 * 116, 53 * 22))
+
+
+def test_design_planetary_builds_an_exact_set_that_passes_every_mesh_check(tmp_path, capsys):
+    out = tmp_path / "d"
+    code = main(["design", "0.25", "--kind", "planetary", "--module", "1", "--min-teeth", "18", "--out", str(out),
+                 "--formats", "dxf", "--json"])
+    report = json.loads(capsys.readouterr().out)
+    assert code == 0
+    assert (report["ratio"]["numerator"], report["ratio"]["denominator"]) == (1, 4)
+    assert all(f["severity"] != "failure" for m in report["meshes"] for f in m["findings"])
+    assert "[planetary]" in (out / "train.toml").read_text()

@@ -25,6 +25,11 @@ def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParse
                               formatter_class=argparse.RawDescriptionHelpFormatter)
     p.add_argument("target", help="wanted ratio: output turns per input turn (decimal, fraction or expression)")
     add_solver_options(p)
+    from .ratio import _add_planetary_options
+
+    _add_planetary_options(p)
+    p.add_argument("--tolerance", type=float, metavar="REL", help=argparse.SUPPRESS)
+    p.add_argument("--count", type=int, metavar="K", help=argparse.SUPPRESS)
     p.add_argument("--module", "-m", type=float, required=True, metavar="MM", help="module of every stage, mm")
     p.add_argument("--thickness", type=float, default=3.0, metavar="MM", help="face width of every gear, mm (default 3)")
     p.add_argument("--profile", default="laser-3mm-acrylic", metavar="NAME",
@@ -46,6 +51,13 @@ def run(args: argparse.Namespace) -> int:
 
     load_tooth_system(args.system)  # unknown names fail before the search
     load_fabrication(args.profile)
+    if args.kind == "planetary":
+        return _design_planetary(args)
+    if args.kind == "summing":
+        from ..errors import InputError
+
+        raise InputError("gearcad design builds compound trains and planetary sets; for summing trains use "
+                         "gearcad ratio --kind summing (files for them are not made yet)")
     if args.shift_limit is not None and not args.coaxial:
         from ..errors import InputError
 
@@ -60,3 +72,57 @@ def run(args: argparse.Namespace) -> int:
                      title=f"Train for {args.target}")
     spec = spec_with_stages(base, train)
     return build_and_write(spec, args, (("train.toml", train_to_toml(spec)),))
+
+
+def _design_planetary(args: argparse.Namespace) -> int:
+    """Solve for the best planetary set, then build it."""
+    from ..planetary import solve_planetary
+    from ..ratio.target import parse_target
+    from ..trainfile import train_to_toml
+    from .ratio import _planetary_query
+
+    if args.stages is not None or args.coaxial or args.inventory is not None:
+        from ..errors import InputError
+
+        raise InputError("--stages, --coaxial and --inventory do not apply to --kind planetary")
+    if args.count is None:
+        args.count = 10  # candidates, best first: the first whose meshes pass every check is built
+    results = solve_planetary(_planetary_query(args, parse_target(args.target)))
+    if not results:
+        from ..errors import InputError
+
+        raise InputError(f"no planetary set reaches {args.target!r} within the limits and the three conditions")
+    from ..errors import GearcadError
+    from ..plan import plan_train
+
+    chosen = None
+    for result in results:  # best ratio first; the same set scaled up keeps its ratio and its conditions
+        for scale in range(1, 5):
+            candidate = _planetary_spec(args, result, scale)
+            if max(candidate.planetary.ring, candidate.planetary.sun) > (args.max_ring_teeth or 200):
+                break
+            try:
+                plan = plan_train(candidate)
+            except GearcadError:
+                continue
+            if all(f.severity != "failure" for m in plan.meshes for f in m.analysis.findings):
+                chosen = candidate
+                break
+        if chosen:
+            break
+    spec = chosen or _planetary_spec(args, results[0])
+    return build_and_write(spec, args, (("train.toml", train_to_toml(spec)),))
+
+
+def _planetary_spec(args: argparse.Namespace, result, scale: int = 1):
+    """The train of a solved set, its tooth counts multiplied by ``scale`` (same ratio, same conditions)."""
+    from ..trainspec import PlanetarySpec, TrainSpec
+
+    s, a = result.set, result.arrangement
+    ring_side = s.planet_ring * scale if s.planet_ring else None
+    return TrainSpec(name=args.name, module=args.module, thickness=args.thickness, stages=(), target=args.target,
+                     tooth_system=args.system, fabrication=args.profile, bore=args.bore,
+                     title=f"Planetary set for {args.target}",
+                     planetary=PlanetarySpec(s.sun * scale, s.planet * scale, s.ring * scale, s.planets, ring_side,
+                                             a.fixed, a.input, args.shift_limit))
+
