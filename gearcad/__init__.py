@@ -9,6 +9,10 @@ never loads the CAD kernel):
   :class:`TipRelief`, :func:`make_pair`, :func:`analyse_pair`, :class:`Finding`
 - trains and files: :func:`read_train`, :func:`parse_train`, :func:`plan_train`, :func:`write_plan`,
   :class:`BuildOptions`, :func:`load_fabrication`
+- epicyclic and summing trains: :func:`make_network`, :func:`solve_network`, :func:`network_ratio`,
+  :func:`make_set`, :func:`check_set`, :func:`solve_planetary`, :func:`solve_summing`, :class:`RingGear`,
+  :func:`make_internal_pair`, :func:`analyse_internal_pair`
+- load ratings: :func:`load_material`, :func:`rate_pair`, :func:`lewis_form_factor`
 - errors: :class:`GearcadError` and its subclasses
 
 Lengths are in mm and angles in radians inside the API; files and reports use mm and degrees.
@@ -48,6 +52,19 @@ _LAZY = {
     "plan_train": "gearcad.plan",
     "write_plan": "gearcad.export.bundle",
     "BuildOptions": "gearcad.export.bundle",
+    "make_network": "gearcad.kinematics",
+    "solve_network": "gearcad.kinematics",
+    "network_ratio": "gearcad.kinematics",
+    "make_set": "gearcad.planetary",
+    "check_set": "gearcad.planetary",
+    "solve_planetary": "gearcad.planetary",
+    "solve_summing": "gearcad.summing",
+    "RingGear": "gearcad.geometry.internal",
+    "make_internal_pair": "gearcad.internal",
+    "analyse_internal_pair": "gearcad.internal",
+    "load_material": "gearcad.materials",
+    "rate_pair": "gearcad.strength",
+    "lewis_form_factor": "gearcad.strength",
 }
 
 __all__ = ["GearcadError", "InputError", "ProfileError", "GeometryError", "ExportError", "__version__", *_LAZY]

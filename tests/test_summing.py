@@ -102,3 +102,17 @@ def test_ratio_command_kind_summing(capsys):
     assert best["kind"] == "summing" and best["members"]["differential"] == "mean"
     assert main(["ratio", "2", "--kind", "summing", "--stepped"]) == 2
     assert "--stepped does not apply" in capsys.readouterr().err
+
+
+def test_summing_from_an_inventory_uses_each_gear_once(capsys):
+    import json
+    from collections import Counter
+
+    from gearcad.cli import main
+
+    shelf = {12: 1, 13: 1, 16: 1, 20: 2, 24: 1, 25: 1, 30: 1, 35: 1, 40: 1}
+    spec = ",".join(f"{z}x{n}" for z, n in shelf.items())
+    assert main(["ratio", "0.6", "--kind", "summing", "--inventory", spec, "--count", "5", "--json"]) == 0
+    for result in json.loads(capsys.readouterr().out)["results"]:
+        used = Counter(z for path in result["members"]["paths"] for z in (path["driver"], path["driven"]))
+        assert all(used[z] <= shelf[z] for z in used)  # the shelf's counts, as given

@@ -28,6 +28,14 @@ def _json(train, check) -> dict:
             "total_teeth": train.total_teeth, "kind": "summing", "members": members}
 
 
+def _on_the_shelf(train, inventory) -> bool:
+    """Each physical gear of the two paths used once (the differential's own gears are made, not shelved)."""
+    from collections import Counter
+
+    need = Counter([*train.path_a, *train.path_b])
+    return all(inventory.quantity(z) >= n for z, n in need.items())
+
+
 def run_summing(args: argparse.Namespace, limits) -> int:
     """Solve, check every result with the kinematic model, print."""
     from ..errors import GearcadError
@@ -41,8 +49,12 @@ def run_summing(args: argparse.Namespace, limits) -> int:
         tolerance_value(args.tolerance)
     count = args.count or 5
     kind = args.differential or "mean"
-    trains = solve_summing(target, sorted(limits.teeth), kind, count, float(limits.max_stage_ratio),
+    inventory = limits.inventory
+    wanted = count * 20 if inventory else count  # some may need more of a tooth count than the shelf holds
+    trains = solve_summing(target, sorted(limits.teeth), kind, wanted, float(limits.max_stage_ratio),
                            args.max_ring_teeth or 200, args.planets or 3, args.neighbour_margin or 0.5)
+    if inventory:
+        trains = [t for t in trains if _on_the_shelf(t, inventory)][:count]
     checked = []
     for t in trains:
         model = network_ratio(*summing_network(t))

@@ -253,8 +253,8 @@ def run(args: argparse.Namespace) -> int:
     if args.kind == "summing":
         from ._summing import run_summing
 
-        _refuse(args, _COMPOUND_ONLY + (("fixed", "--fixed"), ("input_member", "--input"), ("stepped", "--stepped")),
-                "summing")
+        _refuse(args, (("stages", "--stages"), ("coaxial", "--coaxial"), ("fractions", "--fractions"),
+                       ("fixed", "--fixed"), ("input_member", "--input"), ("stepped", "--stepped")), "summing")
         return run_summing(args, _limits(args))
     _refuse(args, _PLANETARY_ONLY + (("differential", "--differential"),), "compound")
     target = parse_target(args.target)
