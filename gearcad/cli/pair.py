@@ -209,17 +209,11 @@ def render_internal(a) -> str:
         ("cutting centre distance", f"{fmt(r.cutting_centre_distance)} mm"),
         ("blank outer diameter", f"{fmt(r.outer_diameter)} mm"),
     ]
-    checks = [(MARK[f.severity], f.check, f.message) for f in a.findings]
-    verdict = {"ok": "meshes well", "warning": "meshes, with warnings", "failure": "does NOT work as it stands"}[a.worst]
     return "\n".join([
         head, "",
         table(rows, header=("gear figures (mm)", "pinion", "ring")), "",
         table(mesh, header=("mesh", "")), "",
-        "checks",
-        "\n".join(f"  [{mark:>4}] {name}: {msg}" for mark, name, msg in checks), "",
-        f"verdict: the pair {verdict}.",
-        "Caution: gears are machinery. Guard pinch points; strength figures are estimates for light duty; "
-        "defer to local codes and a qualified engineer for anything that carries load.",
+        *_closing(list(a.findings)),
     ])
 
 
@@ -334,18 +328,22 @@ def render(a, rating=None) -> str:
         ("backlash, circumferential / normal", f"{a.backlash:.4f} / {a.normal_backlash:.4f} mm"),
     ]
     findings = list(a.findings) + (list(rating.findings()) if rating else [])
-    checks = [(MARK[f.severity], f.check, f.message) for f in findings]
-    worst = _worst(findings)
-    verdict = {"ok": "meshes well", "warning": "meshes, with warnings", "failure": "does NOT work as it stands"}[worst]
-    parts = [
+    return "\n".join([
         head, "",
         table(rows, header=("gear figures (mm)", "gear 1", "gear 2")), "",
         table(mesh, header=("mesh", "")), "",
         *(_rating_lines(rating) if rating else []),
+        *_closing(findings),
+    ])
+
+
+def _closing(findings) -> list[str]:
+    """The checks, the verdict and the caution: the end of every pair table."""
+    verdict = {"ok": "meshes well", "warning": "meshes, with warnings", "failure": "does NOT work as it stands"}
+    return [
         "checks",
-        "\n".join(f"  [{mark:>4}] {name}: {msg}" for mark, name, msg in checks), "",
-        f"verdict: the pair {verdict}.",
+        "\n".join(f"  [{MARK[f.severity]:>4}] {f.check}: {f.message}" for f in findings), "",
+        f"verdict: the pair {verdict[_worst(findings)]}.",
         "Caution: gears are machinery. Guard pinch points; strength figures are estimates for light duty; "
         "defer to local codes and a qualified engineer for anything that carries load.",
     ]
-    return "\n".join(parts)

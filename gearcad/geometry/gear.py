@@ -18,7 +18,7 @@ from ..profiles import ToothSystem, load_tooth_system
 from ..validate import as_int, finite, in_range, positive
 from .involute import inv
 
-__all__ = ["SpurGear", "PointedTeethError", "MIN_TEETH", "MODULE_RANGE", "SHIFT_RANGE", "PRESSURE_ANGLE_RANGE"]
+__all__ = ["SpurGear", "ToothedFigures", "PointedTeethError", "MIN_TEETH", "MODULE_RANGE", "SHIFT_RANGE", "PRESSURE_ANGLE_RANGE"]
 
 class PointedTeethError(GeometryError):
     """The teeth come to a point (tip thickness <= 0) before any tip shortening."""
@@ -31,8 +31,43 @@ SHIFT_RANGE = (-2.0, 4.0)
 PRESSURE_ANGLE_RANGE = (10.0, 35.0)  # degrees
 
 
+class ToothedFigures:
+    """Figures every involute gear shares (external or internal): needs ``teeth``, ``module``, ``system``,
+    ``shift`` and ``thinning``.  Lengths in mm, angles in radians."""
+
+    @property
+    def pressure_angle(self) -> float:
+        """Reference pressure angle, radians."""
+        return self.system.pressure_angle
+
+    @property
+    def reference_diameter(self) -> float:
+        """Reference (standard pitch) diameter ``d = z m``, mm."""
+        return self.teeth * self.module
+
+    @property
+    def base_diameter(self) -> float:
+        """Base diameter ``d_b = d cos(alpha)``, mm."""
+        return self.reference_diameter * math.cos(self.pressure_angle)
+
+    @property
+    def pitch(self) -> float:
+        """Reference circular pitch ``p = pi m``, mm."""
+        return math.pi * self.module
+
+    @property
+    def base_pitch(self) -> float:
+        """Base pitch ``p_b = pi m cos(alpha)``, mm."""
+        return self.pitch * math.cos(self.pressure_angle)
+
+    @property
+    def generating_shift(self) -> float:
+        """Generating profile shift coefficient ``x_E = x - thinning / (2 m tan(alpha))``."""
+        return self.shift - self.thinning / (2 * self.module * math.tan(self.pressure_angle))
+
+
 @dataclass(frozen=True)
-class SpurGear:
+class SpurGear(ToothedFigures):
     """An external spur gear, validated on creation.
 
     Parameters
@@ -101,37 +136,6 @@ class SpurGear:
             raise PointedTeethError(
                 f"profile shift {self.shift:g} makes the teeth of a {self.teeth}-tooth gear pointed "
                 f"(tip thickness {self.tip_thickness:.4g} mm); use a smaller shift or shorten the tips")
-
-    # -- basic figures --------------------------------------------------------------
-    @property
-    def pressure_angle(self) -> float:
-        """Reference pressure angle, radians."""
-        return self.system.pressure_angle
-
-    @property
-    def reference_diameter(self) -> float:
-        """Reference (standard pitch) diameter ``d = z m``, mm."""
-        return self.teeth * self.module
-
-    @property
-    def base_diameter(self) -> float:
-        """Base diameter ``d_b = d cos(alpha)``, mm."""
-        return self.reference_diameter * math.cos(self.pressure_angle)
-
-    @property
-    def pitch(self) -> float:
-        """Reference circular pitch ``p = pi m``, mm."""
-        return math.pi * self.module
-
-    @property
-    def base_pitch(self) -> float:
-        """Base pitch ``p_b = pi m cos(alpha)``, mm."""
-        return self.pitch * math.cos(self.pressure_angle)
-
-    @property
-    def generating_shift(self) -> float:
-        """Generating profile shift coefficient ``x_E = x - thinning / (2 m tan(alpha))``."""
-        return self.shift - self.thinning / (2 * self.module * math.tan(self.pressure_angle))
 
     @property
     def tip_diameter(self) -> float:

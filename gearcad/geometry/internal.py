@@ -51,7 +51,7 @@ import numpy as np
 from ..errors import GeometryError, InputError
 from ..profiles import ToothSystem, load_tooth_system
 from ..validate import as_int, finite, in_range, positive
-from .gear import MAX_TEETH, MODULE_RANGE, SHIFT_RANGE
+from .gear import MAX_TEETH, MODULE_RANGE, SHIFT_RANGE, ToothedFigures
 from .generate import DEFAULT_TOLERANCE, MIN_TOLERANCE, Curve
 from .involute import inv, inv_inverse, involute_points, involute_tangents, roll_angle_at
 from .sampling import arc_step, sample_curve
@@ -253,7 +253,7 @@ def _cutter_outline(cutter: _Cutter, count: int = 24) -> np.ndarray:
 # -- the ring -------------------------------------------------------------------------
 
 @dataclass(frozen=True)
-class RingGear:
+class RingGear(ToothedFigures):
     """An internal spur gear cut by a pinion-type cutter, validated on creation.
 
     Parameters
@@ -408,36 +408,6 @@ class RingGear:
     def iso_teeth(self) -> int:
         """The tooth count with ISO 21771's sign: ``-teeth``."""
         return -self.teeth
-
-    @property
-    def pressure_angle(self) -> float:
-        """Reference pressure angle, radians."""
-        return self.system.pressure_angle
-
-    @property
-    def reference_diameter(self) -> float:
-        """Reference diameter ``|d| = z m``, mm."""
-        return self.teeth * self.module
-
-    @property
-    def base_diameter(self) -> float:
-        """Base diameter ``d cos(alpha)``, mm."""
-        return self.reference_diameter * math.cos(self.pressure_angle)
-
-    @property
-    def pitch(self) -> float:
-        """Reference circular pitch ``pi m``, mm."""
-        return math.pi * self.module
-
-    @property
-    def base_pitch(self) -> float:
-        """Base pitch ``pi m cos(alpha)``, mm."""
-        return self.pitch * math.cos(self.pressure_angle)
-
-    @property
-    def generating_shift(self) -> float:
-        """Generating profile shift coefficient ``x_E = x - thinning / (2 m tan(alpha))``."""
-        return self.shift - self.thinning / (2 * self.module * math.tan(self.pressure_angle))
 
     @property
     def tip_diameter(self) -> float:
