@@ -19,7 +19,6 @@ import numpy as np
 
 from .checks import Finding, analyse_pair
 from .errors import GeometryError, InputError
-from .geometry.bore import bore_loop
 from .geometry.internal import RingGear, ring_part
 from .geometry.offset import offset_loop
 from .geometry.shape import Part, circle_loop, gear_loop, rounded_rectangle

@@ -2,7 +2,6 @@
 
 import json
 import math
-from pathlib import Path
 
 import ezdxf
 import numpy as np
@@ -91,9 +90,9 @@ def test_dxf_outline_matches_the_geometry(printed, name):
 
 
 @pytest.mark.slow
-def test_kerf_offsets_outlines_out_and_holes_in(printed, lasered):
+def test_kerf_offsets_outlines_out_and_holes_in(lasered):
     kerf = load_fabrication("laser-3mm-acrylic").kerf
-    (out_p, rep_p), (out_l, rep_l) = printed, lasered
+    out_l, rep_l = lasered
     g_l = next(g for g in rep_l["gears"] if g["name"] == "s1-driven")
     pts, circles, _ = dxf_outline(out_l / g_l["files"]["dxf"])
     r = np.hypot(pts[:, 0], pts[:, 1])
@@ -106,7 +105,6 @@ def test_kerf_offsets_outlines_out_and_holes_in(printed, lasered):
 @pytest.mark.slow
 def test_step_solids_are_valid_with_the_expected_volume(printed):
     # OCP as reference: BRepCheck validity, one solid, volume = outline area x thickness minus the bore (0.1 %).
-    from OCP.BRep import BRep_Builder
     from OCP.BRepCheck import BRepCheck_Analyzer
     from OCP.BRepGProp import BRepGProp
     from OCP.GProp import GProp_GProps

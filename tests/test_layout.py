@@ -1,6 +1,5 @@
 """Shaft layout: rules kept, coaxial kept, compactness against an exhaustive sweep, phasing formula."""
 
-import itertools
 import math
 
 import numpy as np

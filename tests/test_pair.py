@@ -133,7 +133,6 @@ def test_backlash_from_thinning_and_centre_allowance():
 
 def _angular_play(pair, tolerance=2e-5):
     """Rotate gear 2's outline polygon (shapely) both ways until it touches gear 1; the free angle, radians."""
-    import numpy as np
     import shapely
     from shapely import affinity
 

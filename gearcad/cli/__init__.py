@@ -15,7 +15,7 @@ import argparse
 import importlib
 import signal
 import sys
-from typing import Sequence
+from typing import NoReturn, Sequence
 
 from ..errors import GearcadError
 
@@ -34,7 +34,7 @@ COMMANDS: dict[str, str] = {
 class OneLineParser(argparse.ArgumentParser):
     """An argparse parser whose errors are one line: ``gearcad CMD: error: ...``."""
 
-    def error(self, message: str) -> "NoReturn":  # type: ignore[name-defined]  # noqa: F821
+    def error(self, message: str) -> NoReturn:
         self.exit(2, f"{self.prog}: error: {message} (see {self.prog} --help)\n")
 
 

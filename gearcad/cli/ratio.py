@@ -15,7 +15,7 @@ __all__ = ["add_parser", "run"]
 CONVENTION = ("Ratio = output turns per input turn = the product over stages of driver teeth / driven teeth. "
               "Each external mesh reverses the direction of rotation; an idler adds a mesh and changes no ratio.")
 
-DESCRIPTION = f"""\
+DESCRIPTION = """\
 Find the tooth counts of a compound gear train that reaches TARGET as closely as
 the limits allow.  The search is exact: for each stage count the first train is
 the best there is within the limits (least |relative error|, ties to fewer

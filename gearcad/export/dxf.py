@@ -20,7 +20,6 @@ numbered in creation order.  Lengths in mm.
 
 from __future__ import annotations
 
-import math
 import os
 from collections.abc import Iterator, Mapping
 from contextlib import contextmanager

@@ -33,7 +33,22 @@ PRESSURE_ANGLE_RANGE = (10.0, 35.0)  # degrees
 
 class ToothedFigures:
     """Figures every involute gear shares (external or internal): needs ``teeth``, ``module``, ``system``,
-    ``shift`` and ``thinning``.  Lengths in mm, angles in radians."""
+    ``shift``, ``thinning`` and ``tip_shortening``.  Lengths in mm, angles in radians."""
+
+    def _validate_common(self, shift_name: str) -> None:
+        """Check and normalise module, shift, thinning and tip shortening (frozen dataclasses call it)."""
+        module = positive(self.module, "module", "mm")
+        object.__setattr__(self, "module", in_range(module, "module", *MODULE_RANGE, unit="mm"))
+        object.__setattr__(self, "shift", in_range(self.shift, shift_name, *SHIFT_RANGE))
+        thinning = finite(self.thinning, "tooth thinning")
+        if thinning < 0 or thinning >= 0.5 * self.pitch:
+            raise InputError(f"tooth thinning must be from 0 to below half the pitch ({0.5 * self.pitch:.4g} mm), "
+                             f"got {self.thinning!r}")
+        object.__setattr__(self, "thinning", thinning)
+        shortening = finite(self.tip_shortening, "tip shortening")
+        if shortening < 0:
+            raise InputError(f"tip shortening must be >= 0 modules, got {self.tip_shortening!r}")
+        object.__setattr__(self, "tip_shortening", shortening)
 
     @property
     def pressure_angle(self) -> float:
@@ -100,17 +115,7 @@ class SpurGear(ToothedFigures):
         if not MIN_TEETH <= teeth <= MAX_TEETH:
             raise InputError(f"tooth count must be from {MIN_TEETH} to {MAX_TEETH}, got {self.teeth!r}")
         object.__setattr__(self, "teeth", teeth)
-        module = positive(self.module, "module", "mm")
-        object.__setattr__(self, "module", in_range(module, "module", *MODULE_RANGE, unit="mm"))
-        object.__setattr__(self, "shift", in_range(self.shift, "profile shift", *SHIFT_RANGE))
-        thinning = finite(self.thinning, "tooth thinning")
-        if thinning < 0 or thinning >= 0.5 * self.pitch:
-            raise InputError(f"tooth thinning must be from 0 to below half the pitch ({0.5 * self.pitch:.4g} mm), got {self.thinning!r}")
-        object.__setattr__(self, "thinning", thinning)
-        shortening = finite(self.tip_shortening, "tip shortening")
-        if shortening < 0:
-            raise InputError(f"tip shortening must be >= 0 modules, got {self.tip_shortening!r}")
-        object.__setattr__(self, "tip_shortening", shortening)
+        self._validate_common("profile shift")
         self._check_feasible()
 
     @classmethod

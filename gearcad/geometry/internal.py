@@ -50,8 +50,8 @@ import numpy as np
 
 from ..errors import GeometryError, InputError
 from ..profiles import ToothSystem, load_tooth_system
-from ..validate import as_int, finite, in_range, positive
-from .gear import MAX_TEETH, MODULE_RANGE, SHIFT_RANGE, ToothedFigures
+from ..validate import as_int, finite, in_range
+from .gear import MAX_TEETH, ToothedFigures
 from .generate import DEFAULT_TOLERANCE, MIN_TOLERANCE, Curve
 from .involute import inv, inv_inverse, involute_points, involute_tangents, roll_angle_at
 from .sampling import arc_step, sample_curve
@@ -304,17 +304,7 @@ class RingGear(ToothedFigures):
         if not MIN_CUTTER_TEETH + 1 <= teeth <= MAX_TEETH:
             raise InputError(f"ring tooth count must be from {MIN_CUTTER_TEETH + 1} to {MAX_TEETH}, got {self.teeth!r}")
         object.__setattr__(self, "teeth", teeth)
-        module = positive(self.module, "module", "mm")
-        object.__setattr__(self, "module", in_range(module, "module", *MODULE_RANGE, unit="mm"))
-        object.__setattr__(self, "shift", in_range(self.shift, "ring profile shift", *SHIFT_RANGE))
-        thinning = finite(self.thinning, "tooth thinning")
-        if thinning < 0 or thinning >= 0.5 * self.pitch:
-            raise InputError(f"tooth thinning must be from 0 to below half the pitch ({0.5 * self.pitch:.4g} mm), got {self.thinning!r}")
-        object.__setattr__(self, "thinning", thinning)
-        shortening = finite(self.tip_shortening, "tip shortening")
-        if shortening < 0:
-            raise InputError(f"tip shortening must be >= 0 modules, got {self.tip_shortening!r}")
-        object.__setattr__(self, "tip_shortening", shortening)
+        self._validate_common("ring profile shift")
         object.__setattr__(self, "cutter_shift", in_range(self.cutter_shift, "cutter profile shift", *CUTTER_SHIFT_RANGE))
         self._check_teeth()
         if self.cutter_teeth is None:
