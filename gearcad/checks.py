@@ -20,6 +20,8 @@ __all__ = [
     "PairAnalysis",
     "analyse_pair",
     "min_shift_without_undercut",
+    "clearance_findings",
+    "backlash_finding",
     "min_teeth_without_undercut",
     "SEVERITIES",
     "MIN_CONTACT_RATIO",
@@ -136,8 +138,8 @@ def analyse_pair(pair: GearPair) -> PairAnalysis:
     findings: list[Finding] = [_contact_finding(contact)]
     for i, fig in enumerate(figures):
         findings += _gear_findings(fig, ("gear 1", "gear 2")[i], (figures[1], figures[0])[i], pair)
-    findings += _clearance_findings(pair, clearances)
-    findings.append(_backlash_finding(pair, backlash))
+    findings += clearance_findings(pair.gear1.system.clearance * pair.module, clearances)
+    findings.append(backlash_finding(backlash, alpha_op))
     return PairAnalysis(pair, figures, contact, backlash, backlash * math.cos(alpha_op), clearances, tuple(findings))
 
 
@@ -197,12 +199,15 @@ def _gear_findings(fig: GearFigures, label: str, mate: GearFigures, pair: GearPa
     return out
 
 
-def _clearance_findings(pair: GearPair, clearances: tuple[float, float]) -> list[Finding]:
+def clearance_findings(limit: float, clearances: tuple[float, float],
+                       sides: tuple[tuple[str, str], tuple[str, str]] = (("gear 1", "gear 2"), ("gear 2", "gear 1"))
+                       ) -> list[Finding]:
+    """Bottom clearance under each gear's tip against the basic rack's ``limit`` (mm), external or internal.
+
+    ``sides`` names, for each clearance, the gear whose tip it is under and the mate whose root it faces.
+    """
     out = []
-    limit = pair.gear1.system.clearance * pair.module
-    for i, c in enumerate(clearances):
-        label = ("gear 1", "gear 2")[i]
-        other = ("gear 2", "gear 1")[i]
+    for (label, other), c in zip(sides, clearances):
         if c <= 0:
             sev, note = "failure", "the tip touches the mate's root"
         elif c < limit - 1e-9:
@@ -214,7 +219,8 @@ def _clearance_findings(pair: GearPair, clearances: tuple[float, float]) -> list
     return out
 
 
-def _backlash_finding(pair: GearPair, backlash: float) -> Finding:
+def backlash_finding(backlash: float, operating_pressure_angle: float) -> Finding:
+    """Circumferential backlash (mm, working pitch circle) of any pair at its built centre distance."""
     if backlash < -1e-9:
         return Finding("backlash", "failure", backlash, 0.0, f"the teeth overlap by {-backlash:.4f} mm: the pair cannot turn at this centre distance")
     if backlash <= 1e-9:
@@ -222,4 +228,4 @@ def _backlash_finding(pair: GearPair, backlash: float) -> Finding:
                        "no backlash: any error of making or mounting binds the pair; allow some with --backlash (common practice)")
     return Finding("backlash", "ok", backlash, 0.0,
                    f"circumferential backlash {backlash:.4f} mm on the working pitch circle "
-                   f"({backlash * math.cos(pair.operating_pressure_angle):.4f} mm normal)")
+                   f"({backlash * math.cos(operating_pressure_angle):.4f} mm normal)")

@@ -26,7 +26,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .checks import MIN_CONTACT_RATIO, MIN_TIP_THICKNESS, Finding, min_shift_without_undercut
+from .checks import (MIN_CONTACT_RATIO, MIN_TIP_THICKNESS, Finding, backlash_finding, clearance_findings,
+                     min_shift_without_undercut)
 from .errors import GeometryError, InputError
 from .geometry.gear import PointedTeethError, SpurGear
 from .geometry.generate import tooth_profile
@@ -456,8 +457,9 @@ def analyse_internal_pair(pair: InternalPair) -> InternalAnalysis:
     findings.append(_fillet_finding(fillet, pair))
     findings.append(_difference_finding(pair, least))
     findings += _active_findings(figures)
-    findings += _clearance_findings(pair, clearances)
-    findings.append(_backlash_finding(pair, backlash))
+    findings += clearance_findings(pair.pinion.system.clearance * pair.module, clearances,
+                                   (("gear 1", "the ring"), ("gear 2", "the pinion")))
+    findings.append(backlash_finding(backlash, pair.operating_pressure_angle))
     return InternalAnalysis(pair, figures, contact, backlash, backlash * math.cos(alpha_op), clearances, margin, depth,
                             fillet, least, tuple(findings))
 
@@ -559,30 +561,3 @@ def _active_findings(figures: tuple[RingFigures, RingFigures]) -> list[Finding]:
                            f"the pinion's tip stays on the ring's involute (out to diameter {ring.active_diameter:.3f} mm; "
                            f"form diameter {ring.form_diameter:.3f} mm)"))
     return out
-
-
-def _clearance_findings(pair: InternalPair, clearances: tuple[float, float]) -> list[Finding]:
-    limit = pair.pinion.system.clearance * pair.module
-    out = []
-    for label, other, c in (("gear 1", "the ring", clearances[0]), ("gear 2", "the pinion", clearances[1])):
-        if c <= 0:
-            sev, note = "failure", "the tip runs into the mate's root"
-        elif c < limit - 1e-9:
-            sev, note = "warning", f"under the basic rack's {limit:.3f} mm; shorten the tips (leave out --full-tips)"
-        else:
-            sev, note = "ok", "at least the basic rack's"
-        out.append(Finding(f"bottom clearance {label}", sev, c, limit,
-                           f"gap between the tip of {label} and the root of {other}: {c:.4f} mm; {note}"))
-    return out
-
-
-def _backlash_finding(pair: InternalPair, backlash: float) -> Finding:
-    if backlash < -1e-9:
-        return Finding("backlash", "failure", backlash, 0.0,
-                       f"the teeth overlap by {-backlash:.4f} mm: the pair jams at this centre distance")
-    if backlash <= 1e-9:
-        return Finding("backlash", "warning", 0.0, 0.0,
-                       "no backlash: errors of making or mounting bind the pair; allow some with --backlash (common practice)")
-    return Finding("backlash", "ok", backlash, 0.0,
-                   f"circumferential backlash {backlash:.4f} mm on the working pitch circle "
-                   f"({backlash * math.cos(pair.operating_pressure_angle):.4f} mm normal)")

@@ -35,6 +35,13 @@ class ToothedFigures:
     """Figures every involute gear shares (external or internal): needs ``teeth``, ``module``, ``system``,
     ``shift``, ``thinning`` and ``tip_shortening``.  Lengths in mm, angles in radians."""
 
+    @classmethod
+    def make(cls, teeth: int, module: float, system: str | ToothSystem = "iso53-a", **kwargs: float):
+        """Build a gear naming the tooth system by name (``iso53-a``) or object."""
+        if isinstance(system, str):
+            system = load_tooth_system(system)
+        return cls(teeth=teeth, module=module, system=system, **kwargs)
+
     def _validate_common(self, shift_name: str) -> None:
         """Check and normalise module, shift, thinning and tip shortening (frozen dataclasses call it)."""
         module = positive(self.module, "module", "mm")
@@ -117,13 +124,6 @@ class SpurGear(ToothedFigures):
         object.__setattr__(self, "teeth", teeth)
         self._validate_common("profile shift")
         self._check_feasible()
-
-    @classmethod
-    def make(cls, teeth: int, module: float, system: str | ToothSystem = "iso53-a", **kwargs: float) -> "SpurGear":
-        """Build a gear naming the tooth system by name (``iso53-a``) or object."""
-        if isinstance(system, str):
-            system = load_tooth_system(system)
-        return cls(teeth=teeth, module=module, system=system, **kwargs)
 
     # -- validation ---------------------------------------------------------------
     def _check_feasible(self) -> None:

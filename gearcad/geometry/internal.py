@@ -49,7 +49,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import GeometryError, InputError
-from ..profiles import ToothSystem, load_tooth_system
+from ..profiles import ToothSystem
 from ..validate import as_int, finite, in_range
 from .gear import MAX_TEETH, ToothedFigures
 from .generate import DEFAULT_TOLERANCE, MIN_TOLERANCE, Curve
@@ -321,13 +321,6 @@ class RingGear(ToothedFigures):
             if rim <= self.root_diameter:
                 raise InputError(f"rim diameter must exceed the root diameter {self.root_diameter:.4f} mm, got {self.rim_diameter!r}")
             object.__setattr__(self, "rim_diameter", rim)
-
-    @classmethod
-    def make(cls, teeth: int, module: float, system: str | ToothSystem = "iso53-a", **kwargs: float) -> "RingGear":
-        """Build a ring naming the tooth system by name (``iso53-a``) or object."""
-        if isinstance(system, str):
-            system = load_tooth_system(system)
-        return cls(teeth=teeth, module=module, system=system, **kwargs)
 
     # -- validation ---------------------------------------------------------------------
     def _check_teeth(self) -> None:
