@@ -13,12 +13,13 @@ from __future__ import annotations
 import dataclasses
 import math
 
-from .checks import min_shift_without_undercut
+from .checks import analyse_pair, min_shift_without_undercut
 from .errors import InputError
 from .profiles import ToothSystem, load_tooth_system
-from .trainspec import GearSpec, SolverSpec, StageSpec, TrainSpec
+from .trainspec import GearSpec, SolverSpec, StageSpec, SummingSpec, TrainSpec
 
-__all__ = ["balanced_shifts", "spec_with_stages", "solve_train_spec", "solve"]
+__all__ = ["balanced_shifts", "spec_with_stages", "solve_train_spec", "solve", "summing_train_spec",
+           "planetary_differential"]
 
 
 def balanced_shifts(driver: int, driven: int, system: ToothSystem, thinning: float = 0.0) -> tuple[float, float]:
@@ -113,3 +114,94 @@ def solve_train_spec(spec: TrainSpec, progress=None) -> tuple[TrainSpec, object]
         raise InputError("the train has no [solve] table")
     train = solve(spec.solver, progress=progress)
     return spec_with_stages(spec, train), train
+
+
+def _least_shift(teeth: int, system: ToothSystem, thinning: float) -> float:
+    """The least profile shift (rounded up to 0.01, never negative) that keeps ``teeth`` free of undercut."""
+    need = min_shift_without_undercut(teeth, system.pressure_angle, system.straight_flank_depth) + thinning
+    return max(0.0, math.ceil(need * 100 - 1e-9) / 100)
+
+
+def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, **fields) -> TrainSpec:
+    """The train of a solved summing ``train`` (:class:`gearcad.summing.SummingTrain`); ``fields`` are the
+    other :class:`TrainSpec` fields (name, module, thickness, ...).
+
+    A path without idler gets balanced shifts (the two such paths are then
+    brought to one centre distance, :func:`_equal_centres`); a path with an idler
+    gets the least shift against undercut on each gear and the fewest idler teeth
+    with which the whole train plans (reaches the axle and clears every part).
+    """
+    from .errors import GearcadError
+    from .plan import plan_train
+    from .profiles import load_fabrication
+
+    system = load_tooth_system(fields.get("tooth_system", "iso53-a"))
+    if fields.get("pressure_angle") is not None:
+        system = dataclasses.replace(system, pressure_angle=math.radians(fields["pressure_angle"]))
+    module = fields["module"]
+    backlash = load_fabrication(fields.get("fabrication", "laser-3mm-acrylic")).backlash
+    thinning = backlash / 2 / (2 * module * math.tan(system.pressure_angle))
+    stages = []
+    for (driver, driven), sign in ((train.path_a, train.sign_a), (train.path_b, train.sign_b)):
+        if sign < 0:
+            x1, x2 = balanced_shifts(driver, driven, system, thinning)
+        else:
+            x1, x2 = _least_shift(driver, system, thinning), _least_shift(driven, system, thinning)
+        stages.append(StageSpec(GearSpec(driver, shift=x1), GearSpec(driven, shift=x2)))
+    if train.sign_a < 0 and train.sign_b < 0:
+        stages = _equal_centres(stages, module, system)
+    done = TrainSpec(stages=tuple(stages), summing=differential, **fields)
+    idlers = [k for k, s in enumerate((train.sign_a, train.sign_b)) if s > 0]
+    if not idlers:
+        return done
+    first = max(12, min(min(stages[k].driver.teeth, stages[k].driven.teeth) for k in idlers) // 2)
+    last_error: GearcadError | None = None
+    for teeth in range(first, max_idler + 1):
+        idler = GearSpec(teeth, shift=_least_shift(teeth, system, thinning))
+        trial = list(stages)
+        for k in idlers:
+            trial[k] = dataclasses.replace(trial[k], idler=idler)
+        candidate = dataclasses.replace(done, stages=tuple(trial))
+        try:
+            plan_train(candidate)
+        except GearcadError as exc:
+            last_error = exc
+            continue
+        return candidate
+    raise InputError(f"no idler of {first} to {max_idler} teeth completes the summing train: {last_error}")
+
+
+def planetary_differential(train, module: float, system: ToothSystem, backlash: float, max_teeth: int,
+                           shift_limit: float | None = None, max_scale: int = 4) -> SummingSpec | None:
+    """The planetary differential of a solved summing ``train`` whose two meshes pass every check, or None.
+
+    The set's tooth counts may be multiplied by a whole ``k`` (the summing ratio
+    depends on sun : ring only, and the three conditions still hold) while the
+    ring stays inside path B's driven gear (``ring + 7 <= driven``).
+    """
+    from .errors import GearcadError
+    from .internal import analyse_internal_pair, make_internal_pair
+    from .pair import make_pair
+    from .planetary import check_set, make_set
+    from .summing import RING_FIT
+
+    sun, planet, ring, count = train.planetary
+    for k in range(1, max_scale + 1):
+        if ring * k + RING_FIT > train.path_b[1] or planet * k > max_teeth or sun * k > max_teeth:
+            break
+        try:
+            pset = make_set(sun * k, planet * k, ring * k, count)
+            conditions = check_set(pset, module, shift_limit, pressure_angle=system.pressure_angle,
+                                   addendum=system.addendum)
+            if any(f.severity == "failure" for f in conditions.findings):
+                continue
+            x_s, x_p, _, x_r = conditions.shifts
+            outer = make_pair(sun * k, planet * k, module, system, shifts=(x_s, x_p), backlash=backlash)
+            inner = make_internal_pair(planet * k, ring * k, module, system, shifts=(x_p, x_r), backlash=backlash)
+        except GearcadError:
+            continue
+        findings = analyse_pair(outer).findings + analyse_internal_pair(inner).findings
+        if all(f.severity != "failure" for f in findings):
+            return SummingSpec("planetary", sun=sun * k, planet=planet * k, ring=ring * k, planets=count,
+                               shift_limit=shift_limit)
+    return None

@@ -31,7 +31,7 @@ from .planetary import check_set, make_arrangement, make_set, set_ratio
 from .profiles import Fabrication, load_fabrication
 from .trainspec import GearSpec, TrainSpec
 
-__all__ = ["plan_planetary", "ring_phase"]
+__all__ = ["plan_planetary", "ring_phase", "same_phase", "kerf_cut", "toothed_parts"]
 
 RING_BOLTS = 6  # mounting holes in the rim of a fixed ring; common practice
 
@@ -47,7 +47,7 @@ def ring_phase(planet_rotation: float, planet_teeth: int, ring_teeth: int, direc
     return direction - math.pi / ring_teeth + offset * planet_teeth / ring_teeth
 
 
-def _same_phase(angles: list[float], teeth: int) -> bool:
+def same_phase(angles: list[float], teeth: int) -> bool:
     pitch = 2 * math.pi / teeth
     first = angles[0]
     return all(abs((a - first + pitch / 2) % pitch - pitch / 2) < 1e-9 for a in angles)
@@ -58,12 +58,12 @@ def _stepped_turn(turn: float, angle: float, ps, pset, first_turn: float, first_
     target = ring_phase(first_turn, pset.ring_planet, ps.ring, first_angle)
     for j in range(ps.planet):
         candidate = turn + 2 * math.pi * j / ps.planet
-        if _same_phase([target, ring_phase(candidate, pset.ring_planet, ps.ring, angle)], ps.ring):
+        if same_phase([target, ring_phase(candidate, pset.ring_planet, ps.ring, angle)], ps.ring):
             return candidate
     return turn
 
 
-def _cut(part: Part, fab: Fabrication, tolerance: float) -> Part:
+def kerf_cut(part: Part, fab: Fabrication, tolerance: float) -> Part:
     if not fab.kerf:
         return part
     half = fab.kerf / 2
@@ -71,11 +71,11 @@ def _cut(part: Part, fab: Fabrication, tolerance: float) -> Part:
                 tuple((x, y, d - fab.kerf) for x, y, d in part.circles), part.label, part.symmetry)
 
 
-def _gear_part(name: str, gear, bore: float, fab: Fabrication, tolerance: float) -> tuple[Part, Part]:
+def toothed_parts(name: str, gear, bore: float, fab: Fabrication, tolerance: float) -> tuple[Part, Part]:
     hole = bore + fab.bore_clearance
     part = Part(name, gear_loop(gear, tolerance), (), ((0.0, 0.0, hole),),
                 f"{name}  z{gear.teeth}  m{gear.module:g}  x{gear.shift:+.3f}", symmetry=gear.teeth)
-    return part, _cut(part, fab, tolerance)
+    return part, kerf_cut(part, fab, tolerance)
 
 
 def _ring_part(ring: RingGear, fixed: bool, fab: Fabrication, tolerance: float) -> tuple[Part, Part, float]:
@@ -85,7 +85,7 @@ def _ring_part(ring: RingGear, fixed: bool, fab: Fabrication, tolerance: float) 
                    bolt_circle * math.sin(2 * math.pi * k / RING_BOLTS + math.pi / RING_BOLTS), fab.spacer_hole)
                   for k in range(RING_BOLTS)) if fixed else ()
     part = Part("ring", base.outer, base.holes, bolts, f"ring  z{ring.teeth}  m{ring.module:g}  x{ring.shift:+.3f}")
-    return part, _cut(part, fab, tolerance), bolt_circle
+    return part, kerf_cut(part, fab, tolerance), bolt_circle
 
 
 def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = None) -> Plan:
@@ -127,7 +127,7 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
                                             for r, a in zip(planet_rot_a[1:], angles[1:])]
     planet_rot_b = planet_rot_a
     ring_rots = [ring_phase(rb, pset.ring_planet, ps.ring, a) for rb, a in zip(planet_rot_b, angles)]
-    if not _same_phase(ring_rots, ps.ring):
+    if not same_phase(ring_rots, ps.ring):
         raise GeometryError("the planets do not all mesh the ring at one ring position: the assembly condition fails")
 
     bore = spec.bore
@@ -135,17 +135,17 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
     z0 = fab.layer_gap
     pitch = spec.thickness + fab.layer_gap
     gears: list[PlannedGear] = []
-    sun_part, sun_cut = _gear_part("sun", sun_gear, bore, fab, tolerance)
+    sun_part, sun_cut = toothed_parts("sun", sun_gear, bore, fab, tolerance)
     gears.append(PlannedGear("sun", "sun", 1, sun_gear, GearSpec(ps.sun, x_s), 0, 0, bore, sun_part, sun_cut, 0.0, z0))
     shafts = [PlannedShaft("centre", cx, cy, bore, True, True)]
     pin = bore
     for k, a in enumerate(angles, start=1):
         shafts.append(PlannedShaft(f"planet-{k}", cx + centre * math.cos(a), cy + centre * math.sin(a), pin, False, False))
-        part, cut = _gear_part(f"planet-{k}", planet_sun, pin, fab, tolerance)
+        part, cut = toothed_parts(f"planet-{k}", planet_sun, pin, fab, tolerance)
         gears.append(PlannedGear(f"planet-{k}", "planet", 1, planet_sun, GearSpec(ps.planet, x_p1), k, 0, pin, part, cut,
                                  planet_rot_a[k - 1], z0))
         if pset.stepped:
-            part, cut = _gear_part(f"planet-{k}-ring-side", planet_ring, pin, fab, tolerance)
+            part, cut = toothed_parts(f"planet-{k}-ring-side", planet_ring, pin, fab, tolerance)
             gears.append(PlannedGear(f"planet-{k}-ring-side", "planet", 1, planet_ring, GearSpec(pset.ring_planet, x_p2), k,
                                      1, pin, part, cut, planet_rot_b[k - 1], z0 + pitch))
     ring_drawn, ring_cut, bolt_circle = _ring_part(ring, ps.fixed == "ring", fab, tolerance)
@@ -180,11 +180,11 @@ def _plates(spec, fab, tolerance, cx, cy, centre, angles, ps, ring, bolt_circle,
     plates = []
     for name, z in (("back-plate", -spec.thickness), ("front-plate", top + spec.thickness + fab.layer_gap)):
         part = Part(name, outer, (), shaft_hole + bolts + corners, f"{spec.name} {name}")
-        plates.append(PlannedPlate(name, part, _cut(part, fab, tolerance), z))
+        plates.append(PlannedPlate(name, part, kerf_cut(part, fab, tolerance), z))
     # The carrier: a disc on the set's axis holding the planet pins at their angles.
     radius = centre + pin / 2 + max(2.0, 2 * spec.module)
     pins = tuple((cx + centre * math.cos(a), cy + centre * math.sin(a), pin + fab.bore_clearance) for a in angles)
     carrier = Part("carrier", circle_loop(cx, cy, 2 * radius, tolerance, clockwise=False), (), shaft_hole + pins,
                    f"{spec.name} carrier, {len(angles)} planet pins on {2 * centre:.3f} mm")
-    plates.append(PlannedPlate("carrier", carrier, _cut(carrier, fab, tolerance), top))
+    plates.append(PlannedPlate("carrier", carrier, kerf_cut(carrier, fab, tolerance), top))
     return tuple(plates)

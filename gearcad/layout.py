@@ -28,7 +28,8 @@ import numpy as np
 
 from .errors import InputError
 
-__all__ = ["LayoutGear", "Link", "LayoutProblem", "Layout", "solve_layout", "mesh_phase", "shaft_sides"]
+__all__ = ["LayoutGear", "Link", "LayoutProblem", "Layout", "solve_layout", "mesh_phase", "shaft_sides",
+           "clearance_shortfall", "fit_plate"]
 
 ROTATIONS = np.radians(np.arange(0.0, 90.0, 3.0))
 
@@ -240,6 +241,17 @@ def solve_layout(problem: LayoutProblem) -> Layout:
     fine = np.radians(np.arange(0.0, 90.0, 0.05))
     _, rotation = _plate(problem, pos, fine)
     return _place_on_plate(problem, pos[0], float(rotation[0]), free)
+
+
+def clearance_shortfall(problem: LayoutProblem, positions: np.ndarray) -> float:
+    """Largest shortfall (mm) against the clearance rules for one placement (S, 2); <= 0 when every rule is kept."""
+    return float(_violation(problem, np.asarray(positions, dtype=float)[None])[0])
+
+
+def fit_plate(problem: LayoutProblem, positions: np.ndarray, search: str) -> Layout:
+    """The plate around a fixed placement (S, 2): shafts moved to plate coordinates, turned landscape if need be."""
+    placed = _place_on_plate(problem, np.asarray(positions, dtype=float), 0.0, 0)
+    return Layout(placed.positions, placed.width, placed.height, search)
 
 
 def _place_on_plate(problem: LayoutProblem, pos: np.ndarray, rotation: float, free: int) -> Layout:

@@ -330,6 +330,10 @@ def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: Inpu
         from .epicyclic import plan_planetary
 
         return plan_planetary(spec, tolerance, load)
+    if spec.summing is not None:
+        from .differential import plan_summing
+
+        return plan_summing(spec, tolerance, load)
     if not spec.stages:
         raise InputError("the train has no stages: solve its ratio first (gearcad design)")
     system = _system(spec)

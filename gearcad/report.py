@@ -11,7 +11,7 @@ from typing import Any, Mapping
 
 from .plan import Plan
 
-__all__ = ["CAUTIONS", "report_data", "report_markdown", "ratio_data"]
+__all__ = ["CAUTIONS", "report_data", "report_markdown", "ratio_data", "train_kind"]
 
 CAUTIONS = (
     "Gears are machinery: guard every pinch point where teeth meet before anything drives the train.",
@@ -36,6 +36,21 @@ def ratio_data(plan: Plan) -> dict[str, Any]:
         data["target_value"] = parsed.value
         data["relative_error"] = float(exact_relative_error(plan.ratio.numerator, plan.ratio.denominator, parsed))
     return data
+
+
+def train_kind(plan: Plan) -> tuple[str, str]:
+    """The train's kind and how its ratio comes about, in words."""
+    spec = plan.spec
+    if spec.planetary is not None:
+        return "planetary", ("Ratio = output turns per input turn of the planetary set, from Willis's equation on each "
+                             "mesh with the fixed member held (the kinematic model).")
+    if spec.summing is not None:
+        rule = ("(side a + side b) / 2" if spec.summing.differential == "mean"
+                else "(z_sun side a + z_ring side b) / (z_sun + z_ring)")
+        return "summing", ("Ratio = output (carrier) turns per input turn of a summing train: each path turns its side of "
+                           f"the differential at driver / driven teeth (reversed by each mesh), and the carrier turns at {rule} "
+                           "(the kinematic model, Willis's equation on each mesh).")
+    return "compound", "Ratio = output turns per input turn = product of driver teeth / driven teeth."
 
 
 def _files(files: Mapping[str, Mapping[str, str]], name: str, kinds: tuple[str, ...]) -> dict[str, str | None]:
@@ -73,7 +88,7 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
                          for f in a.findings + m.findings],
         })
     return {
-        "name": spec.name, "title": spec.title,
+        "name": spec.name, "title": spec.title, "kind": train_kind(plan)[0], "ratio_rule": train_kind(plan)[1],
         "ratio": ratio_data(plan),
         "tooth_system": {"name": plan.system.name, "title": plan.system.title,
                          "pressure_angle": math.degrees(plan.system.pressure_angle)},
@@ -119,7 +134,7 @@ def report_markdown(data: Mapping[str, Any]) -> str:
     """report.md from :func:`report_data`'s dictionary."""
     r = data["ratio"]
     lines = [f"# {data['title'] or data['name']}", ""]
-    lines += ["## Ratio", "", "Ratio = output turns per input turn = product of driver teeth / driven teeth.", ""]
+    lines += ["## Ratio", "", data["ratio_rule"], ""]
     achieved = f"{r['numerator']}/{r['denominator']} = {r['value']:.12g}"
     if r["target"]:
         err = r["relative_error"]

@@ -63,6 +63,12 @@ class SummingTrain:
             teeth += sun + ring + planet * count
         return teeth
 
+    @property
+    def axis_teeth(self) -> int | None:
+        """Half-modules from the input shaft to the differential axis set by a path without idler, else None."""
+        direct = [sum(p) for p, s in ((self.path_a, self.sign_a), (self.path_b, self.sign_b)) if s < 0]
+        return direct[0] if direct else None
+
 
 def summing_ratio(kind: str, rho_a: Fraction, rho_b: Fraction, planetary: tuple[int, int, int, int] | None = None) -> Fraction:
     """Output turns per input turn of a summing train with side-member speeds ``rho_a``, ``rho_b``."""
@@ -72,14 +78,16 @@ def summing_ratio(kind: str, rho_a: Fraction, rho_b: Fraction, planetary: tuple[
     return (sun * rho_a + ring * rho_b) / (sun + ring)
 
 
-def _stages(teeth: list[int], max_stage_ratio: float) -> tuple[np.ndarray, np.ndarray]:
-    """Every allowed stage, one per distinct ratio: the one with the fewest teeth."""
+def _stages(teeth: list[int], max_stage_ratio: float, per_sum: bool = False) -> tuple[np.ndarray, np.ndarray]:
+    """Every allowed stage, one per distinct ratio (``per_sum``: per ratio and tooth sum): the fewest teeth."""
     z = np.array(teeth, dtype=np.int64)
     a, b = np.meshgrid(z, z, indexing="ij")
     ok = (a <= max_stage_ratio * b) & (b <= max_stage_ratio * a)
     a, b = a[ok], b[ok]
     g = np.gcd(a, b)
     key = (a // g) * 1_000_003 + (b // g)  # the reduced ratio; teeth stay below 10^6
+    if per_sum:  # the one-axle rules tell stages of one ratio apart by their tooth sums
+        key = key * 4096 + (a + b)
     order = np.lexsort((a + b, key))
     first = np.ones(len(order), dtype=bool)
     first[1:] = key[order][1:] != key[order][:-1]
@@ -87,8 +95,23 @@ def _stages(teeth: list[int], max_stage_ratio: float) -> tuple[np.ndarray, np.nd
     return a[keep], b[keep]
 
 
+def _ring_tips_clear(planet: int, ring: int, pressure_angle: float = math.radians(20.0), addendum: float = 1.0) -> bool:
+    """Whether an unshifted ring's tip circle stays outside the planet's interference point (module 1).
+
+    The line of action touches the ring's base circle at T2 and the planet's at
+    T1, ``a sin(alpha)`` apart (internal pair: both on one side), so T1 lies
+    ``sqrt(r_b2^2 + (a sin alpha)^2)`` from the ring's centre; the ring's tips
+    must not reach inside it (ISO 21771's interference condition for internal
+    gears, as gearcad.internal checks it).
+    """
+    centre = (ring - planet) / 2
+    base = ring * math.cos(pressure_angle) / 2
+    return ring / 2 - addendum >= math.hypot(base, centre * math.sin(pressure_angle))
+
+
 def _planetary_sets(teeth: list[int], max_ring: int, planets: int, margin: float) -> list[tuple[int, int, int, int]]:
-    """Standard (unshifted) sets that are coaxial, assemble with equal spacing and clear their neighbours."""
+    """Standard (unshifted) sets that are coaxial, assemble with equal spacing, clear their neighbours, and whose
+    ring tips stay clear of the planet's interference point."""
     out = []
     allowed = set(teeth)
     for sun in teeth:
@@ -99,40 +122,182 @@ def _planetary_sets(teeth: list[int], max_ring: int, planets: int, margin: float
             # Neighbours: planet centres 2 a sin(pi/N) apart, tips need (z_p + 2 + margin) modules.
             if (sun + planet) * math.sin(math.pi / planets) <= planet + 2 + margin:
                 continue
-            if sun in allowed and planet in allowed:
+            if sun in allowed and planet in allowed and _ring_tips_clear(planet, ring):
                 out.append((sun, planet, ring, planets))
     return out
 
 
+IDLER_GAP = 6  # an idler path needs the axis 6 half-modules beyond driver + driven: tips 1 module apart; common practice
+RING_FIT = 7  # outside teeth round a ring: z_outside >= z_ring + 7 leaves 1 module of rim (2.5 + 2.5 + 2); common practice
+WINDOW = 8  # neighbours either side of the needed ratio tried when a rule may refuse the nearest
+
+
 def solve_summing(target, teeth: list[int], kind: str = "mean", count: int = 5, max_stage_ratio: float = 6.0,
-                  max_ring: int = 200, planets: int = 3, margin: float = 0.5) -> list[SummingTrain]:
+                  max_ring: int = 200, planets: int = 3, margin: float = 0.5, one_axis: bool = True,
+                  min_axis: int = 0) -> list[SummingTrain]:
     """The ``count`` best summing trains for ``target`` (a :class:`gearcad.ratio.Target`).
 
     Ranked by |relative error| (exact fractions against ``target.approx``), then
     fewest teeth.  ``margin`` is the least tip gap between neighbouring planets,
     modules (common practice: 0.5).
+
+    With ``one_axis`` (the default) both paths run from one input shaft to one
+    differential axis, all gears of one module, so the train can be built:
+
+    - a path without idler fixes the axis distance: ``S = driver + driven``
+      half-modules (reference centre distance ``m S / 2``); two such paths need
+      the same ``S``;
+    - a path with an idler reaches any axis at least ``driver + driven + 6``
+      half-modules away (its driver and driven tips then clear by a module);
+    - a path without idler has ``S >= min_axis`` (room for the differential
+      beside the input shaft, from the caller);
+    - the planetary kind's ring is driven by teeth on its outside (path B's
+      driven gear), which needs ``driven >= ring + 7``.
+
+    The search is exact for the path rules (the paths are grouped by ``S``);
+    under the ring rule it takes the best of the 2 x 8 stages nearest the needed ratio.
     """
     if kind not in KINDS:
         raise InputError(f"summing kind must be one of {', '.join(KINDS)}, got {kind!r}")
     if planets < 2:
         raise InputError(f"a planetary differential needs at least 2 planets, got {planets!r}")
     goal = target.approx
-    a, b = _stages(teeth, max_stage_ratio)
-    values = a / b
-    order = np.argsort(values, kind="stable")
-    sorted_values = values[order]
+    a, b = _stages(teeth, max_stage_ratio, per_sum=one_axis)
     sets = _planetary_sets(teeth, max_ring, planets, margin) if kind == "planetary" else [None]
+    ring_fit = one_axis and kind == "planetary"
+    if ring_fit:  # the ring must fit inside path B's driven gear
+        sets = [s for s in sets if s[2] + RING_FIT <= max(teeth)]
     if not sets:
-        raise InputError(f"no planetary set of {planets} planets fits the tooth range and a ring of at most {max_ring} teeth")
+        raise InputError(f"no planetary set of {planets} planets fits the tooth range and a ring of at most {max_ring} teeth"
+                         + (f" (and {RING_FIT} fewer than the largest tooth count, for its outside teeth)" if ring_fit else ""))
     best: dict[tuple, SummingTrain] = {}
-    chunk = 256
-    for start in range(0, len(sets), chunk):
-        block = sets[start:start + chunk]
-        for sign_a in (-1, 1):
-            for sign_b in (-1, 1):
-                _best_for(best, kind, block, goal, sign_a, sign_b, a, b, values, order, sorted_values, count)
+    for sign_a in (-1, 1):
+        for sign_b in (-1, 1):
+            for outer_is_a, outer, pool in _groups(a + b, sign_a, sign_b, one_axis, min_axis):
+                rows = max(1, 2_000_000 // (2 * len(outer)))
+                for start in range(0, len(sets), rows):
+                    search = _Search(kind, sets[start:start + rows], goal, sign_a, sign_b, a, b, ring_fit)
+                    search.run(best, outer_is_a, outer, pool, count)
     ranked = sorted(best.values(), key=lambda t: (abs(t.relative_error), t.total_teeth, t.path_a, t.path_b))
     return ranked[:count]
+
+
+def _groups(sums: np.ndarray, sign_a: int, sign_b: int, one_axis: bool, min_axis: int):
+    """(outer is path A, outer stage indices, pool stage indices) for each group the rules allow.
+
+    For every outer stage the search finds the best pool stage; a direct path
+    (sign -1) is the outer one when there is one, so the groups stay small.
+    """
+    every = np.arange(len(sums))
+    if not one_axis or (sign_a > 0 and sign_b > 0):
+        yield True, every, every
+        return
+    by_sum = np.argsort(sums, kind="stable")
+    sorted_sums = sums[by_sum]
+    for s in np.unique(sorted_sums[sorted_sums >= min_axis]):
+        lo, hi = np.searchsorted(sorted_sums, [s, s + 1])
+        direct = by_sum[lo:hi]
+        if sign_a < 0 and sign_b < 0:
+            yield True, direct, direct
+            continue
+        idler_side = by_sum[:np.searchsorted(sorted_sums, s - IDLER_GAP + 1)]
+        if len(idler_side):
+            yield sign_a < 0, direct, idler_side
+
+
+class _Search:
+    """One block of differentials (rows) and one sign pair: for each outer stage, the best pool stage."""
+
+    def __init__(self, kind, block, goal, sign_a, sign_b, a, b, ring_fit) -> None:
+        self.kind, self.block, self.goal = kind, block, goal
+        self.sign_a, self.sign_b, self.a, self.b, self.ring_fit = sign_a, sign_b, a, b, ring_fit
+        if kind == "mean":
+            self.sun = self.ring = np.ones((1, 1))
+        else:
+            self.sun = np.array([p[0] for p in block], dtype=float)[:, None]
+            self.ring = np.array([p[2] for p in block], dtype=float)[:, None]
+
+    def run(self, best: dict, outer_is_a: bool, outer: np.ndarray, pool: np.ndarray, count: int) -> None:
+        a, b, g = self.a, self.b, float(self.goal)
+        values = a / b
+        pool = pool[np.argsort(values[pool], kind="stable")]
+        pool_values = values[pool]
+        outer_values = values[outer][None, :]
+        sun, ring = self.sun, self.ring
+        if outer_is_a:  # the B stage needed for each A stage: rho_b = ((s + r) g - s rho_a) / r
+            need = ((sun + ring) * g - sun * self.sign_a * outer_values) / ring * self.sign_b
+        else:  # the A stage for each B stage: rho_a = ((s + r) g - r rho_b) / s
+            need = ((sun + ring) * g - ring * self.sign_b * outer_values) / sun * self.sign_a
+        rows = np.broadcast_to(np.arange(need.shape[0])[:, None], need.shape)
+        other, usable, whole = self._nearest(pool, pool_values, need, rows, outer, outer_is_a, 1)
+        if not whole.all():  # the ring rule refused a nearest stage: look wider around the same ratio
+            miss = ~whole
+            wide, ok, _ = self._nearest(pool, pool_values, need[miss], rows[miss], np.broadcast_to(outer[None, :], need.shape)[miss],
+                                     outer_is_a, WINDOW)
+            other = other.copy()
+            usable = usable.copy()
+            other[miss], usable[miss] = wide, ok
+        first = np.broadcast_to(outer[None, :], other.shape) if outer_is_a else other
+        second = other if outer_is_a else np.broadcast_to(outer[None, :], other.shape)
+        ratio = (sun * self.sign_a * values[first] + ring * self.sign_b * values[second]) / (sun + ring)
+        error = np.where(usable, np.abs(ratio / g - 1), np.inf)
+        self._keep(best, first, second, error, count)
+
+    def _nearest(self, pool, pool_values, need, rows, outer, outer_is_a, width):
+        """The pool stage nearest ``need`` among ``2 width`` neighbours that the ring rule allows; whether any
+        does; whether the rule refused none of them."""
+        values = self.a / self.b
+        slots = np.searchsorted(pool_values, need)[..., None] + np.arange(-width, width)
+        inside = (slots >= 0) & (slots < len(pool))
+        picked = pool[np.clip(slots, 0, len(pool) - 1)]
+        gap = np.where(inside, np.abs(values[picked] - need[..., None]), np.inf)
+        whole = np.ones(need.shape, dtype=bool)
+        if self.ring_fit:  # path B's driven gear carries the ring inside it
+            ring = self.ring[:, 0][rows][..., None]
+            driven_b = self.b[picked] if outer_is_a else self.b[outer][..., None]
+            fits = driven_b >= ring + RING_FIT
+            gap = np.where(fits, gap, np.inf)
+            whole = (fits | ~inside).all(axis=-1)
+        choice = np.argmin(gap, axis=-1)[..., None]
+        return (np.take_along_axis(picked, choice, axis=-1)[..., 0],
+                np.isfinite(np.take_along_axis(gap, choice, axis=-1)[..., 0]), whole)
+
+    def _keep(self, best: dict, first: np.ndarray, second: np.ndarray, error: np.ndarray, count: int) -> None:
+        """Record, exactly, the candidates that may enter the ``count`` best so far."""
+        a, b = self.a, self.b
+        error = error.ravel()
+        finite = np.isfinite(error)
+        if not finite.any():
+            return
+        limit, most = _threshold(best, count)
+        if np.isfinite(limit):
+            teeth = (a[first] + b[first] + a[second] + b[second])
+            if self.kind == "planetary":
+                teeth = teeth + np.array([p[0] + p[2] + p[1] * p[3] for p in self.block])[:, None]
+            teeth = np.broadcast_to(teeth, first.shape).ravel()
+            near = error <= limit * (1 + 1e-6) + 1e-13
+            clearly = error < limit * (1 - 1e-6) - 1e-13
+            chosen = np.nonzero(clearly | (near & (teeth < most)))[0]
+        else:
+            take = max(2 * count, 8)
+            chosen = np.argpartition(error, min(take, len(error) - 1))[:take]
+            chosen = chosen[finite[chosen]]
+        columns = first.shape[1]
+        flat_first, flat_second = first.ravel(), second.ravel()
+        for k in chosen:
+            row = int(k) // columns
+            plan = self.block[row] if self.kind == "planetary" else None
+            i, j = int(flat_first[k]), int(flat_second[k])
+            exact_a = Fraction(int(a[i]), int(b[i])) * self.sign_a
+            exact_b = Fraction(int(a[j]), int(b[j])) * self.sign_b
+            exact = summing_ratio(self.kind, exact_a, exact_b, plan)
+            if exact <= 0:
+                continue
+            train = SummingTrain(self.kind, (int(a[i]), int(b[i])), self.sign_a, (int(a[j]), int(b[j])), self.sign_b,
+                                 plan, exact, float(exact / self.goal - 1))
+            key = (exact, plan)
+            if key not in best or train.total_teeth < best[key].total_teeth:
+                best[key] = train
 
 
 def _threshold(best: dict, count: int) -> tuple[float, int]:
@@ -141,52 +306,6 @@ def _threshold(best: dict, count: int) -> tuple[float, int]:
         return math.inf, 0
     kth = sorted(best.values(), key=lambda t: (abs(t.relative_error), t.total_teeth))[count - 1]
     return abs(kth.relative_error), kth.total_teeth + 1
-
-
-def _best_for(best, kind, block, goal, sign_a, sign_b, a, b, values, order, sorted_values, count) -> None:
-    """Rank, for a block of differentials (rows) and every first path (columns), the best second path."""
-    g = float(goal)
-    if kind == "mean":
-        sun = ring = np.ones((1, 1))
-    else:
-        sun = np.array([p[0] for p in block], dtype=float)[:, None]
-        ring = np.array([p[2] for p in block], dtype=float)[:, None]
-    need = ((sun + ring) * g - sun * sign_a * values[None, :]) / ring * sign_b
-    at = np.searchsorted(sorted_values, need)
-    lo = order[np.clip(at - 1, 0, len(order) - 1)]
-    hi = order[np.clip(at, 0, len(order) - 1)]
-    second = np.where(np.abs(values[lo] - need) <= np.abs(values[hi] - need), lo, hi)
-    ratio = (sun * sign_a * values[None, :] + ring * sign_b * values[second]) / (sun + ring)
-    error = np.abs(ratio / g - 1).ravel()
-    limit, most = _threshold(best, count)
-    take = max(2 * count, 8)
-    if np.isfinite(limit):
-        teeth = (a + b)[None, :] + a[second] + b[second]
-        if kind == "planetary":
-            extra = np.array([p[0] + p[2] + p[1] * p[3] for p in block])[:, None]
-            teeth = teeth + extra
-        teeth = teeth.ravel()
-        near = error <= limit * (1 + 1e-6) + 1e-13
-        clearly = error < limit * (1 - 1e-6) - 1e-13
-        picked = np.nonzero(clearly | (near & (teeth < most)))[0]
-    else:
-        picked = np.argpartition(error, min(take, len(error) - 1))[:take]
-    columns = len(values)
-    flat_second = second.ravel()
-    for k in picked:
-        row, i = divmod(int(k), columns)
-        plan = block[row] if kind == "planetary" else None
-        j = int(flat_second[k])
-        exact_a = Fraction(int(a[i]), int(b[i])) * sign_a
-        exact_b = Fraction(int(a[j]), int(b[j])) * sign_b
-        exact = summing_ratio(kind, exact_a, exact_b, plan)
-        if exact <= 0:
-            continue
-        train = SummingTrain(kind, (int(a[i]), int(b[i])), sign_a, (int(a[j]), int(b[j])), sign_b, plan, exact,
-                             float(exact / goal - 1))
-        key = (exact, plan)
-        if key not in best or train.total_teeth < best[key].total_teeth:
-            best[key] = train
 
 
 def summing_network(train: SummingTrain):

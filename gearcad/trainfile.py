@@ -29,13 +29,14 @@ from pathlib import Path
 from typing import Any
 
 from .errors import InputError
-from .trainspec import GearSpec, Hub, Keyway, PlanetarySpec, SolverSpec, StageSpec, TrainSpec
+from .trainspec import GearSpec, Hub, Keyway, PlanetarySpec, SolverSpec, StageSpec, SummingSpec, TrainSpec
 
 __all__ = ["parse_train", "read_train", "train_to_toml"]
 
 TOP_KEYS = {"name", "title", "target", "module", "thickness", "tooth_system", "pressure_angle", "fabrication",
-            "bore", "coaxial", "stage", "solve", "planetary"}
+            "bore", "coaxial", "stage", "solve", "planetary", "summing"}
 PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit"}
+SUMMING_KEYS = {"differential", "sun", "planet", "planets", "ring", "module", "tube", "axis_distance", "shift_limit"}
 STAGE_KEYS = {"driver", "driven", "module", "idler"}
 GEAR_KEYS = {"teeth", "shift", "bore", "flat", "keyway", "hub"}
 SOLVE_KEYS = {"ratio", "stages", "min_teeth", "max_teeth", "max_stage_ratio", "direction", "hunting", "coaxial", "exclude"}
@@ -187,6 +188,27 @@ def _planetary(data: dict, ctx: _Context) -> PlanetarySpec | None:
                          shift_limit=_number(p, "shift_limit", ctx, "planetary"), **counts)
 
 
+def _summing(data: dict, ctx: _Context) -> SummingSpec | None:
+    if "summing" not in data:
+        return None
+    s = data["summing"]
+    if not isinstance(s, dict):
+        raise ctx.error("must be a [summing] table", "summing")
+    _check_keys(s, SUMMING_KEYS, ctx, "summing")
+    counts = {}
+    for key in ("sun", "planet", "planets", "ring"):
+        if key in s:
+            if isinstance(s[key], bool) or not isinstance(s[key], int):
+                raise ctx.error(f"must be a whole number, got {s[key]!r}", key, "summing")
+            counts[key] = s[key]
+    numbers = {k: _number(s, k, ctx, "summing") for k in ("module", "tube", "axis_distance", "shift_limit")}
+    try:
+        return SummingSpec(differential=_text(s, "differential", ctx, "mean", "summing"), **counts, **numbers)
+    except InputError as exc:
+        key = next((k for k in SUMMING_KEYS if k in str(exc).split(" must")[0].split(" needs")[0]), "differential")
+        raise ctx.error(str(exc), key, "summing") from None
+
+
 def parse_train(text: str, filename: str = "train file") -> TrainSpec:
     """Parse a train file's text; raise :class:`InputError` naming file, line and key."""
     ctx = _Context(text, filename)
@@ -206,7 +228,7 @@ def parse_train(text: str, filename: str = "train file") -> TrainSpec:
             stages=_stages(data, ctx), tooth_system=_text(data, "tooth_system", ctx, "iso53-a"),
             pressure_angle=_number(data, "pressure_angle", ctx), fabrication=_text(data, "fabrication", ctx, "laser-3mm-acrylic"),
             bore=_number(data, "bore", ctx, default=3.0), coaxial=_flag(data, "coaxial", ctx), solver=_solver(data, ctx),
-            planetary=_planetary(data, ctx))
+            planetary=_planetary(data, ctx), summing=_summing(data, ctx))
     except InputError as exc:
         if str(exc).startswith(filename):
             raise
@@ -269,6 +291,13 @@ def train_to_toml(spec: TrainSpec) -> str:
             lines.append(f"input = {_quoted(p.input)}")
         if p.shift_limit is not None:
             lines.append(f"shift_limit = {p.shift_limit!r}")
+    if spec.summing is not None:
+        s = spec.summing
+        lines += ["", "# A summing train: the first [[stage]] is path a, the second path b.", "[summing]",
+                  f"differential = {_quoted(s.differential)}", f"sun = {s.sun}", f"planet = {s.planet}",
+                  f"planets = {s.planets}"]
+        lines += [f"{key} = {getattr(s, key)!r}" for key in ("ring", "module", "tube", "axis_distance", "shift_limit")
+                  if getattr(s, key) is not None]
     for stage in spec.stages:
         lines += ["", "[[stage]]", f"driver = {_gear_toml(stage.driver)}", f"driven = {_gear_toml(stage.driven)}"]
         if stage.module is not None:

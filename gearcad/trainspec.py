@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 from .errors import InputError
 from .validate import as_int, finite
 
-__all__ = ["GearSpec", "StageSpec", "TrainSpec", "Hub", "Keyway", "SolverSpec", "PlanetarySpec"]
+__all__ = ["GearSpec", "StageSpec", "TrainSpec", "Hub", "Keyway", "SolverSpec", "PlanetarySpec", "SummingSpec", "DIFFERENTIALS"]
 
 
 @dataclass(frozen=True)
@@ -96,6 +96,48 @@ class PlanetarySpec:
     shift_limit: float | None = None
 
 
+DIFFERENTIALS = ("mean", "planetary")
+
+
+@dataclass(frozen=True)
+class SummingSpec:
+    """The differential of a summing train; its two paths are the train's two stages (A, then B).
+
+    ``differential``: ``mean`` (a spur differential: two equal suns, ``planets``
+    pairs of meshing planets; the carrier turns at the mean of the suns) or
+    ``planetary`` (sun driven by path A, ring by path B through teeth on its
+    outside, carrier the output).  ``module``: the differential's module, mm
+    (None: the train's).  ``tube``: outer diameter of the tubes that join each
+    side's gears on the differential axle, mm (None: the bore plus 1 mm).
+    ``axis_distance``: input shaft to differential axle, mm, needed only when
+    both paths carry idlers (None: the least that clears).
+    """
+
+    differential: str = "mean"
+    sun: int = 18  # 18/13 with 3 pairs: no undercut, contact ratios above 1.2, neighbours clear (checked in tests)
+    planet: int = 13
+    planets: int = 3
+    ring: int | None = None
+    module: float | None = None
+    tube: float | None = None
+    axis_distance: float | None = None
+    shift_limit: float | None = None
+
+    def __post_init__(self) -> None:
+        if self.differential not in DIFFERENTIALS:
+            raise InputError(f"differential must be one of {', '.join(DIFFERENTIALS)}, got {self.differential!r}")
+        for key in ("sun", "planet", "planets"):
+            object.__setattr__(self, key, as_int(getattr(self, key), key))
+        if self.differential == "planetary" and self.ring is None:
+            raise InputError("a planetary differential needs its ring's tooth count (ring = ...)")
+        if self.differential == "mean" and self.ring is not None:
+            raise InputError("a mean differential has no ring; leave out ring, or use differential = \"planetary\"")
+        for key in ("module", "tube", "axis_distance"):
+            value = getattr(self, key)
+            if value is not None and not (math.isfinite(value) and value > 0):
+                raise InputError(f"summing {key} must be greater than 0 mm, got {value!r}")
+
+
 @dataclass(frozen=True)
 class TrainSpec:
     """A whole train: defaults for every gear and the stages.
@@ -116,6 +158,7 @@ class TrainSpec:
     coaxial: bool = False
     solver: SolverSpec | None = field(default=None, compare=False)
     planetary: PlanetarySpec | None = None
+    summing: SummingSpec | None = None
 
     def __post_init__(self) -> None:
         if not self.name or any(c in self.name for c in '/\\:*?"<>|') or self.name.startswith("."):
@@ -126,5 +169,9 @@ class TrainSpec:
             raise InputError(f"module must be greater than 0 mm, got {self.module!r}")
         if not (math.isfinite(self.bore) and self.bore > 0):
             raise InputError(f"bore must be greater than 0 mm, got {self.bore!r}")
+        if self.summing is not None and len(self.stages) != 2:
+            raise InputError(f"a summing train needs exactly two [[stage]] tables (path A, path B), got {len(self.stages)}")
+        if self.summing is not None and (self.planetary is not None or self.coaxial):
+            raise InputError("a summing train cannot also be planetary or coaxial")
         if not self.stages and self.solver is None and self.planetary is None:
             raise InputError("a train needs at least one [[stage]], or a [solve] table to find them")

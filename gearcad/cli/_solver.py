@@ -30,8 +30,8 @@ def add_solver_options(parser: argparse.ArgumentParser) -> None:
                         help="output on the input's axis: each pair of stages has one centre distance "
                              "(equal tooth sums with one module)")
     parser.add_argument("--shift-limit", type=float, metavar="X",
-                        help="with --coaxial: allow unequal tooth sums where profile shift within +-X per gear "
-                             "equalises the centre distances (reports the shifts)")
+                        help="profile shift allowed per gear (+-X) to bring unequal centre distances together: "
+                             "with --coaxial for compound trains, and for planetary sets (reports the shifts)")
     parser.add_argument("--direction", choices=("same", "opposite"),
                         help="output turns the same way as the input or the opposite way; adds an idler "
                              "(smallest tooth count available) where needed")

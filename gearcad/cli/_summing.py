@@ -6,7 +6,7 @@ import argparse
 
 from ._format import print_json, table
 
-__all__ = ["add_summing_options", "run_summing"]
+__all__ = ["add_summing_options", "run_summing", "on_the_shelf"]
 
 
 def add_summing_options(parser: argparse.ArgumentParser) -> None:
@@ -14,11 +14,14 @@ def add_summing_options(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--differential", choices=("mean", "planetary"),
                         help="summing: a differential whose carrier turns at the mean of its sides (default), or a "
                              "planetary set with the sun and the ring driven and the carrier the output")
+    parser.add_argument("--separate-axes", action="store_true",
+                        help="summing: let the two paths end on different axes (any sum of two stage ratios; by "
+                             "default both reach one differential axle from one input shaft, as gearcad build needs)")
 
 
 def _json(train, check) -> dict:
     paths = [{"driver": d, "driven": n, "idler": s > 0} for (d, n), s in ((train.path_a, train.sign_a), (train.path_b, train.sign_b))]
-    members = {"differential": train.kind, "paths": paths, "kinematic_check": str(check)}
+    members = {"differential": train.kind, "paths": paths, "kinematic_check": str(check), "axis_teeth": train.axis_teeth}
     if train.planetary:
         sun, planet, ring, count = train.planetary
         members.update({"sun": sun, "planet": planet, "ring": ring, "planets": count})
@@ -28,12 +31,22 @@ def _json(train, check) -> dict:
             "total_teeth": train.total_teeth, "kind": "summing", "members": members}
 
 
-def _on_the_shelf(train, inventory) -> bool:
+def on_the_shelf(train, inventory) -> bool:
     """Each physical gear of the two paths used once (the differential's own gears are made, not shelved)."""
     from collections import Counter
 
     need = Counter([*train.path_a, *train.path_b])
     return all(inventory.quantity(z) >= n for z, n in need.items())
+
+
+def _least_axis(kind: str, planets: int) -> int:
+    """Half-modules from the input shaft to the axle that the default mean differential needs (module 1, bore 3 mm)."""
+    import math
+
+    from ..differential import axle_room
+    from ..trainspec import SummingSpec
+
+    return math.ceil(2 * axle_room(SummingSpec("mean", planets=planets), 1.0) - 1e-9) if kind == "mean" else 0
 
 
 def run_summing(args: argparse.Namespace, limits) -> int:
@@ -51,10 +64,13 @@ def run_summing(args: argparse.Namespace, limits) -> int:
     kind = args.differential or "mean"
     inventory = limits.inventory
     wanted = count * 20 if inventory else count  # some may need more of a tooth count than the shelf holds
+    one_axis = not args.separate_axes
+    min_axis = _least_axis(kind, args.planets or 3) if one_axis else 0
     trains = solve_summing(target, sorted(limits.teeth), kind, wanted, float(limits.max_stage_ratio),
-                           args.max_ring_teeth or 200, args.planets or 3, args.neighbour_margin or 0.5)
+                           args.max_ring_teeth or 200, args.planets or 3, args.neighbour_margin or 0.5,
+                           one_axis=one_axis, min_axis=min_axis)
     if inventory:
-        trains = [t for t in trains if _on_the_shelf(t, inventory)][:count]
+        trains = [t for t in trains if on_the_shelf(t, inventory)][:count]
     checked = []
     for t in trains:
         model = network_ratio(*summing_network(t))
@@ -69,6 +85,13 @@ def run_summing(args: argparse.Namespace, limits) -> int:
     print(f"target {target.expression} = {target.digits(20)}")
     print(f"summing train: two one-stage paths from the input into a {kind} differential; "
           "ratio = output (carrier) turns per input turn")
+    if one_axis:
+        rules = "both paths reach one differential axle: paths without idler share one tooth sum"
+        rules += f" of at least {min_axis} (room for the default differential at module 1, bore 3 mm)" if min_axis else ""
+        rules += "; an idler path's driver and driven tips clear by a module"
+        if kind == "planetary":
+            rules += "; path B's driven gear carries the ring inside it (at least ring + 7 teeth)"
+        print(rules)
     rows = []
     for n, (t, _) in enumerate(shown, start=1):
         path = lambda p, s: f"{p[0]}/{p[1]}{' +idler' if s > 0 else ''}"  # noqa: E731

@@ -28,6 +28,9 @@ def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParse
     from .ratio import _add_planetary_options
 
     _add_planetary_options(p)
+    from ._summing import add_summing_options
+
+    add_summing_options(p)
     p.add_argument("--tolerance", type=float, metavar="REL", help=argparse.SUPPRESS)
     p.add_argument("--count", type=int, metavar="K", help=argparse.SUPPRESS)
     p.add_argument("--module", "-m", type=float, required=True, metavar="MM", help="module of every stage, mm")
@@ -51,13 +54,18 @@ def run(args: argparse.Namespace) -> int:
 
     load_tooth_system(args.system)  # unknown names fail before the search
     load_fabrication(args.profile)
+    if args.kind != "summing" and (args.differential or args.separate_axes):
+        from ..errors import InputError
+
+        raise InputError("--differential and --separate-axes apply only to --kind summing")
+    if args.kind == "summing" and args.separate_axes:
+        from ..errors import InputError
+
+        raise InputError("--separate-axes cannot be built: gearcad design needs both paths on one axle")
     if args.kind == "planetary":
         return _design_planetary(args)
     if args.kind == "summing":
-        from ..errors import InputError
-
-        raise InputError("gearcad design builds compound trains and planetary sets; for summing trains use "
-                         "gearcad ratio --kind summing (files for them are not made yet)")
+        return _design_summing(args)
     if args.shift_limit is not None and not args.coaxial:
         from ..errors import InputError
 
@@ -126,3 +134,65 @@ def _planetary_spec(args: argparse.Namespace, result, scale: int = 1):
                      planetary=PlanetarySpec(s.sun * scale, s.planet * scale, s.ring * scale, s.planets, ring_side,
                                              a.fixed, a.input, args.shift_limit))
 
+
+
+def _design_summing(args: argparse.Namespace) -> int:
+    """Solve for the best summing train whose paths reach one axle, choose its idlers, then build it."""
+    import math
+
+
+    from ..design import planetary_differential, summing_train_spec
+    from ..profiles import load_fabrication, load_tooth_system
+    from ..differential import axle_room
+    from ..errors import GearcadError, InputError
+    from ..plan import plan_train
+    from ..ratio.target import parse_target
+    from ..summing import solve_summing
+    from ..trainfile import train_to_toml
+    from ..trainspec import SummingSpec
+    from ._summing import on_the_shelf
+    from .ratio import _limits
+
+    if args.stages is not None or args.coaxial or args.stepped or args.fixed or args.input_member:
+        raise InputError("--stages, --coaxial, --stepped, --fixed and --input do not apply to --kind summing")
+    kind = args.differential or "mean"
+    planets = args.planets or 3
+    system, fab = load_tooth_system(args.system), load_fabrication(args.profile)
+    target = parse_target(args.target)
+    limits = _limits(args)
+    room = axle_room(SummingSpec("mean", planets=planets), args.module, args.bore, args.system, args.profile) \
+        if kind == "mean" else 0.0
+    min_axis = math.ceil(2 * room / args.module - 1e-9)
+    candidates = solve_summing(target, sorted(limits.teeth), kind, 20 if not args.inventory else 100,
+                               float(limits.max_stage_ratio), args.max_ring_teeth or 200, planets,
+                               args.neighbour_margin or 0.5, one_axis=True, min_axis=min_axis)
+    if limits.inventory:
+        candidates = [t for t in candidates if on_the_shelf(t, limits.inventory)]
+    if not candidates:
+        raise InputError(f"no summing train reaches {args.target!r} with both paths on one axle within the limits")
+    base = dict(name=args.name, module=args.module, thickness=args.thickness, target=args.target,
+                tooth_system=args.system, fabrication=args.profile, bore=args.bore, title=f"Summing train for {args.target}")
+    chosen, first_spec, problem = None, None, None
+    for train in candidates:  # best first: the first whose every check passes is built
+        if kind == "mean":
+            differential = SummingSpec("mean", planets=planets)
+        else:  # a set whose own meshes fail is passed over before its paths are laid out
+            differential = planetary_differential(train, args.module, system, fab.backlash, max(limits.teeth),
+                                                  args.shift_limit)
+            if differential is None:
+                continue
+        try:
+            spec = summing_train_spec(train, differential, **base)
+            plan = plan_train(spec)
+        except GearcadError as exc:
+            problem = problem or exc
+            continue
+        first_spec = first_spec or spec
+        if all(f.severity != "failure" for m in plan.meshes for f in m.analysis.findings) and \
+                all(f.severity != "failure" for f in plan.findings):
+            chosen = spec
+            break
+    spec = chosen or first_spec
+    if spec is None:
+        raise InputError(f"none of the {len(candidates)} best summing trains for {args.target!r} can be built: {problem}")
+    return build_and_write(spec, args, (("train.toml", train_to_toml(spec)),))

@@ -248,7 +248,7 @@ def run(args: argparse.Namespace) -> int:
     from ..ratio.target import parse_target
 
     if args.kind == "planetary":
-        _refuse(args, _COMPOUND_ONLY + (("differential", "--differential"),), "planetary")
+        _refuse(args, _COMPOUND_ONLY + (("differential", "--differential"), ("separate_axes", "--separate-axes")), "planetary")
         return _run_planetary(args)
     if args.kind == "summing":
         from ._summing import run_summing
@@ -256,7 +256,7 @@ def run(args: argparse.Namespace) -> int:
         _refuse(args, (("stages", "--stages"), ("coaxial", "--coaxial"), ("fractions", "--fractions"),
                        ("fixed", "--fixed"), ("input_member", "--input"), ("stepped", "--stepped")), "summing")
         return run_summing(args, _limits(args))
-    _refuse(args, _PLANETARY_ONLY + (("differential", "--differential"),), "compound")
+    _refuse(args, _PLANETARY_ONLY + (("differential", "--differential"), ("separate_axes", "--separate-axes")), "compound")
     target = parse_target(args.target)
     limits = _limits(args)
     if args.tolerance is not None:
