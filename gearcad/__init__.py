@@ -11,7 +11,7 @@ never loads the CAD kernel):
   :class:`BuildOptions`, :func:`load_fabrication`
 - epicyclic and summing trains: :func:`make_network`, :func:`solve_network`, :func:`network_ratio`,
   :func:`make_set`, :func:`check_set`, :func:`solve_planetary`, :func:`solve_summing`, :class:`RingGear`,
-  :func:`make_internal_pair`, :func:`analyse_internal_pair`
+  :func:`make_internal_pair`, :func:`analyse_internal_pair`, :class:`SummingSpec`, :func:`summing_train_spec`
 - load ratings: :func:`load_material`, :func:`rate_pair`, :func:`lewis_form_factor`
 - errors: :class:`GearcadError` and its subclasses
 
@@ -59,6 +59,8 @@ _LAZY = {
     "check_set": "gearcad.planetary",
     "solve_planetary": "gearcad.planetary",
     "solve_summing": "gearcad.summing",
+    "SummingSpec": "gearcad.trainspec",
+    "summing_train_spec": "gearcad.design",
     "RingGear": "gearcad.geometry.internal",
     "make_internal_pair": "gearcad.internal",
     "analyse_internal_pair": "gearcad.internal",

@@ -122,6 +122,19 @@ def _least_shift(teeth: int, system: ToothSystem, thinning: float) -> float:
     return max(0.0, math.ceil(need * 100 - 1e-9) / 100)
 
 
+def _idler_meshes_clean(stage: StageSpec, teeth: int, module: float, system: ToothSystem, thinning: float,
+                        backlash: float) -> bool:
+    """Whether an idler of ``teeth`` meshes the stage's driver and driven gear with no warning or failure."""
+    from .pair import make_pair
+
+    x = _least_shift(teeth, system, thinning)
+    for gear in (stage.driver, stage.driven):
+        pair = make_pair(gear.teeth, teeth, module, system, shifts=(gear.shift, x), backlash=backlash)
+        if any(f.severity != "ok" for f in analyse_pair(pair).findings):
+            return False
+    return True
+
+
 def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, **fields) -> TrainSpec:
     """The train of a solved summing ``train`` (:class:`gearcad.summing.SummingTrain`); ``fields`` are the
     other :class:`TrainSpec` fields (name, module, thickness, ...).
@@ -129,7 +142,8 @@ def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, *
     A path without idler gets balanced shifts (the two such paths are then
     brought to one centre distance, :func:`_equal_centres`); a path with an idler
     gets the least shift against undercut on each gear and the fewest idler teeth
-    with which the whole train plans (reaches the axle and clears every part).
+    with which the whole train plans (reaches the axle and clears every part),
+    preferring idlers whose two meshes pass every check without a warning.
     """
     from .errors import GearcadError
     from .plan import plan_train
@@ -155,8 +169,11 @@ def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, *
     if not idlers:
         return done
     first = max(12, min(min(stages[k].driver.teeth, stages[k].driven.teeth) for k in idlers) // 2)
+    backlash_mm = backlash
+    clean = [z for z in range(first, max_idler + 1)
+             if all(_idler_meshes_clean(stages[k], z, module, system, thinning, backlash_mm) for k in idlers)]
     last_error: GearcadError | None = None
-    for teeth in range(first, max_idler + 1):
+    for teeth in clean[:40] + [z for z in range(first, max_idler + 1) if z not in clean[:40]]:
         idler = GearSpec(teeth, shift=_least_shift(teeth, system, thinning))
         trial = list(stages)
         for k in idlers:

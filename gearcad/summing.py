@@ -159,7 +159,7 @@ def solve_summing(target, teeth: list[int], kind: str = "mean", count: int = 5, 
     """
     if kind not in KINDS:
         raise InputError(f"summing kind must be one of {', '.join(KINDS)}, got {kind!r}")
-    if planets < 2:
+    if kind == "planetary" and planets < 2:
         raise InputError(f"a planetary differential needs at least 2 planets, got {planets!r}")
     goal = target.approx
     a, b = _stages(teeth, max_stage_ratio, per_sum=one_axis)

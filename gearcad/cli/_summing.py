@@ -51,7 +51,7 @@ def _least_axis(kind: str, planets: int) -> int:
 
 def run_summing(args: argparse.Namespace, limits) -> int:
     """Solve, check every result with the kinematic model, print."""
-    from ..errors import GearcadError
+    from ..errors import GearcadError, InputError
     from ..kinematics import network_ratio
     from ..ratio.solve import tolerance_value
     from ..ratio.target import parse_target
@@ -65,9 +65,12 @@ def run_summing(args: argparse.Namespace, limits) -> int:
     inventory = limits.inventory
     wanted = count * 20 if inventory else count  # some may need more of a tooth count than the shelf holds
     one_axis = not args.separate_axes
-    min_axis = _least_axis(kind, args.planets or 3) if one_axis else 0
+    planets = args.planets if args.planets is not None else 3
+    if not 1 <= planets <= 24:
+        raise InputError(f"--planets must be from 1 to 24, got {planets!r}")
+    min_axis = _least_axis(kind, planets) if one_axis else 0
     trains = solve_summing(target, sorted(limits.teeth), kind, wanted, float(limits.max_stage_ratio),
-                           args.max_ring_teeth or 200, args.planets or 3, args.neighbour_margin or 0.5,
+                           args.max_ring_teeth or 200, planets, args.neighbour_margin or 0.5,
                            one_axis=one_axis, min_axis=min_axis)
     if inventory:
         trains = [t for t in trains if on_the_shelf(t, inventory)][:count]

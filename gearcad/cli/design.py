@@ -156,7 +156,9 @@ def _design_summing(args: argparse.Namespace) -> int:
     if args.stages is not None or args.coaxial or args.stepped or args.fixed or args.input_member:
         raise InputError("--stages, --coaxial, --stepped, --fixed and --input do not apply to --kind summing")
     kind = args.differential or "mean"
-    planets = args.planets or 3
+    planets = args.planets if args.planets is not None else 3
+    if not 1 <= planets <= 24:
+        raise InputError(f"--planets must be from 1 to 24, got {planets!r}")
     system, fab = load_tooth_system(args.system), load_fabrication(args.profile)
     target = parse_target(args.target)
     limits = _limits(args)

@@ -84,7 +84,8 @@ def _add_planetary_options(parser: argparse.ArgumentParser) -> None:
                         help="a compound train (default), a planetary set, or a summing train (two paths and a "
                              "differential: reaches fractions with primes above the largest tooth count)")
     parser.add_argument("--planets", type=int, metavar="N",
-                        help=f"planetary: number of planets, 1 to {MAX_PLANETS} (default {DEFAULT_PLANETS})")
+                        help=f"planetary: number of planets, 1 to {MAX_PLANETS} (default {DEFAULT_PLANETS}); summing: the "
+                             "differential's planets (planet pairs of --differential mean)")
     parser.add_argument("--fixed", choices=MEMBERS, help="planetary: the member held still (default ring)")
     parser.add_argument("--input", choices=MEMBERS, dest="input_member",
                         help="planetary: the input member, turned by the drive (default: the first of sun, ring, "
