@@ -123,7 +123,7 @@ def _axis_distance(spec: TrainSpec, paths: tuple[_Path, _Path], room: float) -> 
     least = max(room, *(_tip_gap_distance(p) for p in paths))
     if given is not None:
         return given, "given in the train file"
-    return math.ceil(least * 2 - 1e-9) / 2, "the least that clears (both paths carry idlers), rounded up to 0.5 mm"
+    return math.ceil(least * 2 - 1e-9) / 2, "both paths carry idlers: the least distance that clears, rounded up to 0.5 mm"
 
 
 def _tip_gap_distance(path: _Path) -> float:
@@ -339,7 +339,11 @@ class _MeanDifferential:
             Finding("assembly", "ok", 2 * ss.sun / ss.planets, 0.0,
                     f"{ss.planets} equally spaced planet pairs: 2 x {ss.sun} sun teeth / {ss.planets} = "
                     f"{2 * ss.sun // ss.planets}, whole; every mesh phased and checked"),
-            *self._clearances(axle, gears, pins)]
+            *self._clearances(axle, gears, pins),
+            Finding("assembly notes", "ok", self.tube, self.spec.bore,
+                    f"sun a and path a's driven gear are fixed to one {self.tube:g} mm tube, sun b and path b's driven "
+                    f"gear to another, both free on the {self.spec.bore:g} mm axle; each carrier disc rides on its tube; "
+                    "each planet is two laminations (-1, -2) fixed together on its pin")]
         self.pins, self.angles = pins, angles
 
     def _clearances(self, axle, gears, pins) -> list[Finding]:
@@ -361,9 +365,12 @@ class _MeanDifferential:
                 if not own and 1 <= layer <= 5 and not np.allclose(c, centre):
                     worst_pin = min(worst_pin, float(np.hypot(*(c - centre))) - r - self.pin / 2)
         axle_gap = self.radius - tip_p - self.spec.bore / 2  # layer 3 holds only the axle at the centre
+        neighbour = (Finding("neighbour", "ok", math.inf, clearance, "one planet pair: no neighbours")
+                     if math.isinf(worst_tip) else
+                     Finding("neighbour", "ok" if worst_tip >= clearance else "failure", worst_tip, clearance,
+                             f"planets that do not mesh keep their tips {worst_tip:.3f} mm apart (at least {clearance:g} mm)"))
         return [
-            Finding("neighbour", "ok" if worst_tip >= clearance else "failure", worst_tip, clearance,
-                    f"planets that do not mesh keep their tips {worst_tip:.3f} mm apart (at least {clearance:g} mm)"),
+            neighbour,
             Finding("planet pins", "ok" if worst_pin >= clearance else "failure", worst_pin, clearance,
                     f"each planet pin passes the gears of the other layers {worst_pin:.3f} mm clear (at least {clearance:g} mm)"),
             Finding("axle", "ok" if axle_gap >= clearance else "failure", axle_gap, clearance,
@@ -473,6 +480,10 @@ class _PlanetaryDifferential:
         build.meshes += [PlannedMesh(("sun", "planet-1"), self.sun_pair, analyse_pair(self.sun_pair), ()),
                          PlannedMesh(("planet-1", "ring"), self.ring_pair, analyse_internal_pair(self.ring_pair), ())]
         build.findings += list(self.conditions.findings) + [
+            Finding("assembly notes", "ok", self.tube, self.spec.bore,
+                    f"the sun and path a's driven gear are fixed to one {self.tube:g} mm tube free on the "
+                    f"{self.spec.bore:g} mm axle; the ring web is bonded under the ring and rides on that tube; the "
+                    "carrier (the output) rides on the axle above the set"),
             Finding("ring rim", "ok", self.rim, MIN_RIM * self.m,
                     f"the ring's outside teeth ({self.outside.teeth}, path b's driven gear) leave {self.rim:.3f} mm of rim "
                     f"below their root circle (at least {MIN_RIM:g} module)")]

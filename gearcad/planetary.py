@@ -744,7 +744,8 @@ def _candidates(query: PlanetaryQuery, zs: int, teeth: np.ndarray, plans: _Plans
 
 
 def _bulk_mask(query: PlanetaryQuery, rows: np.ndarray, shifts: np.ndarray, centre: np.ndarray) -> np.ndarray:
-    """Ring limits, assembly with equal spacing, hunting and the neighbour condition, row by row."""
+    """Ring limits, assembly with equal spacing, hunting, the neighbour condition and the ring's tips clear of
+    the planet's interference point (sets whose ring would dig into the planets are never offered), row by row."""
     s, p1, p2, r = rows.T
     limits, n = query.limits, query.planets
     mask = (r <= query.max_ring_teeth) & (r - p2 >= MIN_TOOTH_DIFFERENCE)
@@ -756,7 +757,21 @@ def _bulk_mask(query: PlanetaryQuery, rows: np.ndarray, shifts: np.ndarray, cent
     if n > 1:  # the formula of _neighbour at module 1 with equal spacing
         tip = np.maximum(p1 + 2 * shifts[:, 1], p2 + 2 * shifts[:, 2]) + 2 * query.addendum
         mask &= 2 * centre * math.sin(math.pi / n) - tip >= query.margin - _TOL
+    mask &= _ring_tips_clear(p2, r, shifts[:, 3], centre, query.pressure_angle, query.addendum)
     return mask
+
+
+def _ring_tips_clear(planet: np.ndarray, ring: np.ndarray, ring_shift: np.ndarray, centre: np.ndarray, alpha: float,
+                     addendum: float) -> np.ndarray:
+    """Whether the ring's tips stay outside the planet's interference point (module 1, before tip shortening).
+
+    The same margin as :func:`gearcad.internal._involute_clearance`: the ring's
+    tip radius ``z_r / 2 - (h_a + x_r)`` against ``sqrt(r_b2^2 + (a_w sin(alpha_w))^2)``,
+    with ``cos(alpha_w) = (z_r - z_p) cos(alpha) / (2 a_w)`` (ISO 21771).
+    """
+    cos_w = np.clip((ring - planet) * math.cos(alpha) / (2 * centre), -1.0, 1.0)
+    along = centre * np.sqrt(1 - cos_w ** 2)
+    return ring / 2 - (addendum + ring_shift) >= np.hypot(ring * math.cos(alpha) / 2, along) - _TOL
 
 
 def _ratios(query: PlanetaryQuery, rows: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -204,6 +204,17 @@ def test_neighbour_condition_by_construction(teeth, n, ok):
 
 # --- the solver against an exhaustive search ----------------------------------------------------------------
 
+def ring_tips_clear(planet, ring, ring_shift=0.0, centre=None, alpha=math.radians(20)):
+    """Internal mesh at module 1: the ring's tip circle (radius z_r / 2 - (1 + x_r), ISO sign) outside the
+    planet's interference point, the line of action's tangent point on the planet's base circle, which lies
+    sqrt(r_b2^2 + (a_w sin alpha_w)^2) from the ring's axis, cos alpha_w = (z_r - z_p) cos alpha / (2 a_w)
+    (ISO 21771 geometry; the unshifted form is cross-checked against gearcad.internal's full check in
+    tests/test_summing.py)."""
+    centre = (ring - planet) / 2 if centre is None else centre
+    along = centre * math.sqrt(1 - ((ring - planet) * math.cos(alpha) / (2 * centre)) ** 2)
+    return ring / 2 - (1 + ring_shift) >= math.hypot(ring * math.cos(alpha) / 2, along) - 1e-9
+
+
 def exhaustive(target, arrangement, teeth, max_ring, n, stepped, count, margin=0.5):
     """Best sets by brute force: every sun and planet, the coaxial ring, formulas of this file's sources."""
     t = target.approx
@@ -216,6 +227,8 @@ def exhaustive(target, arrangement, teeth, max_ring, n, stepped, count, margin=0
             if (s * p2 + r * p1) % (n * math.gcd(p1, p2)):  # the assembly condition (checked geometrically above)
                 continue
             if n > 1 and (s + p1) * math.sin(math.pi / n) - (max(p1, p2) + 2) < margin - 1e-9:
+                continue
+            if not ring_tips_clear(p2, r):
                 continue
             ratio = handbook_ratio(arrangement, s, p1, p2, r)
             key = (abs(abs(ratio) / t - 1), s + r + n * (p1 + (p2 if stepped else 0)), abs(ratio), (s, p1, p2, r))
@@ -253,7 +266,8 @@ def test_solver_with_shift_is_optimal(stepped):
             if (stepped and p1 == p2) or r - p2 < 10:
                 continue
             pset = make_set(s, p1, r, 3, p2 if stepped else None)
-            if not check_set(pset, shift_limit=0.5).ok:
+            conditions = check_set(pset, shift_limit=0.5)
+            if not conditions.ok or not ring_tips_clear(p2, r, conditions.shifts[3], conditions.centre_distance):
                 continue
             ratio = handbook_ratio(arrangement, s, p1, p2, r)
             key = (abs(ratio / target.approx - 1), pset.total_teeth, ratio, (s, p1, p2, r))
@@ -279,8 +293,10 @@ def test_direction_filter_and_exact_errors():
 def test_stepped_planets_reach_a_hundred_to_one():
     # source: Dudley's compound-planet form 1 + (R P1)/(S P2), checked on the solver's set; the geometric
     # assembly construction above; simple sets cannot: 1 + R/S <= 1 + 200/10 within these limits
-    query = make_query(parse_target("1/100"), make_limits(10, 120), make_arrangement("ring", "sun"), 2, True)
+    # 150 teeth: with at most 120 the ring-side planet that meshes without interference needs shift
+    query = make_query(parse_target("1/100"), make_limits(10, 150), make_arrangement("ring", "sun"), 2, True)
     (best,) = solve_planetary(query)
+    assert ring_tips_clear(best.set.ring_planet, best.set.ring)
     s, p1, p2, r = best.set.sun, best.set.planet, best.set.ring_planet, best.set.ring
     assert best.relative_error == 0 and best.conditions.ok
     assert 1 + Fraction(r * p1, s * p2) == 100

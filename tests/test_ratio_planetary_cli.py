@@ -68,12 +68,12 @@ def test_shift_limit_applies_without_coaxial(capsys):
 
 def test_table_layout(capsys):
     # source: the layout of this tool (heading, then one row per set)
-    code = main(["ratio", "1/100", "--kind", "planetary", "--stepped", "--planets", "2"])
+    code = main(["ratio", "1/100", "--kind", "planetary", "--stepped", "--planets", "2", "--max-teeth", "150"])
     text = capsys.readouterr().out
     assert code == 0
     assert "planetary set, stepped planets" in text and "ring fixed, sun in, carrier out" in text
     row = next(line for line in text.splitlines() if line.strip().startswith("1 "))
-    assert row.split()[:6] == ["1", "10", "90/10", "110", "2", "1/100"]  # 1 + 110*90/(10*10) = 100
+    assert row.split()[:6] == ["1", "12", "132/18", "162", "2", "1/100"]  # 1 + 162*132/(12*18) = 100
 
 
 def test_help_defaults_are_the_library_defaults():
