@@ -20,6 +20,7 @@ Lengths in mm, angles in radians.
 
 from __future__ import annotations
 
+import itertools
 import math
 from dataclasses import dataclass
 from fractions import Fraction
@@ -31,12 +32,13 @@ from .epicyclic import kerf_cut, ring_phase, same_phase, toothed_parts
 from .errors import InputError
 from .geometry.gear import SpurGear
 from .geometry.internal import ring_loop
-from .geometry.shape import Part, circle_loop, gear_loop, rounded_rectangle
+from .geometry.shape import Part, circle_loop, gear_loop
 from .internal import analyse_internal_pair, make_internal_pair
 from .kinematics import Gear, Mesh, direction_of, make_network, network_ratio
 from .layout import LayoutGear, LayoutProblem, clearance_shortfall, fit_plate, mesh_phase, shaft_sides
 from .pair import make_pair
-from .plan import MIN_RIM, InputLoad, Plan, PlannedGear, PlannedMesh, PlannedPlate, PlannedShaft, _check_bore, _system
+from .plan import (MIN_RIM, InputLoad, Plan, PlannedGear, PlannedMesh, PlannedPlate, PlannedShaft, _check_bore, _system,
+                   frame_plates)
 from .planetary import check_set, make_set
 from .profiles import Fabrication, load_fabrication
 from .summing import summing_ratio
@@ -88,6 +90,11 @@ class _Path:
     name: str
     gears: tuple[tuple[str, SpurGear, GearSpec], ...]
     pairs: tuple  # GearPair, one per mesh along the path
+
+    @property
+    def shafts(self) -> list[str]:
+        """The shaft of each gear: the input, the idler's (if any), the axle."""
+        return ["input"] + ([f"idler-{self.name}"] if len(self.pairs) == 2 else []) + ["axle"]
 
 
 def _path(name: str, stage: StageSpec, module: float, system, fab: Fabrication) -> _Path:
@@ -144,13 +151,31 @@ def _idler_position(path: _Path, distance: float, side: int) -> np.ndarray:
 
 
 @dataclass
+class _Placed:
+    """A gear of the plan while it is assembled (see :class:`gearcad.plan.PlannedGear`)."""
+
+    name: str
+    role: str
+    stage: int
+    gear: object  # SpurGear or RingGear
+    spec: GearSpec
+    shaft: str  # shaft key
+    layer: int
+    bore: float
+    part: Part
+    cut: Part
+    rotation: float
+    label_at: tuple[float, float] | None = None
+
+
+@dataclass
 class _Build:
     """Working state while the plan is assembled."""
 
     spec: TrainSpec
     fab: Fabrication
     tolerance: float
-    gears: list  # (name, role, stage, gear, gspec, shaft key, layer, bore, part, cut, rotation, label_at)
+    gears: list  # _Placed
     meshes: list
     findings: list
     positions: dict  # shaft key -> (x, y), mm: the layout's frame, then (planet pins) the plate's
@@ -162,7 +187,7 @@ class _Build:
             part, cut = toothed_parts(name, gear, bore, self.fab, self.tolerance)
         else:
             cut = kerf_cut(part, self.fab, self.tolerance)
-        self.gears.append((name, role, stage, gear, gspec, shaft, layer, bore, part, cut, rotation, label_at))
+        self.gears.append(_Placed(name, role, stage, gear, gspec, shaft, layer, bore, part, cut, rotation, label_at))
 
 
 def plan_summing(spec: TrainSpec, tolerance: float, load: InputLoad | None = None) -> Plan:
@@ -184,20 +209,16 @@ def plan_summing(spec: TrainSpec, tolerance: float, load: InputLoad | None = Non
     build.findings.append(Finding("one axle", "ok", distance, distance,
                                   f"both paths reach the differential axle {distance:.4f} mm from the input shaft ({how})"))
     top = diff.top_layer
-    choices = [(1, -1), (1, 1), (-1, -1), (-1, 1)]
+    with_idler = [p for p in paths if len(p.pairs) == 2]
     layouts = []
-    for side_a, side_b in choices:
+    for sides in itertools.product((1, -1), repeat=len(with_idler)):  # each idler above or below the line
         trial = dict(build.positions)
-        for path, side in zip(paths, (side_a, side_b)):
-            if len(path.pairs) == 2:
-                trial[f"idler-{path.name}"] = _idler_position(path, distance, side)
+        for path, side in zip(with_idler, sides):
+            trial[f"idler-{path.name}"] = _idler_position(path, distance, side)
         problem, keys = _layout_problem(paths, trial, diff, build.bores, fab, top)
         pos = np.array([trial[k] for k in keys])
         shortfall = clearance_shortfall(problem, pos)
-        extent = _extent(problem, pos)
-        layouts.append((shortfall > 1e-9, extent, shortfall, problem, keys, pos))
-        if len([p for p in paths if len(p.pairs) == 2]) == 0:
-            break
+        layouts.append((shortfall > 1e-9, _extent(problem, pos), shortfall, problem, keys, pos))
     layouts.sort(key=lambda t: (t[0], t[1]))
     bad, _, shortfall, problem, keys, pos = layouts[0]
     if bad:
@@ -226,9 +247,8 @@ def _layout_problem(paths, positions: dict, diff, bores: dict, fab: Fabrication,
     index = {k: i for i, k in enumerate(keys)}
     gears, meshes = [], set()
     for path, layer in zip(paths, (0, top)):
-        shafts = ["input"] + (["idler-" + path.name] if len(path.pairs) == 2 else []) + ["axle"]
         start = len(gears)
-        for (name, gear, _), shaft in zip(path.gears, shafts):
+        for (name, gear, _), shaft in zip(path.gears, path.shafts):
             gears.append(LayoutGear(name, index[shaft], layer, gear.tip_diameter / 2))
         meshes |= {frozenset((start + k, start + k + 1)) for k in range(len(path.pairs))}
     for layer, radius in diff.envelope():
@@ -240,11 +260,11 @@ def _layout_problem(paths, positions: dict, diff, bores: dict, fab: Fabrication,
 def _path_gears(build: _Build, paths, placed: dict, top: int) -> None:
     """The path gears in their layers, each phased to mesh the one before it."""
     for path, layer in zip(paths, (0, top)):
-        shafts = ["input"] + (["idler-" + path.name] if len(path.pairs) == 2 else []) + ["axle"]
+        shafts = path.shafts
         rotation = 0.0
         for k, ((name, gear, gspec), shaft) in enumerate(zip(path.gears, shafts)):
             if k:
-                prev_name, prev_gear, _ = path.gears[k - 1]
+                _, prev_gear, _ = path.gears[k - 1]
                 dx, dy = placed[shaft] - placed[shafts[k - 1]]
                 rotation = mesh_phase(rotation, prev_gear.teeth, gear.teeth, math.atan2(dy, dx))
             role = name.split("-")[1]
@@ -492,16 +512,14 @@ class _PlanetaryDifferential:
         """Turn path B's gears (from the input) so the last one meshes the ring's outside teeth."""
         path = paths[1]
         names = [n for n, _, _ in path.gears][:-1]
-        shafts = ["input"] + (["idler-b"] if len(path.pairs) == 2 else [])
         rotation = self.ring_rotation
         teeth = self.outside.teeth
         centre = placed["axle"]
-        for name, shaft in zip(reversed(names), reversed(shafts)):
+        for name, shaft in zip(reversed(names), reversed(path.shafts[:-1])):
             dx, dy = placed[shaft] - centre
-            gear = next(g for g in build.gears if g[0] == name)
-            rotation = mesh_phase(rotation, teeth, gear[3].teeth, math.atan2(dy, dx))
-            build.gears[build.gears.index(gear)] = gear[:10] + (rotation,) + gear[11:]
-            teeth, centre = gear[3].teeth, placed[shaft]
+            gear = next(g for g in build.gears if g.name == name)
+            rotation = gear.rotation = mesh_phase(rotation, teeth, gear.gear.teeth, math.atan2(dy, dx))
+            teeth, centre = gear.gear.teeth, placed[shaft]
 
     def plates(self, build: _Build, axle: np.ndarray, z_of) -> list[PlannedPlate]:
         holes = ((*axle, self.spec.bore + self.fab.bore_clearance),) + tuple(
@@ -540,11 +558,11 @@ def _finish(build: _Build, spec, system, fab, layout, placed, sides, keys, diff,
         shafts.append(PlannedShaft(names.get(key, key), float(x), float(y), build.bores.get(key, spec.bore), back, front))
     index = {k: i for i, k in enumerate(shaft_keys)}
     planned = []
-    for name, role, stage, gear, gspec, shaft, layer, bore, part, cut, rotation, label_at in build.gears:
-        planned.append(PlannedGear(name, role, stage, gear, gspec, index[shaft], layer, bore, part, cut, rotation,
-                                   z_of(layer), label_at=label_at))
+    for g in build.gears:
+        planned.append(PlannedGear(g.name, g.role, g.stage, g.gear, g.spec, index[g.shaft], g.layer, g.bore, g.part,
+                                   g.cut, g.rotation, z_of(g.layer), label_at=g.label_at))
     front_z = z_of(top + 1)
-    plates = _frame_plates(spec, fab, layout, shafts, tolerance, front_z)
+    plates = list(frame_plates(spec, fab, layout, shafts, tolerance, front_z))
     axle = np.array([shafts[index["axle"]].x, shafts[index["axle"]].y])
     plates += diff.plates(build, axle, z_of)
     signed = _network_ratio(spec, paths, diff)
@@ -569,7 +587,7 @@ def _path_ratio(path: _Path) -> Fraction:
 def _network_ratio(spec: TrainSpec, paths, diff) -> Fraction:
     gears, meshes = [], []
     for path in paths:
-        members = ["input"] + ([f"idler-{path.name}"] if len(path.pairs) == 2 else []) + [f"side-{path.name}"]
+        members = path.shafts[:-1] + [f"side-{path.name}"]
         names = [n for n, _, _ in path.gears]
         if path.name == "b" and diff.kind == "planetary":
             names[-1] = "ring-outside"
@@ -577,16 +595,3 @@ def _network_ratio(spec: TrainSpec, paths, diff) -> Fraction:
         meshes += [Mesh(n1, n2) for n1, n2 in zip(names, names[1:])]
     diff.network(gears, meshes)
     return network_ratio(make_network(gears, meshes), (), "input", "carrier")
-
-
-def _frame_plates(spec, fab, layout, shafts, tolerance, front_z) -> list[PlannedPlate]:
-    w, h = layout.width, layout.height
-    inset = fab.plate_margin / 2
-    spacers = tuple((x, y, fab.spacer_hole) for x in (inset, w - inset) for y in (inset, h - inset))
-    outer = rounded_rectangle(w, h, fab.plate_corner_radius, tolerance)
-    plates = []
-    for name, side, z in (("back-plate", "back", -spec.thickness), ("front-plate", "front", front_z)):
-        holes = tuple((s.x, s.y, s.diameter + fab.bore_clearance) for s in shafts if getattr(s, side))
-        part = Part(name, outer, (), tuple(dict.fromkeys(holes)) + spacers, f"{spec.name} {name}")
-        plates.append(PlannedPlate(name, part, kerf_cut(part, fab, tolerance), z))
-    return plates

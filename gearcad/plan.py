@@ -29,7 +29,8 @@ from .pair import GearPair, make_pair
 from .profiles import Fabrication, ToothSystem, load_fabrication, load_tooth_system
 from .trainspec import GearSpec, TrainSpec
 
-__all__ = ["Plan", "PlannedGear", "PlannedMesh", "PlannedShaft", "PlannedPlate", "InputLoad", "plan_train", "MIN_RIM"]
+__all__ = ["Plan", "PlannedGear", "PlannedMesh", "PlannedShaft", "PlannedPlate", "InputLoad", "plan_train", "MIN_RIM",
+           "frame_plates"]
 
 MIN_RIM = 1.0  # modules of material between the bore (or keyway) and the root circle; common practice
 
@@ -271,8 +272,9 @@ def _phases(chain: _Chain, layout: Layout) -> dict[str, float]:
     return rotation
 
 
-def _plates(spec: TrainSpec, fab: Fabrication, layout: Layout, shafts: list[PlannedShaft], tolerance: float,
-            front_z: float) -> tuple[PlannedPlate, ...]:
+def frame_plates(spec: TrainSpec, fab: Fabrication, layout: Layout, shafts: list[PlannedShaft], tolerance: float,
+                 front_z: float) -> tuple[PlannedPlate, ...]:
+    """The back and front plates: the layout's rectangle with the bores of the shafts each holds, and spacer holes."""
     w, h = layout.width, layout.height
     inset = fab.plate_margin / 2
     spacers = tuple((x, y, fab.spacer_hole) for x in (inset, w - inset) for y in (inset, h - inset))
@@ -365,7 +367,7 @@ def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: Inpu
     meshes = tuple(_meshes(chain, pairs, fab, spec, load))
     signed = _network_ratio(chain)
     ratio, direction = abs(signed), direction_of(signed)
-    plates = _plates(spec, fab, layout, shafts, tolerance, heights[-1])
+    plates = frame_plates(spec, fab, layout, shafts, tolerance, heights[-1])
     return Plan(spec, system, fab, tuple(gears), meshes, tuple(shafts), plates, layout, ratio, direction, tolerance,
                 tuple(extra))
 

@@ -169,38 +169,44 @@ def _solver(data: dict, ctx: _Context) -> SolverSpec | None:
                       coaxial=_flag(s, "coaxial", ctx, "solve"), exclude=tuple(exclude), **ints)
 
 
-def _planetary(data: dict, ctx: _Context) -> PlanetarySpec | None:
-    if "planetary" not in data:
+def _table(data: dict, name: str, allowed: set[str], ctx: _Context) -> dict | None:
+    """The ``[name]`` table, its keys checked, or None when the file has none."""
+    if name not in data:
         return None
-    p = data["planetary"]
-    if not isinstance(p, dict):
-        raise ctx.error("must be a [planetary] table", "planetary")
-    _check_keys(p, PLANETARY_KEYS, ctx, "planetary")
+    table = data[name]
+    if not isinstance(table, dict):
+        raise ctx.error(f"must be a [{name}] table", name)
+    _check_keys(table, allowed, ctx, name)
+    return table
+
+
+def _counts(table: dict, keys: tuple[str, ...], required: tuple[str, ...], ctx: _Context, name: str) -> dict[str, int]:
+    """The whole-number entries ``keys`` of a table; ``required`` ones must be there."""
     counts = {}
-    for key in ("sun", "planet", "ring", "planets", "planet_ring"):
-        if key in p:
-            if isinstance(p[key], bool) or not isinstance(p[key], int):
-                raise ctx.error(f"must be a whole number, got {p[key]!r}", key, "planetary")
-            counts[key] = p[key]
-        elif key in ("sun", "planet", "ring"):
-            raise ctx.error("missing (a tooth count)", key, "planetary")
+    for key in keys:
+        if key in table:
+            if isinstance(table[key], bool) or not isinstance(table[key], int):
+                raise ctx.error(f"must be a whole number, got {table[key]!r}", key, name)
+            counts[key] = table[key]
+        elif key in required:
+            raise ctx.error("missing (a tooth count)", key, name)
+    return counts
+
+
+def _planetary(data: dict, ctx: _Context) -> PlanetarySpec | None:
+    p = _table(data, "planetary", PLANETARY_KEYS, ctx)
+    if p is None:
+        return None
+    counts = _counts(p, ("sun", "planet", "ring", "planets", "planet_ring"), ("sun", "planet", "ring"), ctx, "planetary")
     return PlanetarySpec(fixed=_text(p, "fixed", ctx, "ring", "planetary"), input=_text(p, "input", ctx, None, "planetary"),
                          shift_limit=_number(p, "shift_limit", ctx, "planetary"), **counts)
 
 
 def _summing(data: dict, ctx: _Context) -> SummingSpec | None:
-    if "summing" not in data:
+    s = _table(data, "summing", SUMMING_KEYS, ctx)
+    if s is None:
         return None
-    s = data["summing"]
-    if not isinstance(s, dict):
-        raise ctx.error("must be a [summing] table", "summing")
-    _check_keys(s, SUMMING_KEYS, ctx, "summing")
-    counts = {}
-    for key in ("sun", "planet", "planets", "ring"):
-        if key in s:
-            if isinstance(s[key], bool) or not isinstance(s[key], int):
-                raise ctx.error(f"must be a whole number, got {s[key]!r}", key, "summing")
-            counts[key] = s[key]
+    counts = _counts(s, ("sun", "planet", "planets", "ring"), (), ctx, "summing")
     numbers = {k: _number(s, k, ctx, "summing") for k in ("module", "tube", "axis_distance", "shift_limit")}
     try:
         return SummingSpec(differential=_text(s, "differential", ctx, "mean", "summing"), **counts, **numbers)
