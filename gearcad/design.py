@@ -135,7 +135,8 @@ def _idler_meshes_clean(stage: StageSpec, teeth: int, module: float, system: Too
     return True
 
 
-def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, **fields) -> TrainSpec:
+def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, idlers: tuple[int, ...] | None = None,
+                       **fields) -> TrainSpec:
     """The train of a solved summing ``train`` (:class:`gearcad.summing.SummingTrain`); ``fields`` are the
     other :class:`TrainSpec` fields (name, module, thickness, ...).
 
@@ -144,6 +145,9 @@ def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, *
     gets the least shift against undercut on each gear and the fewest idler teeth
     with which the whole train plans (reaches the axle and clears every part),
     preferring idlers whose two meshes pass every check without a warning.
+    ``idlers``: the tooth counts an idler may have (say, what the shelf holds
+    beyond the paths' gears; two idler paths then need two of one count);
+    default every count up to ``max_idler``.
     """
     from .errors import GearcadError
     from .plan import plan_train
@@ -165,18 +169,20 @@ def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, *
     if train.sign_a < 0 and train.sign_b < 0:
         stages = _equal_centres(stages, module, system)
     done = TrainSpec(stages=tuple(stages), summing=differential, **fields)
-    idlers = [k for k, s in enumerate((train.sign_a, train.sign_b)) if s > 0]
-    if not idlers:
+    if train.sign_a < 0 and train.sign_b < 0:
         return done
-    first = max(12, min(min(stages[k].driver.teeth, stages[k].driven.teeth) for k in idlers) // 2)
-    backlash_mm = backlash
-    clean = [z for z in range(first, max_idler + 1)
-             if all(_idler_meshes_clean(stages[k], z, module, system, thinning, backlash_mm) for k in idlers)]
+    carriers = [k for k, s in enumerate((train.sign_a, train.sign_b)) if s > 0]
+    first = max(12, min(min(stages[k].driver.teeth, stages[k].driven.teeth) for k in carriers) // 2)
+    allowed = [z for z in (idlers if idlers is not None else range(first, max_idler + 1)) if z >= 8]
+    if not allowed:
+        raise InputError("no idler tooth count is available for the summing train's idler paths")
+    clean = [z for z in allowed
+             if all(_idler_meshes_clean(stages[k], z, module, system, thinning, backlash) for k in carriers)]
     last_error: GearcadError | None = None
-    for teeth in clean[:40] + [z for z in range(first, max_idler + 1) if z not in clean[:40]]:
+    for teeth in clean[:40] + [z for z in allowed if z not in clean[:40]]:
         idler = GearSpec(teeth, shift=_least_shift(teeth, system, thinning))
         trial = list(stages)
-        for k in idlers:
+        for k in carriers:
             trial[k] = dataclasses.replace(trial[k], idler=idler)
         candidate = dataclasses.replace(done, stages=tuple(trial))
         try:
@@ -185,7 +191,7 @@ def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, *
             last_error = exc
             continue
         return candidate
-    raise InputError(f"no idler of {first} to {max_idler} teeth completes the summing train: {last_error}")
+    raise InputError(f"no idler of {allowed[0]} to {allowed[-1]} teeth completes the summing train: {last_error}")
 
 
 def planetary_differential(train, module: float, system: ToothSystem, backlash: float, max_teeth: int,

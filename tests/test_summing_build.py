@@ -253,3 +253,17 @@ def test_design_kind_summing_builds_an_exact_train_on_one_axle(differential, tmp
     spec = parse_train((out / "train.toml").read_text())
     assert spec.summing.differential == differential
     assert Fraction(str(willis_carrier(spec))) == Fraction(127, 200)
+
+
+def test_design_from_an_inventory_takes_the_idlers_from_the_shelf_too(tmp_path, capsys):
+    # Each physical gear once: the two paths' gears and their idlers all come from the shelf.
+    from collections import Counter
+
+    shelf = "20x2,25-60/5x2,127"
+    out = tmp_path / "out"
+    assert main(["design", "0.6", "--kind", "summing", "-m", "1", "--inventory", shelf, "--out", str(out),
+                 "--formats", "dxf"]) == 0
+    spec = parse_train((out / "train.toml").read_text())
+    used = Counter(g.teeth for s in spec.stages for g in (s.driver, s.driven, s.idler) if g is not None)
+    held = Counter({20: 2, 127: 1, **{z: 2 for z in range(25, 61, 5)}})
+    assert all(held[z] >= n for z, n in used.items()), used

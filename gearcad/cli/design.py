@@ -183,8 +183,9 @@ def _design_summing(args: argparse.Namespace) -> int:
                                                   args.shift_limit)
             if differential is None:
                 continue
+        idlers = _shelf_idlers(train, limits.inventory) if limits.inventory else None
         try:
-            spec = summing_train_spec(train, differential, **base)
+            spec = summing_train_spec(train, differential, idlers=idlers, **base)
             plan = plan_train(spec)
         except GearcadError as exc:
             problem = problem or exc
@@ -198,3 +199,12 @@ def _design_summing(args: argparse.Namespace) -> int:
     if spec is None:
         raise InputError(f"none of the {len(candidates)} best summing trains for {args.target!r} can be built: {problem}")
     return build_and_write(spec, args, (("train.toml", train_to_toml(spec)),))
+
+
+def _shelf_idlers(train, inventory) -> tuple[int, ...]:
+    """Idler tooth counts the shelf still holds once the paths have their gears (two of a count for two idlers)."""
+    from collections import Counter
+
+    used = Counter([*train.path_a, *train.path_b])
+    need = 1 + (train.sign_a > 0 and train.sign_b > 0)
+    return tuple(z for z in inventory.teeth if inventory.quantity(z) - used[z] >= need)
