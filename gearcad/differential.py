@@ -192,8 +192,6 @@ class _Build:
 
 def plan_summing(spec: TrainSpec, tolerance: float, load: InputLoad | None = None) -> Plan:
     """Plan the summing train described by ``spec.summing`` and its two stages (path A, path B)."""
-    if load is not None:
-        raise InputError("load ratings of summing trains are not supported yet; leave out --torque and --power")
     system = _system(spec)
     fab = load_fabrication(spec.fabrication)
     ss = spec.summing
@@ -231,7 +229,7 @@ def plan_summing(spec: TrainSpec, tolerance: float, load: InputLoad | None = Non
     sides = dict(zip(keys, shaft_sides(problem, layout.positions)))
     _path_gears(build, paths, placed, top)
     diff.add(build, placed["axle"], placed["input"], paths)
-    return _finish(build, spec, system, fab, layout, placed, sides, keys, diff, paths, tolerance, top)
+    return _finish(build, spec, system, fab, layout, placed, sides, keys, diff, paths, tolerance, top, load)
 
 
 def _extent(problem: LayoutProblem, pos: np.ndarray) -> float:
@@ -354,7 +352,7 @@ class _MeanDifferential:
         build.add_gear("sun-b", "sun", 0, self.sun, gspec_s, "axle", 4, self.tube, sun_b_phase[0])
         build.meshes += [PlannedMesh(("sun-a", "planet-1a-1"), self.sun_pair, analyse_pair(self.sun_pair), ()),
                          PlannedMesh(("planet-1a-2", "planet-1b-1"), self.planet_pair, analyse_pair(self.planet_pair), ()),
-                         PlannedMesh(("planet-1b-2", "sun-b"), self.sun_pair, analyse_pair(self.sun_pair), ())]
+                         PlannedMesh(("sun-b", "planet-1b-2"), self.sun_pair, analyse_pair(self.sun_pair), ())]
         build.findings += [
             Finding("assembly", "ok", 2 * ss.sun / ss.planets, 0.0,
                     f"{ss.planets} equally spaced planet pairs: 2 x {ss.sun} sun teeth / {ss.planets} = "
@@ -541,7 +539,7 @@ class _PlanetaryDifferential:
         return summing_ratio("planetary", rho_a, rho_b, (ss.sun, ss.planet, ss.ring, ss.planets))
 
 
-def _finish(build: _Build, spec, system, fab, layout, placed, sides, keys, diff, paths, tolerance, top) -> Plan:
+def _finish(build: _Build, spec, system, fab, layout, placed, sides, keys, diff, paths, tolerance, top, load) -> Plan:
     if diff.kind == "planetary":
         diff.rephase_path_b(build, placed, paths)
     pitch = spec.thickness + fab.layer_gap
@@ -570,12 +568,53 @@ def _finish(build: _Build, spec, system, fab, layout, placed, sides, keys, diff,
     expected = diff.formula(*rho)
     if expected != signed:
         raise InputError(f"internal check failed: the kinematic model gives {signed}, the summing formula {expected}")
+    meshes = tuple(build.meshes) if load is None else _rated(build.meshes, paths, diff, signed, rho, spec, fab, load)
     build.findings.append(Finding(
         "kinematics", "ok", float(signed), 0.0,
         f"carrier (output) turns {signed.numerator}/{signed.denominator} per input turn from the kinematic model; "
         f"side a at {rho[0]}, side b at {rho[1]}, {diff.kind} differential"))
-    return Plan(spec, system, fab, tuple(planned), tuple(build.meshes), tuple(shafts), tuple(plates), layout,
+    return Plan(spec, system, fab, tuple(planned), meshes, tuple(shafts), tuple(plates), layout,
                 abs(signed), direction_of(signed), tolerance, tuple(build.findings))
+
+
+def _rated(meshes: list, paths, diff, signed: Fraction, rho: list[Fraction], spec: TrainSpec, fab: Fabrication,
+           load: InputLoad) -> tuple[PlannedMesh, ...]:
+    """The meshes with their load ratings for ``load`` on the input shaft (gearcad.loads; losses neglected).
+
+    The carrier carries ``T_in / |ratio|``; the differential splits it between
+    its sides; each path carries its side's torque back to the input, scaled
+    along the path by the tooth counts; the differential's meshes run at their
+    sides' speeds relative to the carrier, shared by its planets.
+    """
+    from .loads import MeshLoad, differential_side_torques, planet_mesh_loads
+    from .materials import load_material
+    from .strength import PROCESS_CLASS, rate_internal_pair, rate_pair
+
+    ss = spec.summing
+    sides = differential_side_torques(ss.differential, load.torque / abs(float(signed)), ss.sun, ss.ring)
+    wanted: dict[tuple[str, str], MeshLoad] = {}
+    for path, torque, speed in zip(paths, sides, rho):
+        driven = path.gears[-1][1].teeth
+        for (n1, g1, _), (n2, _, _) in zip(path.gears, path.gears[1:]):
+            n2 = "ring" if n2 == "b-driven" and ss.differential == "planetary" else n2
+            wanted[(n1, n2)] = MeshLoad(torque * g1.teeth / driven, load.speed * abs(float(speed)) * driven / g1.teeth)
+    relative = [float(r - signed) * load.speed for r in rho]
+    if ss.differential == "mean":
+        (sun_a, planet_a), (sun_b, _) = (planet_mesh_loads(t, w, ss.planets, ss.sun, ss.planet)
+                                         for t, w in zip(sides, relative))
+        wanted.update({("sun-a", "planet-1a-1"): sun_a, ("planet-1a-2", "planet-1b-1"): planet_a,
+                       ("sun-b", "planet-1b-2"): sun_b})
+    else:
+        wanted[("sun", "planet-1")], wanted[("planet-1", "ring")] = planet_mesh_loads(
+            sides[0], relative[0], ss.planets, ss.sun, ss.planet)
+    material, process = load_material(fab.material_profile), PROCESS_CLASS[fab.process]
+    out = []
+    for m in meshes:
+        at = wanted[m.names]
+        rate = rate_internal_pair if hasattr(m.pair, "ring") else rate_pair
+        rating = rate(m.pair, at.torque, at.speed, spec.thickness, material, material, process)
+        out.append(PlannedMesh(m.names, m.pair, m.analysis, m.findings + rating.findings(), rating))
+    return tuple(out)
 
 
 def _path_ratio(path: _Path) -> Fraction:

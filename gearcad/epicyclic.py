@@ -91,8 +91,6 @@ def _ring_part(ring: RingGear, fixed: bool, fab: Fabrication, tolerance: float) 
 def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = None) -> Plan:
     """Plan a planetary set described by ``spec.planetary``."""
     ps = spec.planetary
-    if load is not None:
-        raise InputError("load ratings of planetary sets are not supported yet; leave out --torque and --power")
     system = _system(spec)
     fab = load_fabrication(spec.fabrication)
     m = spec.module
@@ -153,9 +151,11 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
     gears.append(PlannedGear("ring", "ring", 1, ring, GearSpec(ps.ring, x_r), 0, layer_b, bore, ring_drawn, ring_cut,
                              ring_rots[0], z0 + layer_b * pitch, label_at=(0.0, -label_r)))
 
-    meshes = (PlannedMesh(("sun", "planet-1"), sun_pair, analyse_pair(sun_pair), ()),
+    ratings = _ratings(pset, arrangement, sun_pair, ring_pair, spec, fab, load) if load is not None else (None, None)
+    meshes = (PlannedMesh(("sun", "planet-1"), sun_pair, analyse_pair(sun_pair),
+                          ratings[0].findings() if ratings[0] else (), ratings[0]),
               PlannedMesh(("planet-1-ring-side" if pset.stepped else "planet-1", "ring"), ring_pair,
-                          analyse_internal_pair(ring_pair), ()))
+                          analyse_internal_pair(ring_pair), ratings[1].findings() if ratings[1] else (), ratings[1]))
     top = z0 + (layer_b + 1) * pitch
     plates = _plates(spec, fab, tolerance, cx, cy, centre, angles, ps, ring, bolt_circle, top, pin)
     layout = Layout(np.array([[s.x, s.y] for s in shafts]), 2 * half, 2 * half,
@@ -166,6 +166,23 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
         f"{arrangement.describe()}: ratio {signed.numerator}/{signed.denominator} from the kinematic model"),)
     return Plan(spec, system, fab, tuple(gears), meshes, tuple(shafts), plates, layout, abs(Fraction(signed)),
                 direction_of(signed), tolerance, findings)
+
+
+def _ratings(pset, arrangement, sun_pair, ring_pair, spec: TrainSpec, fab: Fabrication, load: InputLoad):
+    """Load ratings of one planet's two meshes for ``load`` on the input member (gearcad.loads)."""
+    from .kinematics import solve_network
+    from .loads import member_torques, planet_mesh_loads
+    from .materials import load_material
+    from .planetary import set_network
+    from .strength import PROCESS_CLASS, rate_internal_pair, rate_pair
+
+    speeds = solve_network(set_network(pset), {arrangement.fixed: 0, arrangement.input: 1}).speeds
+    torques = member_torques(speeds, arrangement.fixed, arrangement.input, arrangement.output, load.torque)
+    relative = float(speeds["sun"] - speeds["carrier"]) * load.speed
+    at_sun, at_ring = planet_mesh_loads(torques["sun"], relative, pset.planets, pset.sun, pset.planet)
+    material, process = load_material(fab.material_profile), PROCESS_CLASS[fab.process]
+    return (rate_pair(sun_pair, at_sun.torque, at_sun.speed, spec.thickness, material, material, process),
+            rate_internal_pair(ring_pair, at_ring.torque, at_ring.speed, spec.thickness, material, material, process))
 
 
 def _plates(spec, fab, tolerance, cx, cy, centre, angles, ps, ring, bolt_circle, top, pin) -> tuple[PlannedPlate, ...]:

@@ -40,6 +40,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -49,6 +50,9 @@ from .geometry.gear import SpurGear
 from .geometry.generate import tooth_profile
 from .materials import Material
 from .pair import GearPair
+
+if TYPE_CHECKING:
+    from .internal import InternalPair
 from .validate import finite, positive
 
 __all__ = [
@@ -60,6 +64,7 @@ __all__ = [
     "bending_stress",
     "elastic_coefficient",
     "contact_stress",
+    "rate_internal_pair",
     "tangential_load",
     "torque_from_power",
     "pitch_line_speed",
@@ -358,14 +363,15 @@ def elastic_coefficient(E1: float, nu1: float, E2: float, nu2: float) -> float:
     return math.sqrt(1.0 / (math.pi * compliance))
 
 
-def contact_stress(pair: GearPair, tangential_load_N: float, face_width_mm: float,
+def contact_stress(pair: "GearPair | InternalPair", tangential_load_N: float, face_width_mm: float,
                    E1: float, nu1: float, E2: float, nu2: float,
                    speed_m_s: float = 0.0, process: str = "cast") -> float:
     """Hertz line-contact stress at the pitch point of ``pair``.
 
     ``sigma_H = C_p sqrt(K_v W_t / (b cos(alpha_w)) (1/rho1 + 1/rho2))`` with
     ``rho_i = r_wi sin(alpha_w)`` the flank radii of curvature at the pitch point
-    (Shigley eq. 14-14, from memory).
+    (Shigley eq. 14-14, from memory); for an internal pair (``pair`` has a
+    ``ring``) the ring's flank is concave and its term is subtracted.
 
     Parameters
     ----------
@@ -393,7 +399,8 @@ def contact_stress(pair: GearPair, tangential_load_N: float, face_width_mm: floa
     kv = velocity_factor(speed_m_s, process)
     alpha_w = pair.operating_pressure_angle
     d_w1, d_w2 = pair.working_diameters()
-    curvature = 2.0 / (d_w1 * math.sin(alpha_w)) + 2.0 / (d_w2 * math.sin(alpha_w))
+    concave = -1.0 if hasattr(pair, "ring") else 1.0  # an internal pair: the ring's flank is hollow
+    curvature = 2.0 / (d_w1 * math.sin(alpha_w)) + concave * 2.0 / (d_w2 * math.sin(alpha_w))
     cp = elastic_coefficient(E1, nu1, E2, nu2)
     return cp * math.sqrt(kv * load / (width * math.cos(alpha_w)) * curvature)
 
@@ -491,9 +498,9 @@ def _contact_finding(r: PairRating) -> Finding:
 
 
 def _gear_rating(label: str, gear: SpurGear, material: Material, torque: float, speed: float,
-                 width: float, pitch_speed: float, process: str) -> GearRating:
+                 width: float, pitch_speed: float, process: str, lewis: LewisResult | None = None) -> GearRating:
     load = tangential_load(torque, gear.reference_diameter)
-    lewis = lewis_form_factor(gear)
+    lewis = lewis or lewis_form_factor(gear)
     stress = bending_stress(gear, load, width, pitch_speed, process, form_factor=lewis.form_factor)
     allowable = material.allowable_bending
     return GearRating(label, gear, material, torque, speed, load, lewis, stress, allowable,
@@ -541,3 +548,35 @@ def rate_pair(pair: GearPair, torque_Nm_on_gear1: float, speed_rpm_gear1: float,
     allowable = min(material1.allowable_contact, material2.allowable_contact)
     return PairRating(torque, speed, width, process, v, velocity_factor(v, process), gears, load_w, sigma_h,
                       allowable, allowable / sigma_h, max(material1.min_safety_factor, material2.min_safety_factor))
+
+
+RACK_TEETH = 400  # a spur gear this large stands in for the basic rack (the tooth count's limit in gearcad)
+
+
+def rate_internal_pair(pair: "InternalPair", torque_Nm_on_pinion: float, speed_rpm_pinion: float, face_width_mm: float,
+                       pinion_material: Material, ring_material: Material, process: str = "cast") -> PairRating:
+    """Rate an internal pair for a steady torque on the pinion (losses neglected); see :func:`rate_pair`.
+
+    The pinion is rated as in :func:`rate_pair`.  The ring's teeth widen towards
+    their roots more than a rack's, so the ring is rated with the form factor
+    of the basic rack (measured on a 400-tooth gear of the same system), a
+    lower bound for internal teeth (common practice).  Contact is Hertz's with
+    the ring's flank concave (:func:`contact_stress`).
+    """
+    torque = positive(torque_Nm_on_pinion, "torque", "N·m")
+    speed = positive(speed_rpm_pinion, "speed", "rpm")
+    width = positive(face_width_mm, "face width", "mm")
+    velocity_factor(0.0, process)
+    p, r = pair.pinion, pair.ring
+    d_w1, _ = pair.working_diameters()
+    v = pitch_line_speed(speed, d_w1)
+    ratio = r.teeth / p.teeth
+    rack = lewis_form_factor(SpurGear(RACK_TEETH, r.module, r.system, thinning=r.thinning))
+    gears = (_gear_rating("pinion", p, pinion_material, torque, speed, width, v, process),
+             _gear_rating("ring", r, ring_material, torque * ratio, speed / ratio, width, v, process, lewis=rack))
+    load_w = tangential_load(torque, d_w1)
+    sigma_h = contact_stress(pair, load_w, width, pinion_material.elastic_modulus, pinion_material.poisson_ratio,
+                             ring_material.elastic_modulus, ring_material.poisson_ratio, v, process)
+    allowable = min(pinion_material.allowable_contact, ring_material.allowable_contact)
+    return PairRating(torque, speed, width, process, v, velocity_factor(v, process), gears, load_w, sigma_h,
+                      allowable, allowable / sigma_h, max(pinion_material.min_safety_factor, ring_material.min_safety_factor))

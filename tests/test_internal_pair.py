@@ -206,9 +206,24 @@ def test_cli_internal_table_and_failure(capsys):
     (["16", "-60", "--centre", "23"], "--centre is not available for an internal pair"),
     (["16", "-60", "--cutter-teeth", "60"], "cutter tooth count must be from 8 to 59"),
     (["16", "60", "--cutter-teeth", "20"], "apply to a ring gear only"),
-    (["16", "-60", "--torque", "1", "--speed", "100"], "not available for an internal pair"),
+    (["16", "-60", "--torque", "-1", "--speed", "100"], "torque must be greater than 0"),
 ])
 def test_cli_internal_bad_input(capsys, argv, needle):
     code, _, err = run(capsys, "pair", *argv, "-m", "1")
     assert code == 2
     assert needle in err and len(err.strip().splitlines()) == 1
+
+
+def test_cli_internal_pair_takes_a_load_rating(capsys):
+    # The ring carries the pinion's tangential load at z_r / z_p times its torque (one mesh, one force).
+    import json
+
+    code, out, _ = run(capsys, "pair", "20", "-66", "-m", "1", "--torque", "0.2", "--speed", "100", "--json")
+    data = json.loads(out)
+    rating = data["rating"]
+    pinion, ring = rating["gears"]
+    assert code == (1 if data["verdict"] == "failure" else 0)  # the geometry's checks (no backlash here) still count
+    assert {"bending pinion", "bending ring", "contact"} <= {f["check"] for f in data["findings"]}
+    assert ring["torque"] == pytest.approx(0.2 * 66 / 20)
+    assert ring["tangential_load"] == pytest.approx(pinion["tangential_load"])
+    assert rating["contact_stress"] > 0 and ring["safety_factor"] > pinion["safety_factor"]

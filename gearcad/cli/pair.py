@@ -123,17 +123,24 @@ def _run_internal(args: argparse.Namespace, system, z1: int, z2: int) -> int:
 
     if args.centre is not None:
         raise InputError("--centre is not available for an internal pair; give the shifts with --shift X1 X2")
-    if load_from_args(args) is not None:
-        raise InputError("the load rating (--torque, --power) is not available for an internal pair")
     pair = make_internal_pair(z1, z2, args.module, system, shifts=tuple(args.shift) if args.shift else None,
                               backlash=args.backlash, centre_allowance=args.centre_allowance,
                               shorten_tips=not args.full_tips, cutter_teeth=args.cutter_teeth, cutter_shift=args.cutter_shift)
     analysis = analyse_internal_pair(pair)
+    rating = _rating(args, pair)
+    findings = list(analysis.findings) + (list(rating.findings()) if rating else [])
     if args.json:
-        print_json(internal_to_dict(analysis))
+        data = internal_to_dict(analysis)
+        if rating:
+            from ..report import rating_data
+
+            data["rating"] = rating_data(rating)
+            data["findings"] = [finding_to_dict(f) for f in findings]
+            data["verdict"] = _worst(findings)
+        print_json(data)
     else:
-        print(render_internal(analysis))
-    return 1 if analysis.worst == "failure" else 0
+        print(render_internal(analysis, rating))
+    return 1 if _worst(findings) == "failure" else 0
 
 
 def internal_to_dict(a) -> dict:
@@ -175,8 +182,8 @@ def internal_to_dict(a) -> dict:
     }
 
 
-def render_internal(a) -> str:
-    """The readable table of ``pair`` for an internal pair."""
+def render_internal(a, rating=None) -> str:
+    """The readable table of ``pair`` for an internal pair (and its load rating, if any)."""
     p = a.pair
     pin, ring = a.gears
     r = p.ring
@@ -213,7 +220,8 @@ def render_internal(a) -> str:
         head, "",
         table(rows, header=("gear figures (mm)", "pinion", "ring")), "",
         table(mesh, header=("mesh", "")), "",
-        *_closing(list(a.findings)),
+        *(_rating_lines(rating) if rating else []),
+        *_closing(list(a.findings) + (list(rating.findings()) if rating else [])),
     ])
 
 
@@ -227,13 +235,14 @@ def _rating(args: argparse.Namespace, pair):
     if load is None:
         return None
     from ..materials import load_material
-    from ..strength import PROCESS_CLASS, rate_pair
+    from ..strength import PROCESS_CLASS, rate_internal_pair, rate_pair
     from ..validate import positive
 
     width = positive(args.face_width, "face width", "mm") if args.face_width is not None else 10 * pair.module
     first = load_material(args.material)
     second = load_material(args.mate_material) if args.mate_material else first
-    return rate_pair(pair, load.torque, load.speed, width, first, second, PROCESS_CLASS[args.made_by])
+    rate = rate_internal_pair if hasattr(pair, "ring") else rate_pair
+    return rate(pair, load.torque, load.speed, width, first, second, PROCESS_CLASS[args.made_by])
 
 
 def gear_to_dict(fig) -> dict:
