@@ -46,6 +46,7 @@ from .trainspec import GearSpec, StageSpec, SummingSpec, TrainSpec
 
 __all__ = ["plan_summing", "mean_assembles", "axle_room", "TUBE_WALL"]
 
+MAX_IDLER = 400  # teeth; our limit: a longer reach wants a closer axle, not a larger idler
 TUBE_WALL = 0.5  # wall of the tubes joining each side's gears on the axle, mm (telescoping brass tube); common practice
 
 
@@ -144,6 +145,9 @@ def _idler_position(path: _Path, distance: float, side: int) -> np.ndarray:
     d1, d2 = path.pairs[0].centre_distance, path.pairs[1].centre_distance
     if not abs(d1 - d2) < distance < d1 + d2:
         least = _least_idler(path, distance)
+        if least > MAX_IDLER:
+            raise InputError(f"no idler of up to {MAX_IDLER} teeth lets path {path.name} reach the differential axle "
+                             f"{distance:.3f} mm from the input: bring the axle closer (axis_distance)")
         raise InputError(f"path {path.name}'s idler of {path.gears[1][1].teeth} teeth cannot reach the differential axle "
                          f"{distance:.3f} mm from the input ({d1:.3f} + {d2:.3f} mm): give it at least {least} teeth")
     x = (distance ** 2 + d1 ** 2 - d2 ** 2) / (2 * distance)

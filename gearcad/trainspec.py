@@ -136,6 +136,8 @@ class SummingSpec:
             value = getattr(self, key)
             if value is not None and not (math.isfinite(value) and value > 0):
                 raise InputError(f"summing {key} must be greater than 0 mm, got {value!r}")
+        if self.module is not None and not 0.01 <= self.module <= 100:
+            raise InputError(f"summing module must be from 0.01 to 100 mm, got {self.module!r}")
 
 
 @dataclass(frozen=True)
