@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import functools
+
 import math
 from collections import Counter
 from dataclasses import dataclass, field
@@ -59,9 +61,9 @@ class Limits:
     inventory: Inventory | None = None
     direction: str | None = None
 
-    @property
+    @functools.cached_property
     def teeth(self) -> tuple[int, ...]:
-        """Every tooth count allowed, ascending."""
+        """Every tooth count allowed, ascending (computed once: the limits are frozen)."""
         if self.inventory is not None:
             pool: Sequence[int] = self.inventory.teeth
         else:

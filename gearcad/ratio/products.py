@@ -27,8 +27,18 @@ def multiset_count(n: int, k: int) -> int:
     return math.comb(n + k - 1, k) if k > 0 else 1
 
 
+_BITMAP_LIMIT = 1 << 25  # products below this are deduplicated by marking a boolean map (32 MB at most)
+
+
 def _outer_unique(left: np.ndarray, right: np.ndarray) -> np.ndarray:
-    return np.unique(np.multiply.outer(left, right).ravel())
+    """Sorted distinct products ``l * r``: by a boolean map when they are small, else by sorting."""
+    products = np.multiply.outer(left, right).ravel()
+    top = int(left[-1]) * int(right[-1])
+    if top < _BITMAP_LIMIT and int(left[0]) > 0 and int(right[0]) > 0:
+        seen = np.zeros(top + 1, dtype=bool)
+        seen[products] = True
+        return np.flatnonzero(seen).astype(np.int64)
+    return np.unique(products)
 
 
 def sieve_square_products(values: np.ndarray, segment_bits: int = 1 << 30) -> np.ndarray:
