@@ -129,7 +129,6 @@ def _planetary_sets(teeth: list[int], max_ring: int, planets: int, margin: float
 
 IDLER_GAP = 6  # an idler path needs the axis 6 half-modules beyond driver + driven: tips 1 module apart; common practice
 RING_FIT = 7  # outside teeth round a ring: z_outside >= z_ring + 7 leaves 1 module of rim (2.5 + 2.5 + 2); common practice
-WINDOW = 8  # neighbours either side of the needed ratio tried when a rule may refuse the nearest
 
 
 def solve_summing(target, teeth: list[int], kind: str = "mean", count: int = 5, max_stage_ratio: float = 6.0,
@@ -154,8 +153,9 @@ def solve_summing(target, teeth: list[int], kind: str = "mean", count: int = 5, 
     - the planetary kind's ring is driven by teeth on its outside (path B's
       driven gear), which needs ``driven >= ring + 7``.
 
-    The search is exact for the path rules (the paths are grouped by ``S``);
-    under the ring rule it takes the best of the 2 x 8 stages nearest the needed ratio.
+    The search is exact: the paths are grouped by ``S``, and under the ring
+    rule each ring size is searched among the path-B stages whose driven gear
+    carries it.
     """
     if kind not in KINDS:
         raise InputError(f"summing kind must be one of {', '.join(KINDS)}, got {kind!r}")
@@ -205,6 +205,16 @@ def _groups(sums: np.ndarray, sign_a: int, sign_b: int, one_axis: bool, min_axis
             yield sign_a < 0, direct, idler_side
 
 
+def _nearest(pool: np.ndarray, pool_values: np.ndarray, need: np.ndarray) -> np.ndarray:
+    """For each needed ratio, the pool stage (indices sorted by ratio) whose ratio lies nearest."""
+    at = np.searchsorted(pool_values, need)
+    lo = pool[np.clip(at - 1, 0, len(pool) - 1)]
+    hi = pool[np.clip(at, 0, len(pool) - 1)]
+    lo_gap = np.where(at > 0, np.abs(pool_values[np.clip(at - 1, 0, len(pool) - 1)] - need), np.inf)
+    hi_gap = np.where(at < len(pool), np.abs(pool_values[np.clip(at, 0, len(pool) - 1)] - need), np.inf)
+    return np.where(lo_gap <= hi_gap, lo, hi)
+
+
 class _Search:
     """One block of differentials (rows) and one sign pair: for each outer stage, the best pool stage."""
 
@@ -228,39 +238,24 @@ class _Search:
             need = ((sun + ring) * g - sun * self.sign_a * outer_values) / ring * self.sign_b
         else:  # the A stage for each B stage: rho_a = ((s + r) g - r rho_b) / s
             need = ((sun + ring) * g - ring * self.sign_b * outer_values) / sun * self.sign_a
-        rows = np.broadcast_to(np.arange(need.shape[0])[:, None], need.shape)
-        other, usable, whole = self._nearest(pool, pool_values, need, rows, outer, outer_is_a, 1)
-        if not whole.all():  # the ring rule refused a nearest stage: look wider around the same ratio
-            miss = ~whole
-            wide, ok, _ = self._nearest(pool, pool_values, need[miss], rows[miss], np.broadcast_to(outer[None, :], need.shape)[miss],
-                                     outer_is_a, WINDOW)
-            other = other.copy()
-            usable = usable.copy()
-            other[miss], usable[miss] = wide, ok
+        if self.ring_fit and outer_is_a:  # path B (the pool) must carry the ring: each ring value its own pool
+            other = np.zeros(need.shape, dtype=np.int64)
+            usable = np.zeros(need.shape, dtype=bool)
+            rings = self.ring[:, 0]
+            for r in np.unique(rings):
+                rows = np.nonzero(rings == r)[0]
+                fitting = pool[b[pool] >= r + RING_FIT]  # still sorted by ratio
+                if len(fitting):
+                    other[rows], usable[rows] = _nearest(fitting, values[fitting], need[rows]), True
+        else:
+            other, usable = _nearest(pool, pool_values, need), np.ones(need.shape, dtype=bool)
+            if self.ring_fit:  # path B is the outer stage: its driven gear carries the ring or nothing helps
+                usable = b[outer][None, :] >= self.ring + RING_FIT
         first = np.broadcast_to(outer[None, :], other.shape) if outer_is_a else other
         second = other if outer_is_a else np.broadcast_to(outer[None, :], other.shape)
         ratio = (sun * self.sign_a * values[first] + ring * self.sign_b * values[second]) / (sun + ring)
         error = np.where(usable, np.abs(ratio / g - 1), np.inf)
         self._keep(best, first, second, error, count)
-
-    def _nearest(self, pool, pool_values, need, rows, outer, outer_is_a, width):
-        """The pool stage nearest ``need`` among ``2 width`` neighbours that the ring rule allows; whether any
-        does; whether the rule refused none of them."""
-        values = self.a / self.b
-        slots = np.searchsorted(pool_values, need)[..., None] + np.arange(-width, width)
-        inside = (slots >= 0) & (slots < len(pool))
-        picked = pool[np.clip(slots, 0, len(pool) - 1)]
-        gap = np.where(inside, np.abs(values[picked] - need[..., None]), np.inf)
-        whole = np.ones(need.shape, dtype=bool)
-        if self.ring_fit:  # path B's driven gear carries the ring inside it
-            ring = self.ring[:, 0][rows][..., None]
-            driven_b = self.b[picked] if outer_is_a else self.b[outer][..., None]
-            fits = driven_b >= ring + RING_FIT
-            gap = np.where(fits, gap, np.inf)
-            whole = (fits | ~inside).all(axis=-1)
-        choice = np.argmin(gap, axis=-1)[..., None]
-        return (np.take_along_axis(picked, choice, axis=-1)[..., 0],
-                np.isfinite(np.take_along_axis(gap, choice, axis=-1)[..., 0]), whole)
 
     def _keep(self, best: dict, first: np.ndarray, second: np.ndarray, error: np.ndarray, count: int) -> None:
         """Record, exactly, the candidates that may enter the ``count`` best so far."""

@@ -3,6 +3,7 @@
 import itertools
 from fractions import Fraction
 
+import numpy as np
 import pytest
 import sympy
 
@@ -172,3 +173,47 @@ def test_ring_tip_rule_agrees_with_the_internal_pair_check():
         check = next(f for f in analyse_internal_pair(make_internal_pair(planet, ring, 1.0, system)).findings
                      if f.check == "involute interference")
         assert (check.severity == "ok") == _ring_tips_clear(planet, ring), (planet, ring)
+
+
+def brute_planetary_one_axle(target, teeth, max_stage_ratio, planets):
+    """Best (ratio, teeth) over every pair of stages and every set, under the one-axle and ring rules (numpy)."""
+    from gearcad.summing import IDLER_GAP, RING_FIT, _planetary_sets
+
+    z = np.array(teeth)
+    a, b = (m.ravel() for m in np.meshgrid(z, z, indexing="ij"))
+    keep = (a <= max_stage_ratio * b) & (b <= max_stage_ratio * a)
+    a, b = a[keep], b[keep]
+    rho, sums = a / b, a + b
+    goal = float(target.approx)
+    candidates = []
+    for sun, planet, ring, n in _planetary_sets(teeth, 200, planets, 0.5):
+        if ring + RING_FIT > max(teeth):
+            continue
+        fits = (b >= ring + RING_FIT)[None, :]
+        for sa, sb in itertools.product((-1, 1), repeat=2):
+            if sa < 0 and sb < 0:
+                rule = sums[:, None] == sums[None, :]
+            elif sa < 0:
+                rule = sums[:, None] >= sums[None, :] + IDLER_GAP
+            elif sb < 0:
+                rule = sums[None, :] >= sums[:, None] + IDLER_GAP
+            else:
+                rule = np.ones((len(a), len(a)), dtype=bool)
+            ratio = (sun * sa * rho[:, None] + ring * sb * rho[None, :]) / (sun + ring)
+            err = np.where(rule & fits & (ratio > 0), np.abs(ratio / goal - 1), np.inf)
+            best = err.min()
+            if np.isfinite(best):
+                for i, j in zip(*np.nonzero(err <= best * (1 + 1e-9) + 1e-15)):
+                    exact = (sun * Fraction(int(a[i]), int(b[i])) * sa + ring * Fraction(int(a[j]), int(b[j])) * sb) / (sun + ring)
+                    total = int(a[i] + b[i] + a[j] + b[j]) + sun + ring + planet * n
+                    candidates.append((abs(exact / target.approx - 1), total, exact))
+    return min(candidates)[2], min(candidates)[1]
+
+
+@pytest.mark.parametrize("expression", ["0.2953", "127/200", "1/7.77"])
+def test_planetary_one_axle_search_matches_brute_force(expression):
+    # Reference: every pair of stages against every set, the rules as numpy masks (written out here).
+    target = parse_target(expression)
+    teeth = list(range(12, 76))
+    best = solve_summing(target, teeth, "planetary", 1, max_stage_ratio=1.25, planets=3)[0]
+    assert (best.ratio, best.total_teeth) == brute_planetary_one_axle(target, teeth, 1.25, 3)
