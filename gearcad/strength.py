@@ -532,16 +532,22 @@ def rate_pair(pair: GearPair, torque_Nm_on_gear1: float, speed_rpm_gear1: float,
     PairRating
         Stresses (MPa), allowables (MPa) and safety factors; ``findings()`` for the checks.
     """
-    torque = positive(torque_Nm_on_gear1, "torque", "N·m")
-    speed = positive(speed_rpm_gear1, "speed", "rpm")
-    width = positive(face_width_mm, "face width", "mm")
+    return _rate(pair, pair.gear1, pair.gear2, ("gear 1", "gear 2"), torque_Nm_on_gear1, speed_rpm_gear1, face_width_mm,
+                 material1, material2, process)
+
+
+def _rate(pair, gear1, gear2, labels: tuple[str, str], torque: float, speed: float, width: float,
+          material1: Material, material2: Material, process: str, lewis2: LewisResult | None = None) -> PairRating:
+    """The rating of a pair whose gear 1 carries ``torque`` (N·m) at ``speed`` (rpm): both gears' bending, contact."""
+    torque = positive(torque, "torque", "N·m")
+    speed = positive(speed, "speed", "rpm")
+    width = positive(width, "face width", "mm")
     velocity_factor(0.0, process)  # refuses an unknown process before any work
-    g1, g2 = pair.gear1, pair.gear2
     d_w1, _ = pair.working_diameters()
     v = pitch_line_speed(speed, d_w1)
-    ratio = g2.teeth / g1.teeth
-    gears = (_gear_rating("gear 1", g1, material1, torque, speed, width, v, process),
-             _gear_rating("gear 2", g2, material2, torque * ratio, speed / ratio, width, v, process))
+    ratio = gear2.teeth / gear1.teeth
+    gears = (_gear_rating(labels[0], gear1, material1, torque, speed, width, v, process),
+             _gear_rating(labels[1], gear2, material2, torque * ratio, speed / ratio, width, v, process, lewis=lewis2))
     load_w = tangential_load(torque, d_w1)
     sigma_h = contact_stress(pair, load_w, width, material1.elastic_modulus, material1.poisson_ratio,
                              material2.elastic_modulus, material2.poisson_ratio, v, process)
@@ -563,20 +569,7 @@ def rate_internal_pair(pair: "InternalPair", torque_Nm_on_pinion: float, speed_r
     lower bound for internal teeth (common practice).  Contact is Hertz's with
     the ring's flank concave (:func:`contact_stress`).
     """
-    torque = positive(torque_Nm_on_pinion, "torque", "N·m")
-    speed = positive(speed_rpm_pinion, "speed", "rpm")
-    width = positive(face_width_mm, "face width", "mm")
-    velocity_factor(0.0, process)
-    p, r = pair.pinion, pair.ring
-    d_w1, _ = pair.working_diameters()
-    v = pitch_line_speed(speed, d_w1)
-    ratio = r.teeth / p.teeth
+    r = pair.ring
     rack = lewis_form_factor(SpurGear(RACK_TEETH, r.module, r.system, thinning=r.thinning))
-    gears = (_gear_rating("pinion", p, pinion_material, torque, speed, width, v, process),
-             _gear_rating("ring", r, ring_material, torque * ratio, speed / ratio, width, v, process, lewis=rack))
-    load_w = tangential_load(torque, d_w1)
-    sigma_h = contact_stress(pair, load_w, width, pinion_material.elastic_modulus, pinion_material.poisson_ratio,
-                             ring_material.elastic_modulus, ring_material.poisson_ratio, v, process)
-    allowable = min(pinion_material.allowable_contact, ring_material.allowable_contact)
-    return PairRating(torque, speed, width, process, v, velocity_factor(v, process), gears, load_w, sigma_h,
-                      allowable, allowable / sigma_h, max(pinion_material.min_safety_factor, ring_material.min_safety_factor))
+    return _rate(pair, pair.pinion, r, ("pinion", "ring"), torque_Nm_on_pinion, speed_rpm_pinion, face_width_mm,
+                 pinion_material, ring_material, process, lewis2=rack)

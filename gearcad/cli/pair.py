@@ -103,14 +103,7 @@ def run(args: argparse.Namespace) -> int:
     rating = _rating(args, pair)
     findings = list(analysis.findings) + (list(rating.findings()) if rating else [])
     if args.json:
-        data = analysis_to_dict(analysis)
-        if rating:
-            from ..report import rating_data
-
-            data["rating"] = rating_data(rating)
-            data["findings"] = [finding_to_dict(f) for f in findings]
-            data["verdict"] = _worst(findings)
-        print_json(data)
+        print_json(_with_rating(analysis_to_dict(analysis), rating, findings))
     else:
         print(render(analysis, rating))
     return 1 if _worst(findings) == "failure" else 0
@@ -130,14 +123,7 @@ def _run_internal(args: argparse.Namespace, system, z1: int, z2: int) -> int:
     rating = _rating(args, pair)
     findings = list(analysis.findings) + (list(rating.findings()) if rating else [])
     if args.json:
-        data = internal_to_dict(analysis)
-        if rating:
-            from ..report import rating_data
-
-            data["rating"] = rating_data(rating)
-            data["findings"] = [finding_to_dict(f) for f in findings]
-            data["verdict"] = _worst(findings)
-        print_json(data)
+        print_json(_with_rating(internal_to_dict(analysis), rating, findings))
     else:
         print(render_internal(analysis, rating))
     return 1 if _worst(findings) == "failure" else 0
@@ -228,6 +214,17 @@ def render_internal(a, rating=None) -> str:
 def _worst(findings) -> str:
     order = ("ok", "warning", "failure")
     return max((f.severity for f in findings), key=order.index, default="ok")
+
+
+def _with_rating(data: dict, rating, findings: list) -> dict:
+    """The JSON of a pair with its load rating and the findings of both (unchanged without a rating)."""
+    if rating:
+        from ..report import rating_data
+
+        data["rating"] = rating_data(rating)
+        data["findings"] = [finding_to_dict(f) for f in findings]
+        data["verdict"] = _worst(findings)
+    return data
 
 
 def _rating(args: argparse.Namespace, pair):
