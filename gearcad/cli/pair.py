@@ -99,14 +99,7 @@ def run(args: argparse.Namespace) -> int:
         raise InputError("--cutter-teeth and --cutter-shift apply to a ring gear only (give z2 negative)")
     pair = make_pair(z1, z2, args.module, system, shifts=tuple(args.shift) if args.shift else None, centre=args.centre,
                      backlash=args.backlash, centre_allowance=args.centre_allowance, shorten_tips=not args.full_tips)
-    analysis = analyse_pair(pair)
-    rating = _rating(args, pair)
-    findings = list(analysis.findings) + (list(rating.findings()) if rating else [])
-    if args.json:
-        print_json(_with_rating(analysis_to_dict(analysis), rating, findings))
-    else:
-        print(render(analysis, rating))
-    return 1 if _worst(findings) == "failure" else 0
+    return _show(args, pair, analyse_pair(pair), analysis_to_dict, render)
 
 
 def _run_internal(args: argparse.Namespace, system, z1: int, z2: int) -> int:
@@ -119,14 +112,7 @@ def _run_internal(args: argparse.Namespace, system, z1: int, z2: int) -> int:
     pair = make_internal_pair(z1, z2, args.module, system, shifts=tuple(args.shift) if args.shift else None,
                               backlash=args.backlash, centre_allowance=args.centre_allowance,
                               shorten_tips=not args.full_tips, cutter_teeth=args.cutter_teeth, cutter_shift=args.cutter_shift)
-    analysis = analyse_internal_pair(pair)
-    rating = _rating(args, pair)
-    findings = list(analysis.findings) + (list(rating.findings()) if rating else [])
-    if args.json:
-        print_json(_with_rating(internal_to_dict(analysis), rating, findings))
-    else:
-        print(render_internal(analysis, rating))
-    return 1 if _worst(findings) == "failure" else 0
+    return _show(args, pair, analyse_internal_pair(pair), internal_to_dict, render_internal)
 
 
 def internal_to_dict(a) -> dict:
@@ -216,15 +202,22 @@ def _worst(findings) -> str:
     return max((f.severity for f in findings), key=order.index, default="ok")
 
 
-def _with_rating(data: dict, rating, findings: list) -> dict:
-    """The JSON of a pair with its load rating and the findings of both (unchanged without a rating)."""
-    if rating:
-        from ..report import rating_data
+def _show(args: argparse.Namespace, pair, analysis, to_dict, render_table) -> int:
+    """Rate ``pair`` if a load was given, print its JSON or its table; exit 1 when a check fails."""
+    rating = _rating(args, pair)
+    findings = list(analysis.findings) + (list(rating.findings()) if rating else [])
+    if args.json:
+        data = to_dict(analysis)
+        if rating:
+            from ..report import rating_data
 
-        data["rating"] = rating_data(rating)
-        data["findings"] = [finding_to_dict(f) for f in findings]
-        data["verdict"] = _worst(findings)
-    return data
+            data["rating"] = rating_data(rating)
+            data["findings"] = [finding_to_dict(f) for f in findings]
+            data["verdict"] = _worst(findings)
+        print_json(data)
+    else:
+        print(render_table(analysis, rating))
+    return 1 if _worst(findings) == "failure" else 0
 
 
 def _rating(args: argparse.Namespace, pair):
