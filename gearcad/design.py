@@ -19,7 +19,21 @@ from .profiles import ToothSystem, load_tooth_system
 from .trainspec import GearSpec, SolverSpec, StageSpec, SummingSpec, TrainSpec
 
 __all__ = ["balanced_shifts", "spec_with_stages", "solve_train_spec", "solve", "summing_train_spec",
-           "planetary_differential"]
+           "planetary_differential", "thinning_shift"]
+
+
+def thinning_shift(backlash: float, module: float, system: ToothSystem) -> float:
+    """The tooth thinning of each gear as a shift coefficient: half the backlash (mm, as gearcad.pair.make_pair
+    shares it), ``thinning_mm / (2 m tan(alpha))``."""
+    return backlash / 2 / (2 * module * math.tan(system.pressure_angle))
+
+
+def _tooth_system(name: str, pressure_angle: float | None) -> ToothSystem:
+    """The tooth system ``name``, at ``pressure_angle`` degrees where the train file gives one."""
+    system = load_tooth_system(name)
+    if pressure_angle is not None:
+        system = dataclasses.replace(system, pressure_angle=math.radians(pressure_angle))
+    return system
 
 
 def balanced_shifts(driver: int, driven: int, system: ToothSystem, thinning: float = 0.0) -> tuple[float, float]:
@@ -29,8 +43,7 @@ def balanced_shifts(driver: int, driven: int, system: ToothSystem, thinning: flo
     (``thinning_mm / (2 m tan(alpha))``): the cutter feeds that much deeper.
     """
     depth, alpha = system.straight_flank_depth, system.pressure_angle
-    need = [max(0.0, math.ceil((min_shift_without_undercut(z, alpha, depth) + thinning) * 100 - 1e-9) / 100)
-            for z in (driver, driven)]
+    need = [_least_shift(z, system, thinning) for z in (driver, driven)]
     if need == [0.0, 0.0]:
         return 0.0, 0.0
     small, big = (0, 1) if driver <= driven else (1, 0)
@@ -43,13 +56,13 @@ def balanced_shifts(driver: int, driven: int, system: ToothSystem, thinning: flo
 
 def spec_with_stages(spec: TrainSpec, train, system: ToothSystem | None = None) -> TrainSpec:
     """``spec`` with the stages of a solved ``train`` (a :class:`gearcad.ratio.Train`)."""
-    system = system or load_tooth_system(spec.tooth_system)
-    if spec.pressure_angle is not None:
+    if system is None:
+        system = _tooth_system(spec.tooth_system, spec.pressure_angle)
+    elif spec.pressure_angle is not None:
         system = dataclasses.replace(system, pressure_angle=math.radians(spec.pressure_angle))
     from .profiles import load_fabrication
 
-    # Each gear is thinned by about half the profile's backlash (gearcad.pair.make_pair).
-    thinning = load_fabrication(spec.fabrication).backlash / 2 / (2 * spec.module * math.tan(system.pressure_angle))
+    thinning = thinning_shift(load_fabrication(spec.fabrication).backlash, spec.module, system)
     stages = []
     for k, (driver, driven) in enumerate(train.stages):
         if train.shifts is not None:
@@ -153,12 +166,10 @@ def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, i
     from .plan import plan_train
     from .profiles import load_fabrication
 
-    system = load_tooth_system(fields.get("tooth_system", "iso53-a"))
-    if fields.get("pressure_angle") is not None:
-        system = dataclasses.replace(system, pressure_angle=math.radians(fields["pressure_angle"]))
+    system = _tooth_system(fields.get("tooth_system", "iso53-a"), fields.get("pressure_angle"))
     module = fields["module"]
     backlash = load_fabrication(fields.get("fabrication", "laser-3mm-acrylic")).backlash
-    thinning = backlash / 2 / (2 * module * math.tan(system.pressure_angle))
+    thinning = thinning_shift(backlash, module, system)
     stages = []
     for (driver, driven), sign in ((train.path_a, train.sign_a), (train.path_b, train.sign_b)):
         if sign < 0:

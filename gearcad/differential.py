@@ -291,7 +291,7 @@ class _MeanDifferential:
     top_layer = 6
 
     def __init__(self, spec: TrainSpec, system, fab: Fabrication, tube: float) -> None:
-        from .design import balanced_shifts
+        from .design import balanced_shifts, thinning_shift
 
         ss = spec.summing
         self.spec, self.fab, self.tube, self.m = spec, fab, tube, ss.module or spec.module
@@ -301,8 +301,7 @@ class _MeanDifferential:
             raise InputError(f"{ss.planets} planet pairs cannot be spaced equally between suns of {ss.sun} teeth: "
                              f"2 x sun teeth / pairs must be whole (2 x {ss.sun} / {ss.planets} is not); "
                              "change sun or planets")
-        thinning = fab.backlash / 2 / (2 * self.m * math.tan(system.pressure_angle))
-        x_s, x_p = balanced_shifts(ss.sun, ss.planet, system, thinning)
+        x_s, x_p = balanced_shifts(ss.sun, ss.planet, system, thinning_shift(fab.backlash, self.m, system))
         self.sun_pair = make_pair(ss.sun, ss.planet, self.m, system, shifts=(x_s, x_p), backlash=fab.backlash)
         self.planet_pair = make_pair(ss.planet, ss.planet, self.m, system, shifts=(x_p, x_p), backlash=fab.backlash)
         self.radius = self.sun_pair.centre_distance
@@ -366,7 +365,7 @@ class _MeanDifferential:
                     f"sun a and path a's driven gear are fixed to one {self.tube:g} mm tube, sun b and path b's driven "
                     f"gear to another, both free on the {self.spec.bore:g} mm axle; each carrier disc rides on its tube; "
                     "each planet is two laminations (-1, -2) fixed together on its pin")]
-        self.pins, self.angles = pins, angles
+        self.pins = pins
 
     def _clearances(self, axle, gears, pins) -> list[Finding]:
         """Tip gaps between planets that do not mesh, and pins against the gears of the layers they pass."""
@@ -449,11 +448,11 @@ class _PlanetaryDifferential:
         self.sun_pair = make_pair(ss.sun, ss.planet, self.m, system, shifts=(x_s, x_p), backlash=fab.backlash)
         self.ring_pair = make_internal_pair(ss.planet, ss.ring, self.m, system, shifts=(x_p, x_r), backlash=fab.backlash)
         self.outside = path_b.gears[-1][1]
-        self.outside_spec = path_b.gears[-1][2]
         rim = (self.outside.root_diameter - self.ring_pair.ring.root_diameter) / 2
         if rim < MIN_RIM * self.m:
-            least = math.ceil((self.ring_pair.ring.root_diameter + 2 * MIN_RIM * self.m) / self.outside.module
-                              + 2 * 1.25 - 2 * self.outside.shift)
+            out = self.outside  # root diameter m (z - 2 (h_f - x_E)), solved for z
+            least = math.ceil((self.ring_pair.ring.root_diameter + 2 * MIN_RIM * self.m) / out.module
+                              + 2 * (out.system.dedendum - out.generating_shift) - 1e-9)
             raise InputError(f"path b's driven gear ({self.outside.teeth} teeth, root {self.outside.root_diameter:.3f} mm) "
                              f"must carry the {ss.ring}-tooth ring (root {self.ring_pair.ring.root_diameter:.3f} mm) inside "
                              f"it with {MIN_RIM:g} module of rim: give it at least {least} teeth or a smaller differential module")
