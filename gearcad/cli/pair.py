@@ -135,23 +135,8 @@ def internal_to_dict(a) -> dict:
     gears[1].update({"internal": True, "iso_teeth": r.iso_teeth, "nominal_root_diameter": r.nominal_root_diameter,
                      "cutter_teeth": r.cutter_teeth, "cutter_shift": r.cutter_shift,
                      "cutting_centre_distance": r.cutting_centre_distance, "outer_diameter": r.outer_diameter})
-    return {
-        "internal": True,
-        "module": p.module,
-        "pressure_angle": math.degrees(p.pressure_angle),
-        "tooth_system": p.pinion.system.name,
-        "standard_centre_distance": p.standard_centre_distance,
-        "centre_distance": p.centre_distance,
-        "centre_modification": p.centre_modification,
-        "working_pressure_angle": math.degrees(p.operating_pressure_angle),
-        "contact_ratio": a.contact_ratio,
-        "backlash": a.backlash,
-        "normal_backlash": a.normal_backlash,
-        "least_tooth_difference": a.least_difference,
-        "gears": gears,
-        "findings": [finding_to_dict(f) for f in a.findings],
-        "verdict": a.worst,
-    }
+    return {"internal": True, **_mesh_dict(a, p.pinion.system.name), "least_tooth_difference": a.least_difference,
+            "gears": gears, "findings": [finding_to_dict(f) for f in a.findings], "verdict": a.worst}
 
 
 def render_internal(a, rating=None) -> str:
@@ -265,11 +250,17 @@ def finding_to_dict(f) -> dict:
 
 def analysis_to_dict(a) -> dict:
     """JSON form of a pair analysis; keys are a contract (see README)."""
+    return {**_mesh_dict(a, a.pair.gear1.system.name), "gears": [gear_to_dict(f) for f in a.gears],
+            "findings": [finding_to_dict(f) for f in a.findings], "verdict": a.worst}
+
+
+def _mesh_dict(a, tooth_system: str) -> dict:
+    """The mesh's keys shared by external and internal pairs (mm, degrees)."""
     p = a.pair
     return {
         "module": p.module,
         "pressure_angle": math.degrees(p.pressure_angle),
-        "tooth_system": p.gear1.system.name,
+        "tooth_system": tooth_system,
         "standard_centre_distance": p.standard_centre_distance,
         "centre_distance": p.centre_distance,
         "centre_modification": p.centre_modification,
@@ -277,9 +268,6 @@ def analysis_to_dict(a) -> dict:
         "contact_ratio": a.contact_ratio,
         "backlash": a.backlash,
         "normal_backlash": a.normal_backlash,
-        "gears": [gear_to_dict(f) for f in a.gears],
-        "findings": [finding_to_dict(f) for f in a.findings],
-        "verdict": a.worst,
     }
 
 
