@@ -1,0 +1,1 @@
+"""Lathe change gears: machine files, thread pitches, swing-frame fit, thread tables."""

@@ -1,0 +1,317 @@
+"""The thread table: for each thread, the best change-gear train from the shelf that fits the frame.
+
+For one thread of pitch ``p`` the change gears must turn the leadscrew
+``R = p / (P_ls * f)`` times per stud turn (``P_ls`` the leadscrew pitch, ``f`` the
+fixed gearing's stud turns per spindle turn; the lead-screw rule, common
+practice).  The ratio solver (:func:`gearcad.ratio.solve_ratio` with the shelf
+as inventory, one and two stages) ranks the distinct ratios the shelf can make
+by their exact error.  Ratio by ratio, best first, every way of mounting it
+(which gear on the stud, which pair or idler on the intermediate stud, which on
+the leadscrew) is placed on the frame (:func:`gearcad.lathe.frame.place`); the
+first ratio with a train that fits gives the row, its simplest train (an idler
+before a compound pair, then fewest teeth, then the widest margin) the best.
+A better ratio whose every train misses the frame is reported beside it.
+
+When the best train is not exact and the pitch is rational, exact trains that
+need one gear not on the shelf are searched (three gears from the shelf, the
+fourth computed) and the simplest that fits is offered with the missing gear.
+"""
+
+from __future__ import annotations
+
+from collections import Counter
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Iterable, Iterator, Sequence
+
+from ..errors import InputError
+from ..ratio.limits import make_limits
+from ..ratio.products import Factorizer
+from ..ratio.solve import RatioQuery, solve_ratio
+from ..ratio.target import Target, parse_target
+from ..ratio.train import exact_relative_error
+from .frame import Frame, FrameFit, Setup, place
+from .machine import Machine
+from .threads import Pitch
+
+__all__ = ["Candidate", "ThreadRow", "ThreadTable", "thread_table", "thread_row", "arrangements",
+           "one_gear_short", "reachable_pitches", "can_cut", "APPROACH_LIMIT", "DEFAULT_TOLERANCE", "error_um"]
+
+#: Beyond this |relative error| a pitch counts as out of the shelf's reach (bad input).
+APPROACH_LIMIT = 0.05
+#: Default tolerance of a thread's |relative error| (25 um over 25 mm of thread).
+DEFAULT_TOLERANCE = 1e-3
+#: Thread length over which the error is stated in micrometres, mm.
+ERROR_LENGTH = 25.0
+_COUNTS = (8, 32, 128)  # ratios asked of the solver per stage count, widened while nothing fits
+
+
+def error_um(relative_error: float, length: float = ERROR_LENGTH) -> float:
+    """The pitch error accumulated over ``length`` mm of thread, micrometres."""
+    return relative_error * length * 1000.0
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One train for one thread: its setup, exact ratio, error and fit."""
+
+    setup: Setup
+    ratio: Fraction
+    relative_error: float
+    fit: FrameFit
+    missing: tuple[int, ...] = ()
+
+    @property
+    def exact(self) -> bool:
+        """Whether the ratio equals the wanted one exactly."""
+        return self.relative_error == 0.0
+
+
+@dataclass(frozen=True)
+class ThreadRow:
+    """One thread of the table.
+
+    Attributes
+    ----------
+    pitch : Pitch
+    target : Target
+        The change-gear ratio wanted (leadscrew turns per stud turn).
+    best : Candidate
+        The best train that fits, or (``best.fit.fits`` False) the nearest
+        miss when no train of the shelf fits.
+    alternative : Candidate or None
+        The next-best train with other gears: exact too when one exists.
+    better_unfit : Candidate or None
+        A train of a better ratio than ``best`` that does not fit the frame.
+    with_missing : Candidate or None
+        An exact train that needs a gear not on the shelf (``missing``).
+    tolerance : float
+    """
+
+    pitch: Pitch
+    target: Target
+    best: Candidate
+    alternative: Candidate | None
+    better_unfit: Candidate | None
+    with_missing: Candidate | None
+    tolerance: float
+
+    @property
+    def within_tolerance(self) -> bool:
+        """Whether the best train fits and its |error| is within the tolerance."""
+        return self.best.fit.fits and abs(self.best.relative_error) <= self.tolerance
+
+
+@dataclass(frozen=True)
+class ThreadTable:
+    """Every row, with the machine they were worked out for."""
+
+    machine: Machine
+    rows: tuple[ThreadRow, ...]
+    tolerance: float
+
+
+def _shelf(machine: Machine) -> Counter:
+    return Counter(dict(machine.shelf.counts))
+
+
+def _on_shelf(gears: Iterable[int], shelf: Counter) -> bool:
+    return all(shelf[z] >= n for z, n in Counter(gears).items())
+
+
+def arrangements(ratio: Fraction, shelf: Counter) -> Iterator[Setup]:
+    """Every way of mounting ``ratio`` with the gears of ``shelf`` (each physical gear once).
+
+    Simple trains (stud gear, idler, leadscrew gear) and compound trains
+    (stud gear, intermediate driven and driver, leadscrew gear); the stud and
+    leadscrew gears of a simple train, and the two drivers or the two driven
+    gears of a compound train, are tried in both places.
+    """
+    teeth = sorted(z for z in shelf if shelf[z] > 0)
+    members = set(teeth)
+    for stud in teeth:
+        lead = Fraction(stud) / ratio
+        if lead.denominator == 1 and int(lead) in members:
+            for idler in teeth:
+                if _on_shelf((stud, idler, int(lead)), shelf):
+                    yield Setup(stud, (idler,), int(lead))
+    factorizer = Factorizer(teeth)
+    for driven in teeth:
+        for lead in teeth:
+            product = ratio * driven * lead
+            if product.denominator != 1:
+                continue
+            for low, high in factorizer.factorizations(int(product), 2):
+                for stud, driver in {(low, high), (high, low)}:
+                    if _on_shelf((stud, driven, driver, lead), shelf):
+                        yield Setup(stud, (driven, driver), lead)
+
+
+def _rank(candidate: Candidate) -> tuple:
+    s = candidate.setup
+    return (len(s.gears), sum(s.gears), -candidate.fit.margin, s.gears)
+
+
+def _candidates(ratio: Fraction, target: Target, shelf: Counter, frame: Frame) -> list[Candidate]:
+    error = _error(ratio, target)
+    return [Candidate(s, ratio, error, place(s, frame)) for s in arrangements(ratio, shelf)]
+
+
+def _solver_ratios(target: Target, machine: Machine, count: int) -> list[Fraction]:
+    teeth = machine.shelf.teeth
+    limits = make_limits(min_teeth=max(4, teeth[0]), max_teeth=min(400, teeth[-1]),
+                         max_stage_ratio=teeth[-1] / teeth[0] + 1, inventory=machine.shelf)
+    trains = solve_ratio(RatioQuery(target, (1, 2), limits, count=count))
+    seen: dict[Fraction, None] = {}
+    for train in trains:
+        seen.setdefault(train.fraction, None)
+    return list(seen)
+
+
+def _error(ratio: Fraction, target: Target) -> float:
+    return float(exact_relative_error(ratio.numerator, ratio.denominator, target))
+
+
+def _different(a: Candidate, b: Candidate) -> bool:
+    return sorted(a.setup.gears) != sorted(b.setup.gears)
+
+
+def thread_row(pitch: Pitch, machine: Machine, frame: Frame, tolerance: float = DEFAULT_TOLERANCE) -> ThreadRow:
+    """The row of one thread (see the module notes).
+
+    Raises
+    ------
+    InputError
+        No train of the shelf comes within :data:`APPROACH_LIMIT` of the pitch.
+    """
+    target = parse_target(pitch.ratio_expression(machine.advance_per_stud_turn))
+    shelf = _shelf(machine)
+    best = alternative = better_unfit = None
+    done: set[Fraction] = set()
+    for count in _COUNTS:
+        ratios = _solver_ratios(target, machine, count)
+        if not ratios or abs(_error(ratios[0], target)) > APPROACH_LIMIT:
+            raise InputError(_out_of_reach(pitch, machine))
+        for ratio in (r for r in ratios if r not in done):
+            done.add(ratio)
+            found = _candidates(ratio, target, shelf, frame)
+            fitting = sorted((c for c in found if c.fit.fits), key=_rank)
+            if not fitting:
+                if found and best is None and better_unfit is None:  # the nearest miss of the best ratio
+                    better_unfit = max(found, key=lambda c: (c.fit.margin, -len(c.setup.gears)))
+                continue
+            if best is None:
+                best, fitting = fitting[0], fitting[1:]
+            alternative = next((c for c in fitting if _different(c, best)), None)
+            if alternative is not None:
+                break
+        if alternative is not None or len(ratios) < count:  # settled, or the shelf has no more ratios
+            break
+    if best is None:  # nothing fits: the nearest miss of the best ratio stands in the row
+        best, better_unfit = better_unfit, None
+    if best is None or abs(best.relative_error) > APPROACH_LIMIT:
+        raise InputError(_out_of_reach(pitch, machine))
+    if better_unfit is not None and abs(better_unfit.relative_error) >= abs(best.relative_error):
+        better_unfit = None  # an equally good ratio that does not fit is no loss
+    missing = None
+    if not best.exact and target.rational is not None:
+        missing = one_gear_short(target.rational, shelf, frame, machine.largest_gear, target)
+    return ThreadRow(pitch, target, best, alternative, better_unfit, missing, tolerance)
+
+
+def one_gear_short(ratio: Fraction, shelf: Counter, frame: Frame, largest: int, target: Target,
+                   smallest: int = 12) -> Candidate | None:
+    """The simplest exact train that fits and needs one gear not on the shelf, or None.
+
+    Three gears come from the shelf, the fourth (``smallest`` to ``largest``
+    teeth) is computed from the ratio.  Ranked like the table's trains.
+    """
+    teeth = sorted(z for z in shelf if shelf[z] > 0)
+    found: list[Candidate] = []
+
+    def consider(setup: Setup) -> None:
+        gears = Counter(setup.gears)
+        short = gears - shelf
+        if sum(short.values()) != 1 or not all(smallest <= z <= largest for z in short):
+            return
+        fit = place(setup, frame)
+        if fit.fits:
+            found.append(Candidate(setup, setup.ratio, 0.0, fit, tuple(short.elements())))
+
+    for known in teeth:  # simple trains: stud gear or leadscrew gear missing
+        for other in (Fraction(known) / ratio, Fraction(known) * ratio):
+            if other.denominator == 1:
+                stud, lead = (known, int(other)) if other == Fraction(known) / ratio else (int(other), known)
+                for idler in teeth:
+                    consider(Setup(stud, (idler,), lead))
+    for x in teeth:
+        for y in teeth:
+            for w in teeth:
+                a = ratio * x * y / w  # a missing driver: a * w / (x y) = ratio
+                if a.denominator == 1:
+                    consider(Setup(int(a), (x, w), y))
+                    consider(Setup(w, (x, int(a)), y))
+                b = Fraction(x * y) / (ratio * w)  # a missing driven gear: x y / (w b) = ratio
+                if b.denominator == 1:
+                    consider(Setup(x, (int(b), y), w))
+                    consider(Setup(x, (w, y), int(b)))
+    return min(found, key=_rank) if found else None
+
+
+def reachable_pitches(machine: Machine) -> tuple[float, float]:
+    """Least and greatest pitch any train of the shelf could cut on this machine, mm (a bound)."""
+    gears = sorted(machine.shelf.as_counter().elements())
+    low = Fraction(gears[0] * gears[1], gears[-1] * gears[-2]) if len(gears) >= 4 else Fraction(gears[0], gears[-1])
+    high = 1 / low
+    scale = machine.advance_per_stud_turn
+    return float(low * scale), float(high * scale)
+
+
+def _out_of_reach(pitch: Pitch, machine: Machine) -> str:
+    low, high = reachable_pitches(machine)
+    return (f"thread {pitch.name} ({pitch.mm:.4g} mm) is out of reach of the shelf of {machine.name}: no train "
+            f"comes within {APPROACH_LIMIT:.0%}; allowed: pitches from about {low:.3g} to {high:.3g} mm")
+
+
+def thread_table(machine: Machine, pitches: Sequence[Pitch], tolerance: float = DEFAULT_TOLERANCE,
+                 addendum: float | None = None) -> ThreadTable:
+    """The table of ``pitches`` for ``machine`` (one :class:`ThreadRow` each, in order).
+
+    Parameters
+    ----------
+    machine : Machine
+    pitches : sequence of Pitch
+    tolerance : float
+        Largest |relative error| a thread may have to count as cut.
+    addendum : float, optional
+        Addendum of the tooth system in modules (default: the machine's tooth
+        system's).
+    """
+    if not 0 < tolerance < APPROACH_LIMIT:
+        raise InputError(f"tolerance must be greater than 0 and less than {APPROACH_LIMIT}, got {tolerance!r}")
+    if addendum is None:
+        from ..profiles import load_tooth_system
+
+        addendum = load_tooth_system(machine.tooth_system).addendum
+    frame = Frame.of_machine(machine, addendum)
+    return ThreadTable(machine, tuple(thread_row(p, machine, frame, tolerance) for p in pitches), tolerance)
+
+
+def can_cut(machine: Machine, pitches: Sequence[Pitch], tolerance: float = DEFAULT_TOLERANCE) -> tuple[ThreadTable, tuple[Pitch, ...]]:
+    """What the shelf can cut: the rows within tolerance that fit, and the pitches it cannot reach.
+
+    A pitch out of reach altogether counts as not cut (no error is raised).
+    """
+    from ..profiles import load_tooth_system
+
+    frame = Frame.of_machine(machine, load_tooth_system(machine.tooth_system).addendum)
+    rows, missed = [], []
+    for pitch in pitches:
+        try:
+            row = thread_row(pitch, machine, frame, tolerance)
+        except InputError:
+            missed.append(pitch)
+            continue
+        (rows if row.within_tolerance else missed).append(row if row.within_tolerance else pitch)
+    return ThreadTable(machine, tuple(rows), tolerance), tuple(missed)
+
