@@ -28,6 +28,7 @@ COMMANDS: dict[str, str] = {
     "build": "gearcad.cli.build",
     "design": "gearcad.cli.design",
     "demo": "gearcad.cli.demo",
+    "lathe": "gearcad.cli.lathe",
 }
 
 

@@ -43,7 +43,7 @@ APPROACH_LIMIT = 0.05
 DEFAULT_TOLERANCE = 1e-3
 #: Thread length over which the error is stated in micrometres, mm.
 ERROR_LENGTH = 25.0
-_COUNTS = (8, 32, 128)  # ratios asked of the solver per stage count, widened while nothing fits
+_COUNTS = (3, 12, 48)  # ratios asked of the solver per stage count, widened while nothing fits
 
 
 def error_um(relative_error: float, length: float = ERROR_LENGTH) -> float:
@@ -244,17 +244,20 @@ def one_gear_short(ratio: Fraction, shelf: Counter, frame: Frame, largest: int, 
                 stud, lead = (known, int(other)) if other == Fraction(known) / ratio else (int(other), known)
                 for idler in teeth:
                     consider(Setup(stud, (idler,), lead))
+    p, q = ratio.numerator, ratio.denominator
     for x in teeth:
         for y in teeth:
             for w in teeth:
-                a = ratio * x * y / w  # a missing driver: a * w / (x y) = ratio
-                if a.denominator == 1:
-                    consider(Setup(int(a), (x, w), y))
-                    consider(Setup(w, (x, int(a)), y))
-                b = Fraction(x * y) / (ratio * w)  # a missing driven gear: x y / (w b) = ratio
-                if b.denominator == 1:
-                    consider(Setup(x, (int(b), y), w))
-                    consider(Setup(x, (w, y), int(b)))
+                top, bottom = p * x * y, q * w  # a missing driver a: a w / (x y) = p / q
+                if top % bottom == 0 and smallest <= top // bottom <= largest:
+                    a = top // bottom
+                    consider(Setup(a, (x, w), y))
+                    consider(Setup(w, (x, a), y))
+                top, bottom = q * x * y, p * w  # a missing driven gear b: x y / (w b) = p / q
+                if top % bottom == 0 and smallest <= top // bottom <= largest:
+                    b = top // bottom
+                    consider(Setup(x, (b, y), w))
+                    consider(Setup(x, (w, y), b))
     return min(found, key=_rank) if found else None
 
 

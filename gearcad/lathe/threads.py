@@ -103,18 +103,28 @@ class Series:
     name: str
     title: str
     source: str
-    threads: tuple[tuple[str, str], ...]  # (name shown, pitch text)
+    threads: tuple[tuple[str, str], ...]  # (size shown, pitch text)
+    tag: str = ""
 
     def pitches(self) -> tuple[Pitch, ...]:
-        """The series' threads, one row per distinct pitch, named by every size that uses it."""
+        """The series' threads, one row per distinct pitch, named by the pitch and every size that uses it.
+
+        E.g. ``20 TPI (1/4 UNC)``, ``2 mm (M14, M16)``, ``module 1``.
+        """
         grouped: dict[tuple[Fraction, int], list[str]] = {}
-        kinds: dict[tuple[Fraction, int], str] = {}
+        first: dict[tuple[Fraction, int], Pitch] = {}
         for shown, text in self.threads:
             pitch = parse_pitch(text)
             key = (pitch.coefficient, pitch.pi_power)
-            grouped.setdefault(key, []).append(shown)
-            kinds[key] = pitch.kind
-        return tuple(Pitch(", ".join(names), key[0], key[1], kinds[key]) for key, names in grouped.items())
+            first.setdefault(key, pitch)
+            if shown != pitch.name:
+                grouped.setdefault(key, []).append(shown)
+        out = []
+        for key, pitch in first.items():
+            sizes = ", ".join(grouped.get(key, []))
+            label = " ".join(t for t in (sizes, self.tag) if t)
+            out.append(Pitch(f"{pitch.name} ({label})" if sizes else pitch.name, key[0], key[1], pitch.kind))
+        return tuple(out)
 
 
 def _sizes(prefix: str, pairs: str, unit: str) -> tuple[tuple[str, str], ...]:
@@ -138,25 +148,25 @@ _SERIES = (
     Series("iso-coarse", "ISO metric coarse", "ISO 261:1998 coarse pitches (from memory)",
            tuple(ISO_COARSE.items())),
     Series("iso-fine", "ISO metric fine pitches", "ISO 261:1998 fine pitches, distinct values (from memory)",
-           tuple((f"{p} mm fine", f"{p}mm") for p in
+           tuple((f"{p} mm", f"{p}mm") for p in
                  ("0.2", "0.25", "0.35", "0.5", "0.75", "1", "1.25", "1.5", "2", "3", "4"))),
     Series("unc", "Unified coarse (UNC)", "ASME B1.1 coarse series, threads per inch (from memory)", _sizes("", (
         "#1-64 #2-56 #3-48 #4-40 #5-40 #6-32 #8-32 #10-24 #12-24 1/4-20 5/16-18 3/8-16 7/16-14 1/2-13 9/16-12 "
-        "5/8-11 3/4-10 7/8-9 1-8 1.1/8-7 1.1/4-7 1.3/8-6 1.1/2-6 1.3/4-5 2-4.5"), "tpi")),
+        "5/8-11 3/4-10 7/8-9 1-8 1.1/8-7 1.1/4-7 1.3/8-6 1.1/2-6 1.3/4-5 2-4.5"), "tpi"), "UNC"),
     Series("unf", "Unified fine (UNF)", "ASME B1.1 fine series, threads per inch (from memory)", _sizes("", (
         "#0-80 #1-72 #2-64 #3-56 #4-48 #5-44 #6-40 #8-36 #10-32 #12-28 1/4-28 5/16-24 3/8-24 7/16-20 1/2-20 "
-        "9/16-18 5/8-18 3/4-16 7/8-14 1-12"), "tpi")),
+        "9/16-18 5/8-18 3/4-16 7/8-14 1-12"), "tpi"), "UNF"),
     Series("bsw", "British Standard Whitworth (BSW)", "BS 84 coarse series, threads per inch (from memory)",
            _sizes("", ("1/8-40 3/16-24 1/4-20 5/16-18 3/8-16 7/16-14 1/2-12 9/16-12 5/8-11 3/4-10 7/8-9 1-8 "
-                       "1.1/8-7 1.1/4-7 1.1/2-6 1.3/4-5 2-4.5"), "tpi")),
+                       "1.1/8-7 1.1/4-7 1.1/2-6 1.3/4-5 2-4.5"), "tpi"), "BSW"),
     Series("bsf", "British Standard Fine (BSF)", "BS 84 fine series, threads per inch (from memory)",
            _sizes("", ("3/16-32 7/32-28 1/4-26 9/32-26 5/16-22 3/8-20 7/16-18 1/2-16 9/16-16 5/8-14 11/16-14 "
-                       "3/4-12 7/8-11 1-10"), "tpi")),
+                       "3/4-12 7/8-11 1-10"), "tpi"), "BSF"),
     Series("ba", "British Association (BA)", "BS 93, pitches 0.9^n mm rounded (from memory)",
            _sizes("", ("0BA-1.0 1BA-0.9 2BA-0.81 3BA-0.73 4BA-0.66 5BA-0.59 6BA-0.53 7BA-0.48 8BA-0.43 9BA-0.39 "
                        "10BA-0.35"), "mm")),
     Series("bsp", "British Standard Pipe (BSP)", "ISO 228-1 / ISO 7-1, threads per inch (from memory)",
-           _sizes("G", "1/8-28 1/4-19 3/8-19 1/2-14 3/4-14 1-11 1.1/4-11 1.1/2-11 2-11", "tpi")),
+           _sizes("G", "1/8-28 1/4-19 3/8-19 1/2-14 3/4-14 1-11 1.1/4-11 1.1/2-11 2-11", "tpi"), "BSP"),
     Series("module", "Worms by module", "ISO 54 first-choice modules, axial pitch pi m (from memory)",
            tuple((f"module {m}", f"{m}mod") for m in ("0.5", "0.6", "0.8", "1", "1.25", "1.5", "2", "2.5", "3", "4"))),
     Series("dp", "Worms by diametral pitch", "common diametral pitches (from memory), axial pitch pi/P inch",
