@@ -184,15 +184,15 @@ def _text(result, not_cut) -> str:
 
 
 def _write_files(result, args: argparse.Namespace) -> int:
-    written = []
+    written: list[str] = []
+    code = 0
+    if args.build_missing is not None:  # first: its plans are the step that can still refuse
+        code = _build_missing(result, args, written)
     if args.sheet is not None:
         from ..export.threadsheet import write_sheet
         from ..lathe.sheet import sheet_pages
 
         written += [str(p) for p in write_sheet(sheet_pages(result), args.sheet)]
-    code = 0
-    if args.build_missing is not None:
-        code = _build_missing(result, args, written)
     if written:
         print(f"gearcad lathe: wrote {', '.join(written)}", file=sys.stderr)
     return code
@@ -204,21 +204,24 @@ def _build_missing(result, args: argparse.Namespace, written: list[str]) -> int:
     from ..export.bundle import BuildOptions, write_plan
     from ..lathe.missing import missing_gear_spec, missing_gears
     from ..plan import plan_train
+    from ..trainfile import train_to_toml
 
     gears = missing_gears(result)
     if not gears:
         print("gearcad lathe: no thread of the table needs a gear that is not on the shelf", file=sys.stderr)
         return 0
     formats = tuple(f.strip().lower() for f in args.formats.split(",") if f.strip())
-    options = BuildOptions(formats=formats)
-    failed = False
-    for gear in gears:
+    planned = []
+    for gear in gears:  # every plan first: an error leaves no folder half made
         spec = missing_gear_spec(result.machine, gear)
-        plan = plan_train(spec)
+        planned.append((gear, spec, plan_train(spec)))
+    failed = False
+    for gear, spec, plan in planned:
+        options = BuildOptions(formats=formats, extra_files=(("train.toml", train_to_toml(spec)),))
         folder = Path(args.build_missing) / spec.name
         write_plan(plan, folder, options, force=args.force)
         written.append(f"{folder}/")
         failed |= any(f.severity == "failure" for m in plan.meshes for f in m.analysis.findings)
-        print(f"gearcad lathe: gear {gear.teeth} (meshing {gear.mate}) for {', '.join(gear.threads)}: files in "
-              f"{folder}/ (see report.md)", file=sys.stderr)
+        print(f"gearcad lathe: gear {gear.teeth} (s1-driver, meshing {gear.mate}) for {', '.join(gear.threads)}: "
+              f"files in {folder}/ (see report.md)", file=sys.stderr)
     return 1 if failed else 0

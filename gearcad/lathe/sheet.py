@@ -21,12 +21,12 @@ A4 = (210.0, 297.0)
 MARGIN = 12.0
 ROW_HEIGHT = 5.2
 TEXT_SIZE = 2.6
-HEADER_TOP = 42.0
+HEADER_TOP = 43.0
 ROWS_PER_PAGE = int((A4[1] - HEADER_TOP - 2 * ROW_HEIGHT - 26.0) // ROW_HEIGHT)
 #: Columns: (title, x of the anchor in mm, anchor "start" / "middle" / "end", most characters).
-COLUMNS = (("Thread", MARGIN, "start", 30), ("Pitch mm", 74.0, "end", 9), ("Stud", 86.0, "end", 4),
-           ("Intermediate", 103.0, "middle", 11), ("Leadscrew", 127.0, "end", 4), ("um/25mm", 143.0, "end", 7),
-           ("Slot mm", 157.0, "end", 6), ("Angle", 169.0, "end", 6), ("Note", 172.0, "start", 20))
+COLUMNS = (("Thread", MARGIN, "start", 30), ("Pitch mm", 72.0, "end", 9), ("Stud", 83.0, "end", 4),
+           ("Intermediate", 99.0, "middle", 11), ("Leadscrew", 129.0, "end", 4), ("um/25mm", 146.0, "end", 7),
+           ("Slot mm", 160.0, "end", 6), ("Angle", 171.0, "end", 6), ("Note", 174.0, "start", 18))
 
 
 @dataclass(frozen=True)
@@ -71,7 +71,7 @@ def _note(row: ThreadRow) -> str:
         return "NO FIT on the frame"
     if row.with_missing:
         s = row.with_missing.setup
-        return f"exact with {','.join(map(str, row.with_missing.missing))}: {s.describe().replace(' ', '')}"
+        return f"needs {','.join(map(str, row.with_missing.missing))}: {s.describe().replace(' ', '')}"
     if abs(b.relative_error) > row.tolerance:
         return "outside tolerance"
     if row.alternative:
@@ -91,15 +91,16 @@ def _header(table: ThreadTable, page: int, pages: int) -> list[SheetText | Sheet
     m = table.machine
     width = A4[0]
     items: list[SheetText | SheetLine] = [
-        SheetText(MARGIN, 18.0, _clip(f"Change gears: {m.title}", 70), 5.0, bold=True),
+        SheetText(MARGIN, 16.0, _clip(f"Change gears: {m.title}", 62), 4.2, bold=True),
         SheetText(MARGIN, 25.0, _clip(f"Leadscrew {m.leadscrew.name}; spindle to stud "
                                       f"{m.fixed_ratio.numerator}:{m.fixed_ratio.denominator}; change gears module "
                                       f"{m.module:g} mm; stud to leadscrew {m.stud_to_leadscrew:g} mm; slot "
                                       f"{m.slot[0]:g} to {m.slot[1]:g} mm", 110), 3.0),
-        SheetText(MARGIN, 30.5, _clip("Train: stud gear > intermediate stud (driven / driver, or idler) > leadscrew "
-                                      "gear. Slot: intermediate stud from the leadscrew, mm; angle from the line "
-                                      "leadscrew-to-stud, degrees.", 125), 2.4),
-        SheetText(width - MARGIN, 36.0, f"page {page} of {pages}", 2.4, "end"),
+        SheetText(MARGIN, 30.0, "Train: stud gear > intermediate stud (driven / driver of the pair, or idler) > "
+                                "leadscrew gear.", 2.4),
+        SheetText(MARGIN, 33.5, "Slot: intermediate stud from the leadscrew, mm. Angle: frame from the line "
+                                "leadscrew-to-stud, degrees. Error: um over 25 mm of thread.", 2.4),
+        SheetText(width - MARGIN, 37.5, f"page {page} of {pages}", 2.4, "end"),
     ]
     y = HEADER_TOP
     for title, x, anchor, _ in COLUMNS:

@@ -8,8 +8,10 @@ as inventory, one and two stages) ranks the distinct ratios the shelf can make
 by their exact error.  Ratio by ratio, best first, every way of mounting it
 (which gear on the stud, which pair or idler on the intermediate stud, which on
 the leadscrew) is placed on the frame (:func:`gearcad.lathe.frame.place`); the
-first ratio with a train that fits gives the row, its simplest train (an idler
-before a compound pair, then fewest teeth, then the widest margin) the best.
+first ratio with a train that fits gives the row, its simplest train the best:
+an idler before a compound pair, then a train with a module or more to spare on
+every rule before a tight one (measured figures are never exact; common
+practice), then fewest teeth, then the widest margin.
 A better ratio whose every train misses the frame is reported beside it.
 
 When the best train is not exact and the pitch is rational, exact trains that
@@ -147,9 +149,10 @@ def arrangements(ratio: Fraction, shelf: Counter) -> Iterator[Setup]:
                         yield Setup(stud, (driven, driver), lead)
 
 
-def _rank(candidate: Candidate) -> tuple:
+def _rank(candidate: Candidate, comfort: float = 0.0) -> tuple:
+    """Simplest first: fewer gears, then trains with ``comfort`` mm to spare, then fewest teeth."""
     s = candidate.setup
-    return (len(s.gears), sum(s.gears), -candidate.fit.margin, s.gears)
+    return (len(s.gears), candidate.fit.margin < comfort, sum(s.gears), -candidate.fit.margin, s.gears)
 
 
 def _candidates(ratio: Fraction, target: Target, shelf: Counter, frame: Frame) -> list[Candidate]:
@@ -195,7 +198,7 @@ def thread_row(pitch: Pitch, machine: Machine, frame: Frame, tolerance: float = 
         for ratio in (r for r in ratios if r not in done):
             done.add(ratio)
             found = _candidates(ratio, target, shelf, frame)
-            fitting = sorted((c for c in found if c.fit.fits), key=_rank)
+            fitting = sorted((c for c in found if c.fit.fits), key=lambda c: _rank(c, frame.module))
             if not fitting:
                 if found and best is None and better_unfit is None:  # the nearest miss of the best ratio
                     better_unfit = max(found, key=lambda c: (c.fit.margin, -len(c.setup.gears)))
@@ -258,7 +261,7 @@ def one_gear_short(ratio: Fraction, shelf: Counter, frame: Frame, largest: int, 
                     b = top // bottom
                     consider(Setup(x, (b, y), w))
                     consider(Setup(x, (w, y), b))
-    return min(found, key=_rank) if found else None
+    return min(found, key=lambda c: _rank(c, frame.module)) if found else None
 
 
 def reachable_pitches(machine: Machine) -> tuple[float, float]:

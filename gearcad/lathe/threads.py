@@ -217,7 +217,7 @@ def parse_pitch(text: str) -> Pitch:
             raise InputError(f"thread size {item!r} is not an ISO 261 coarse size; allowed: "
                              f"{', '.join(ISO_COARSE)} (or give the pitch, e.g. 1.5mm)")
         pitch = parse_pitch(ISO_COARSE[key])
-        return Pitch(key, pitch.coefficient, 0, "mm")
+        return Pitch(f"{pitch.name} ({key})", pitch.coefficient, 0, "mm")
     match = _PITCH.match(low)
     if not match or match.group(2) not in _UNIT_ALIASES:
         raise InputError(f"thread {item!r} has an unknown unit or form; allowed: {ALLOWED}")
