@@ -26,6 +26,8 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import Iterable, Iterator, Sequence
 
+import numpy as np
+
 from ..errors import InputError
 from ..ratio.limits import make_limits
 from ..ratio.products import Factorizer
@@ -121,29 +123,33 @@ def _on_shelf(gears: Iterable[int], shelf: Counter) -> bool:
     return all(shelf[z] >= n for z, n in Counter(gears).items())
 
 
-def arrangements(ratio: Fraction, shelf: Counter) -> Iterator[Setup]:
+def arrangements(ratio: Fraction, shelf: Counter, kinds: str = "idler,compound") -> Iterator[Setup]:
     """Every way of mounting ``ratio`` with the gears of ``shelf`` (each physical gear once).
 
-    Simple trains (stud gear, idler, leadscrew gear) and compound trains
-    (stud gear, intermediate driven and driver, leadscrew gear); the stud and
-    leadscrew gears of a simple train, and the two drivers or the two driven
-    gears of a compound train, are tried in both places.
+    Simple trains (``idler``: stud gear, idler, leadscrew gear) and compound
+    trains (``compound``: stud gear, intermediate driven and driver, leadscrew
+    gear), simple ones first; the two drivers or the two driven gears of a
+    compound train are tried in both places.
     """
     teeth = sorted(z for z in shelf if shelf[z] > 0)
     members = set(teeth)
-    for stud in teeth:
-        lead = Fraction(stud) / ratio
-        if lead.denominator == 1 and int(lead) in members:
-            for idler in teeth:
-                if _on_shelf((stud, idler, int(lead)), shelf):
-                    yield Setup(stud, (idler,), int(lead))
+    p, q = ratio.numerator, ratio.denominator
+    if "idler" in kinds:
+        for stud in teeth:
+            if (stud * q) % p == 0 and (stud * q) // p in members:
+                lead = (stud * q) // p
+                for idler in teeth:
+                    if _on_shelf((stud, idler, lead), shelf):
+                        yield Setup(stud, (idler,), lead)
+    if "compound" not in kinds:
+        return
     factorizer = Factorizer(teeth)
     for driven in teeth:
         for lead in teeth:
-            product = ratio * driven * lead
-            if product.denominator != 1:
+            product = p * driven * lead
+            if product % q:
                 continue
-            for low, high in factorizer.factorizations(int(product), 2):
+            for low, high in factorizer.factorizations(product // q, 2):
                 for stud, driver in {(low, high), (high, low)}:
                     if _on_shelf((stud, driven, driver, lead), shelf):
                         yield Setup(stud, (driven, driver), lead)
@@ -155,9 +161,9 @@ def _rank(candidate: Candidate, comfort: float = 0.0) -> tuple:
     return (len(s.gears), candidate.fit.margin < comfort, sum(s.gears), -candidate.fit.margin, s.gears)
 
 
-def _candidates(ratio: Fraction, target: Target, shelf: Counter, frame: Frame) -> list[Candidate]:
+def _candidates(ratio: Fraction, target: Target, shelf: Counter, frame: Frame, kinds: str) -> list[Candidate]:
     error = _error(ratio, target)
-    return [Candidate(s, ratio, error, place(s, frame)) for s in arrangements(ratio, shelf)]
+    return [Candidate(s, ratio, error, place(s, frame)) for s in arrangements(ratio, shelf, kinds)]
 
 
 def _solver_ratios(target: Target, machine: Machine, count: int) -> list[Fraction]:
@@ -175,8 +181,15 @@ def _error(ratio: Fraction, target: Target) -> float:
     return float(exact_relative_error(ratio.numerator, ratio.denominator, target))
 
 
+def _key(setup: Setup) -> tuple:
+    """The gears that carry the ratio: drivers and driven gears (an idler carries none)."""
+    if setup.compound:
+        return tuple(sorted((setup.stud, setup.intermediate[1]))), tuple(sorted((setup.intermediate[0], setup.leadscrew)))
+    return (setup.stud,), (setup.leadscrew,)
+
+
 def _different(a: Candidate, b: Candidate) -> bool:
-    return sorted(a.setup.gears) != sorted(b.setup.gears)
+    return _key(a.setup) != _key(b.setup)
 
 
 def thread_row(pitch: Pitch, machine: Machine, frame: Frame, tolerance: float = DEFAULT_TOLERANCE) -> ThreadRow:
@@ -197,15 +210,19 @@ def thread_row(pitch: Pitch, machine: Machine, frame: Frame, tolerance: float = 
             raise InputError(_out_of_reach(pitch, machine))
         for ratio in (r for r in ratios if r not in done):
             done.add(ratio)
-            found = _candidates(ratio, target, shelf, frame)
-            fitting = sorted((c for c in found if c.fit.fits), key=lambda c: _rank(c, frame.module))
-            if not fitting:
-                if found and best is None and better_unfit is None:  # the nearest miss of the best ratio
-                    better_unfit = max(found, key=lambda c: (c.fit.margin, -len(c.setup.gears)))
-                continue
-            if best is None:
-                best, fitting = fitting[0], fitting[1:]
-            alternative = next((c for c in fitting if _different(c, best)), None)
+            found: list[Candidate] = []
+            for kinds in ("idler", "compound"):  # simple trains rank first: compounds only when still needed
+                more = _candidates(ratio, target, shelf, frame, kinds)
+                found += more
+                fitting = sorted((c for c in more if c.fit.fits), key=lambda c: _rank(c, frame.module))
+                if best is None and fitting:
+                    best, fitting = fitting[0], fitting[1:]
+                if best is not None and alternative is None:
+                    alternative = next((c for c in fitting if _different(c, best)), None)
+                if best is not None and alternative is not None:
+                    break
+            if best is None and found and better_unfit is None:  # the nearest miss of the best ratio
+                better_unfit = max(found, key=lambda c: (c.fit.margin, -len(c.setup.gears)))
             if alternative is not None:
                 break
         if alternative is not None or len(ratios) < count:  # settled, or the shelf has no more ratios
@@ -248,19 +265,20 @@ def one_gear_short(ratio: Fraction, shelf: Counter, frame: Frame, largest: int, 
                 for idler in teeth:
                     consider(Setup(stud, (idler,), lead))
     p, q = ratio.numerator, ratio.denominator
-    for x in teeth:
-        for y in teeth:
-            for w in teeth:
-                top, bottom = p * x * y, q * w  # a missing driver a: a w / (x y) = p / q
-                if top % bottom == 0 and smallest <= top // bottom <= largest:
-                    a = top // bottom
-                    consider(Setup(a, (x, w), y))
-                    consider(Setup(w, (x, a), y))
-                top, bottom = q * x * y, p * w  # a missing driven gear b: x y / (w b) = p / q
-                if top % bottom == 0 and smallest <= top // bottom <= largest:
-                    b = top // bottom
-                    consider(Setup(x, (b, y), w))
-                    consider(Setup(x, (w, y), b))
+    z = np.asarray(teeth, dtype=np.int64)
+    x, y, w = (a.ravel() for a in np.meshgrid(z, z, z, indexing="ij"))
+    for top, bottom, driver_missing in ((p * x * y, q * w, True), (q * x * y, p * w, False)):
+        hit = top % bottom == 0  # a missing driver a: a w / (x y) = p / q; a missing driven b: x y / (w b) = p / q
+        value = np.where(hit, top // np.maximum(bottom, 1), 0)
+        hit &= (value >= smallest) & (value <= largest)
+        for i in np.flatnonzero(hit).tolist():
+            a, xi, yi, wi = int(value[i]), int(x[i]), int(y[i]), int(w[i])
+            if driver_missing:
+                consider(Setup(a, (xi, wi), yi))
+                consider(Setup(wi, (xi, a), yi))
+            else:
+                consider(Setup(xi, (a, yi), wi))
+                consider(Setup(xi, (wi, yi), a))
     return min(found, key=lambda c: _rank(c, frame.module)) if found else None
 
 
