@@ -19,6 +19,7 @@ from pathlib import Path
 
 import mpmath
 import pytest
+from hypothesis import given, strategies as st
 from shapely.geometry import Point
 
 from gearcad.errors import InputError, ProfileError
@@ -275,3 +276,25 @@ def test_what_the_shelf_can_cut(bench):
 def test_a_pitch_out_of_reach_is_bad_input(bench, text):
     with pytest.raises(InputError, match="out of reach.*allowed: pitches from"):
         thread_table(bench, [parse_pitch(text)])
+
+
+# -- invariants ------------------------------------------------------------------
+
+
+@given(stud=st.integers(12, 127), driven=st.integers(12, 127), driver=st.integers(12, 127),
+       lead=st.integers(12, 127), distance=st.floats(40.0, 250.0), module=st.sampled_from([1.0, 1.5, 2.0]))
+def test_the_reported_place_reproduces_both_centre_distances(stud, driven, driver, lead, distance, module):
+    # Whatever the train, when the triangle exists the intermediate stud placed at the reported slot
+    # position and angle (leadscrew at the origin, stud on +x) is one centre distance from each axis.
+    frame = Frame(distance, (0.0, 1000.0), (0.0, math.pi), module, 1.0, 0.05, 0.5, 1.0)
+    setup = Setup(stud, (driven, driver), lead)
+    fit = place(setup, frame)
+    a1, a2 = frame.centre(stud, driven), frame.centre(driver, lead)
+    exists = abs(a1 - a2) <= distance <= a1 + a2
+    assert (fit.angle is not None) == exists
+    if exists:
+        point = (fit.slot_position * math.cos(fit.angle), fit.slot_position * math.sin(fit.angle))
+        assert math.dist(point, (0.0, 0.0)) == pytest.approx(a2, rel=1e-9)
+        assert math.dist(point, (distance, 0.0)) == pytest.approx(a1, rel=1e-6, abs=1e-6)
+    else:
+        assert not fit.fits and fit.margin < 0

@@ -163,7 +163,7 @@ def _show(result, not_cut, args: argparse.Namespace) -> None:
 
 
 def _text(result, not_cut) -> str:
-    from ..lathe.report import CAUTION, TEXT_HEADER, row_notes, text_rows
+    from ..lathe.report import CAUTION, TEXT_HEADER, hand_note, row_notes, text_rows
 
     m = result.machine
     lines = [f"{m.title}",
@@ -172,6 +172,7 @@ def _text(result, not_cut) -> str:
              f"slot {m.slot[0]:g} to {m.slot[1]:g} mm; tolerance {result.tolerance:g}",
              "  Intermediate: driven / driver of the pair on the intermediate stud, or the idler. Slot: intermediate "
              "stud from the leadscrew, mm. Angle: frame from the line leadscrew-to-stud, degrees.",
+             "  " + hand_note(m),
              table(text_rows(result), header=TEXT_HEADER, left=(0, 3, 10))]
     notes = [(r.pitch.name, n) for r in result.rows for n in row_notes(r, verbose=False)]
     if notes:

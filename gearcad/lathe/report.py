@@ -17,7 +17,7 @@ from .frame import Setup
 from .table import Candidate, ThreadRow, ThreadTable, error_um
 
 __all__ = ["table_json", "row_json", "text_rows", "TEXT_HEADER", "markdown_table", "csv_table", "row_notes",
-           "CAUTION", "intermediate_text"]
+           "CAUTION", "intermediate_text", "hand_note"]
 
 CAUTION = ("Caution: stop the spindle and isolate the lathe before changing gears; refit the guard before "
            "starting. Check the first pass against the wanted pitch before cutting a part. The fit on the frame "
@@ -25,6 +25,15 @@ CAUTION = ("Caution: stop the spindle and isolate the lathe before changing gear
 
 TEXT_HEADER = ("Thread", "Pitch mm", "Stud", "Intermediate", "Leadscrew", "Error", "um/25mm", "Slot mm", "Angle",
                "Fits", "Alternative")
+
+
+def hand_note(machine) -> str:
+    """How the hand of the thread is set (every train of the table has two meshes)."""
+    if machine.tumbler_reverse:
+        return ("Every train turns the leadscrew the same way (two meshes): set right or left hand with the "
+                "tumbler reverse.")
+    return ("Every train turns the leadscrew the same way (two meshes); without a tumbler reverse the other "
+            "hand needs a second idler.")
 
 
 def intermediate_text(setup: Setup) -> str:
@@ -80,7 +89,7 @@ def table_json(table: ThreadTable, not_cut: Sequence = ()) -> dict[str, Any]:
             "swing": [math.degrees(a) for a in m.swing],
             "spindle_to_stud": [list(g) for g in m.fixed_gears],
             "fixed_ratio": f"{m.fixed_ratio.numerator}/{m.fixed_ratio.denominator}",
-            "tumbler_reverse": m.tumbler_reverse, "shelf": m.shelf.describe(), "largest_gear": m.largest_gear,
+            "tumbler_reverse": m.tumbler_reverse, "hand": hand_note(m), "shelf": m.shelf.describe(), "largest_gear": m.largest_gear,
         },
         "tolerance": table.tolerance,
         "convention": ("ratio = leadscrew turns per stud turn = stud/driven x driver/leadscrew; "
@@ -152,7 +161,8 @@ def markdown_table(table: ThreadTable) -> str:
     lines = [f"## Thread table: {m.title}", "",
              f"Leadscrew {m.leadscrew.name}; change gears module {m.module:g} mm; tolerance {table.tolerance:g}. "
              "Intermediate: driven / driver of the pair on the intermediate stud, or the idler. "
-             "Slot: intermediate stud from the leadscrew, mm; angle of the frame from the line leadscrew-to-stud.", "",
+             "Slot: intermediate stud from the leadscrew, mm; angle of the frame from the line leadscrew-to-stud. "
+             + hand_note(m), "",
              "| " + " | ".join(TEXT_HEADER) + " | Notes |",
              "|" + "|".join("---" if i in (0, 3, 10) else "---:" for i in range(len(TEXT_HEADER))) + "|---|"]
     for cells, row in zip(text_rows(table), table.rows):

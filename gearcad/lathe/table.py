@@ -248,6 +248,8 @@ def one_gear_short(ratio: Fraction, shelf: Counter, frame: Frame, largest: int, 
     """
     teeth = sorted(z for z in shelf if shelf[z] > 0)
     found: list[Candidate] = []
+    if max(ratio.numerator, ratio.denominator) > largest ** 2:  # no two gears make such a ratio
+        return None
 
     def consider(setup: Setup) -> None:
         gears = Counter(setup.gears)
@@ -293,7 +295,8 @@ def reachable_pitches(machine: Machine) -> tuple[float, float]:
 
 def _out_of_reach(pitch: Pitch, machine: Machine) -> str:
     low, high = reachable_pitches(machine)
-    return (f"thread {pitch.name} ({pitch.mm:.4g} mm) is out of reach of the shelf of {machine.name}: no train "
+    shown = pitch.name if pitch.kind == "mm" else f"{pitch.name} ({pitch.mm:.4g} mm)"
+    return (f"thread {shown} is out of reach of the shelf of {machine.name}: no train "
             f"comes within {APPROACH_LIMIT:.0%}; allowed: pitches from about {low:.3g} to {high:.3g} mm")
 
 

@@ -35,6 +35,8 @@ INCH = Fraction(127, 5)
 PITCH_RANGE = (Fraction(1, 50), Fraction(100))
 #: Most threads in one table.
 MAX_THREADS = 200
+#: Most characters of one pitch's number.
+MAX_DIGITS = 24
 #: Longest thread list text, characters.
 MAX_LIST_TEXT = 4000
 
@@ -197,7 +199,8 @@ def _number(text: str, item: str) -> Fraction:
 
 
 def _shown(value: Fraction, text: str) -> str:
-    return text if "/" in text else f"{float(value):g}"
+    short = f"{float(value):g}"
+    return short if "/" not in text and Fraction(short) == value else text
 
 
 def parse_pitch(text: str) -> Pitch:
@@ -221,6 +224,9 @@ def parse_pitch(text: str) -> Pitch:
     match = _PITCH.match(low)
     if not match or match.group(2) not in _UNIT_ALIASES:
         raise InputError(f"thread {item!r} has an unknown unit or form; allowed: {ALLOWED}")
+    if len(match.group(1)) > MAX_DIGITS:
+        raise InputError(f"thread {item[:30]!r}... has {len(match.group(1))} characters in its number; allowed: "
+                         f"at most {MAX_DIGITS}")
     value = _number(match.group(1), item)
     unit = _UNIT_ALIASES[match.group(2)]
     shown = _shown(value, match.group(1))
