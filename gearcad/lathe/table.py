@@ -300,6 +300,17 @@ def _out_of_reach(pitch: Pitch, machine: Machine) -> str:
             f"comes within {APPROACH_LIMIT:.0%}; allowed: pitches from about {low:.3g} to {high:.3g} mm")
 
 
+def _frame(machine: Machine, tolerance: float, addendum: float | None = None) -> Frame:
+    """The machine's frame, after checking the tolerance (addendum: the tooth system's unless given)."""
+    if not 0 < tolerance < APPROACH_LIMIT:
+        raise InputError(f"tolerance must be greater than 0 and less than {APPROACH_LIMIT}, got {tolerance!r}")
+    if addendum is None:
+        from ..profiles import load_tooth_system
+
+        addendum = load_tooth_system(machine.tooth_system).addendum
+    return Frame.of_machine(machine, addendum)
+
+
 def thread_table(machine: Machine, pitches: Sequence[Pitch], tolerance: float = DEFAULT_TOLERANCE,
                  addendum: float | None = None) -> ThreadTable:
     """The table of ``pitches`` for ``machine`` (one :class:`ThreadRow` each, in order).
@@ -314,13 +325,7 @@ def thread_table(machine: Machine, pitches: Sequence[Pitch], tolerance: float = 
         Addendum of the tooth system in modules (default: the machine's tooth
         system's).
     """
-    if not 0 < tolerance < APPROACH_LIMIT:
-        raise InputError(f"tolerance must be greater than 0 and less than {APPROACH_LIMIT}, got {tolerance!r}")
-    if addendum is None:
-        from ..profiles import load_tooth_system
-
-        addendum = load_tooth_system(machine.tooth_system).addendum
-    frame = Frame.of_machine(machine, addendum)
+    frame = _frame(machine, tolerance, addendum)
     return ThreadTable(machine, tuple(thread_row(p, machine, frame, tolerance) for p in pitches), tolerance)
 
 
@@ -329,16 +334,18 @@ def can_cut(machine: Machine, pitches: Sequence[Pitch], tolerance: float = DEFAU
 
     A pitch out of reach altogether counts as not cut (no error is raised).
     """
-    from ..profiles import load_tooth_system
-
-    frame = Frame.of_machine(machine, load_tooth_system(machine.tooth_system).addendum)
-    rows, missed = [], []
+    frame = _frame(machine, tolerance)
+    rows: list[ThreadRow] = []
+    missed: list[Pitch] = []
     for pitch in pitches:
         try:
             row = thread_row(pitch, machine, frame, tolerance)
-        except InputError:
+        except InputError:  # out of reach altogether
             missed.append(pitch)
             continue
-        (rows if row.within_tolerance else missed).append(row if row.within_tolerance else pitch)
+        if row.within_tolerance:
+            rows.append(row)
+        else:
+            missed.append(pitch)
     return ThreadTable(machine, tuple(rows), tolerance), tuple(missed)
 
