@@ -298,3 +298,36 @@ def test_the_reported_place_reproduces_both_centre_distances(stud, driven, drive
         assert math.dist(point, (distance, 0.0)) == pytest.approx(a1, rel=1e-6, abs=1e-6)
     else:
         assert not fit.fits and fit.margin < 0
+
+
+def test_diametral_pitch_gears_and_inch_lengths():
+    # 20 DP is a module of 25.4/20 = 1.27 mm; 4.75 inch is 120.65 mm (the inch being 25.4 mm).
+    text = _edited('[module]\nvalue = 1.5\nunit = "mm"', '[diametral_pitch]\nvalue = 20\nunit = "per inch"')
+    text = text.replace('[stud_to_leadscrew]\nvalue = 120.0\nunit = "mm"', '[stud_to_leadscrew]\nvalue = 4.75\nunit = "inch"')
+    machine = parse_machine(text, "dp", "dp.toml")
+    assert machine.module == pytest.approx(1.27) and machine.diametral_pitch == 20
+    assert machine.stud_to_leadscrew == pytest.approx(120.65)
+    with pytest.raises(ProfileError, match="exactly one"):
+        parse_machine(text.replace("[diametral_pitch]", "[module]\nvalue = 1.5\nunit = \"mm\"\nsource = \"x\"\n"
+                                   "[diametral_pitch]"), "both", "both.toml")
+
+
+def test_fixed_gearing_to_the_stud_enters_the_ratio():
+    # Stud at half the spindle's speed (20 driving 40): the change gears must turn twice as fast,
+    # R = p / (P_ls f) with f = 1/2 (the lead-screw rule).
+    machine = parse_machine(_edited("gears = [[40, 40]]", "gears = [[20, 40]]"), "half", "half.toml")
+    assert machine.fixed_ratio == Fraction(1, 2)
+    row = thread_table(machine, [parse_pitch("1")]).rows[0]
+    assert row.best.setup.ratio == Fraction(1) / (Fraction(127, 40) * Fraction(1, 2))
+
+
+@pytest.mark.parametrize("high, fits", [(None, True), (0.0, False)])
+def test_the_frame_swing_limits_the_angle(high, fits):
+    # COMPOUND stands at acos(0.925) = 22.33 degrees (law of cosines, worked by hand above);
+    # the slack of the swing is the arc at the intermediate stud, 60 mm x the angle left.
+    angle = math.acos((60 ** 2 + 100 ** 2 - 50 ** 2) / (2 * 60 * 100))
+    top = angle + math.radians(0.1) if high is None else angle - math.radians(0.1)
+    fit = place(COMPOUND, Frame(**{**FRAME.__dict__, "swing": (0.0, top)}))
+    assert fit.fits is fits and fit.angle == pytest.approx(angle)
+    assert fit.margin == pytest.approx((1 if fits else -1) * 60 * math.radians(0.1))
+    assert fits or "beyond its swing" in fit.problem
