@@ -331,3 +331,13 @@ def test_the_frame_swing_limits_the_angle(high, fits):
     assert fit.fits is fits and fit.angle == pytest.approx(angle)
     assert fit.margin == pytest.approx((1 if fits else -1) * 60 * math.radians(0.1))
     assert fits or "beyond its swing" in fit.problem
+
+
+def test_when_nothing_fits_the_nearest_miss_is_shown():
+    # Stud and leadscrew 1000 mm apart: no pair of the shelf's gears reaches (the largest centre
+    # distances are 1.5 (127 + 80) / 2 mm and so on, far below 1000 mm).
+    far = parse_machine(_edited("value = 120.0", "value = 1000.0").replace("farthest = 145.0", "farthest = 1000.0"),
+                        "far", "far.toml")
+    row = thread_table(far, [parse_pitch("1.5")]).rows[0]
+    assert not row.best.fit.fits and not row.within_tolerance and row.best.fit.angle is None
+    assert "do not reach" in row.best.fit.problem and row.better_unfit is None

@@ -25,7 +25,7 @@ HEADER_TOP = 43.0
 ROWS_PER_PAGE = int((A4[1] - HEADER_TOP - 2 * ROW_HEIGHT - 26.0) // ROW_HEIGHT)
 #: Columns: (title, x of the anchor in mm, anchor "start" / "middle" / "end", most characters).
 COLUMNS = (("Thread", MARGIN, "start", 30), ("Pitch mm", 72.0, "end", 9), ("Stud", 83.0, "end", 4),
-           ("Intermediate", 99.0, "middle", 11), ("Leadscrew", 129.0, "end", 4), ("um/25mm", 146.0, "end", 7),
+           ("Intermediate", 99.0, "middle", 11), ("Leadscrew", 129.0, "end", 4), ("µm/25mm", 146.0, "end", 7),
            ("Slot mm", 160.0, "end", 6), ("Angle", 171.0, "end", 6), ("Note", 174.0, "start", 18))
 
 
@@ -91,7 +91,7 @@ def _header(table: ThreadTable, page: int, pages: int) -> list[SheetText | Sheet
     m = table.machine
     width = A4[0]
     items: list[SheetText | SheetLine] = [
-        SheetText(MARGIN, 16.0, _clip(f"Change gears: {m.title}", 62), 4.2, bold=True),
+        SheetText(MARGIN, 16.0, _clip(f"Change gears: {m.title}", 92), 3.4, bold=True),
         SheetText(MARGIN, 25.0, _clip(f"Leadscrew {m.leadscrew.name}; spindle to stud "
                                       f"{m.fixed_ratio.numerator}:{m.fixed_ratio.denominator}; change gears module "
                                       f"{m.module:g} mm; stud to leadscrew {m.stud_to_leadscrew:g} mm; slot "
@@ -99,7 +99,7 @@ def _header(table: ThreadTable, page: int, pages: int) -> list[SheetText | Sheet
         SheetText(MARGIN, 30.0, "Train: stud gear > intermediate stud (driven / driver of the pair, or idler) > "
                                 "leadscrew gear.", 2.4),
         SheetText(MARGIN, 33.5, "Slot: intermediate stud from the leadscrew, mm. Angle: frame from the line "
-                                "leadscrew-to-stud, degrees. Error: um over 25 mm of thread.", 2.4),
+                                "leadscrew-to-stud, degrees. Error: µm over 25 mm of thread.", 2.4),
         SheetText(width - MARGIN, 37.5, f"page {page} of {pages}", 2.4, "end"),
     ]
     y = HEADER_TOP
