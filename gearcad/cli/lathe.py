@@ -170,6 +170,7 @@ def _text(result, not_cut) -> str:
              f"  leadscrew {m.leadscrew.name}, spindle to stud {m.fixed_ratio.numerator}:{m.fixed_ratio.denominator}, "
              f"change gears module {m.module:g} mm, stud to leadscrew {m.stud_to_leadscrew:g} mm, "
              f"slot {m.slot[0]:g} to {m.slot[1]:g} mm; tolerance {result.tolerance:g}",
+             f"  shelf: {m.shelf.describe()}",
              "  Intermediate: driven / driver of the pair on the intermediate stud, or the idler. Slot: intermediate "
              "stud from the leadscrew, mm. Angle: frame from the line leadscrew-to-stud, degrees.",
              "  " + hand_note(m),
