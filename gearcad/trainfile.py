@@ -37,8 +37,8 @@ TOP_KEYS = {"name", "title", "target", "module", "thickness", "tooth_system", "p
             "bore", "coaxial", "stage", "solve", "planetary", "summing"}
 PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit"}
 SUMMING_KEYS = {"differential", "sun", "planet", "planets", "ring", "module", "tube", "axis_distance", "shift_limit"}
-STAGE_KEYS = {"driver", "driven", "module", "idler"}
-GEAR_KEYS = {"teeth", "shift", "bore", "flat", "keyway", "hub"}
+STAGE_KEYS = {"driver", "driven", "module", "idler", "helix", "hand", "herringbone", "gap"}
+GEAR_KEYS = {"teeth", "shift", "bore", "flat", "keyway", "hub", "hand"}
 SOLVE_KEYS = {"ratio", "stages", "min_teeth", "max_teeth", "max_stage_ratio", "direction", "hunting", "coaxial", "exclude"}
 
 
@@ -125,7 +125,8 @@ def _gear(value: Any, key: str, ctx: _Context, index: int) -> GearSpec:
     try:
         return GearSpec(teeth=value["teeth"], shift=_number(value, "shift", ctx, "stage", index, key + ".", default=0.0),
                         bore=_number(value, "bore", ctx, "stage", index, key + "."),
-                        flat=_number(value, "flat", ctx, "stage", index, key + "."), keyway=keyway, hub=hub)
+                        flat=_number(value, "flat", ctx, "stage", index, key + "."), keyway=keyway, hub=hub,
+                        hand=value.get("hand"))
     except InputError as exc:
         raise ctx.error(str(exc), key, "stage", index) from None
 
@@ -141,8 +142,22 @@ def _stages(data: dict, ctx: _Context) -> tuple[StageSpec, ...]:
             if key not in s:
                 raise ctx.error("missing (a tooth count or a gear table)", key, "stage", i)
         idler = _gear(s["idler"], "idler", ctx, i) if "idler" in s else None
-        stages.append(StageSpec(_gear(s["driver"], "driver", ctx, i), _gear(s["driven"], "driven", ctx, i),
-                                _number(s, "module", ctx, "stage", i), idler))
+        helical = {}
+        if "helix" in s:
+            helical["helix"] = _number(s, "helix", ctx, "stage", i)
+        if "gap" in s:
+            helical["gap"] = _number(s, "gap", ctx, "stage", i)
+        for key, kind in (("hand", str), ("herringbone", bool)):
+            if key in s:
+                if not isinstance(s[key], kind):
+                    raise ctx.error("must be \"left\" or \"right\"" if kind is str else "must be true or false", key, "stage", i)
+                helical[key] = s[key]
+        driver, driven = _gear(s["driver"], "driver", ctx, i), _gear(s["driven"], "driven", ctx, i)
+        try:
+            stages.append(StageSpec(driver, driven, _number(s, "module", ctx, "stage", i), idler, **helical))
+        except InputError as exc:
+            key = next((k for k in ("helix", "hand", "herringbone", "gap") if k in str(exc).split(" must")[0]), "helix")
+            raise ctx.error(str(exc), key, "stage", i) from None
     return tuple(stages)
 
 
@@ -266,6 +281,8 @@ def _gear_toml(g: GearSpec) -> str:
         parts.append(f"keyway = {{ width = {g.keyway.width!r}, depth = {g.keyway.depth!r} }}")
     if g.hub is not None:
         parts.append(f"hub = {{ diameter = {g.hub.diameter!r}, length = {g.hub.length!r} }}")
+    if g.hand is not None:
+        parts.append(f"hand = {_quoted(g.hand)}")
     return str(g.teeth) if len(parts) == 1 else "{ " + ", ".join(parts) + " }"
 
 
@@ -310,4 +327,10 @@ def train_to_toml(spec: TrainSpec) -> str:
             lines.append(f"module = {stage.module!r}")
         if stage.idler is not None:
             lines.append(f"idler = {_gear_toml(stage.idler)}")
+        if stage.helix:
+            lines += [f"helix = {stage.helix!r}", f"hand = {_quoted(stage.hand)}"]
+        if stage.herringbone:
+            lines.append("herringbone = true")
+        if stage.gap:
+            lines.append(f"gap = {stage.gap!r}")
     return "\n".join(lines) + "\n"

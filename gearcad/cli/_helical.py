@@ -62,7 +62,7 @@ def face_width(args: argparse.Namespace, normal_module: float) -> float:
 def run_helical(args: argparse.Namespace, system, z1: int, z2: int, show) -> int:
     """Build, check and show a helical pair; ``show`` is ``pair._show``."""
     from ..checks import analyse_pair
-    from ..meshes.helical import hand_findings, helical_mesh, make_helical_pair, overlap_finding
+    from ..meshes.helical import hand_findings, helical_mesh, in_normal_terms, make_helical_pair, overlap_finding
 
     helix, hand = _check_options(args, z2)
     if args.cutter_teeth is not None or args.cutter_shift:
@@ -79,25 +79,10 @@ def run_helical(args: argparse.Namespace, system, z1: int, z2: int, show) -> int
     helix_width = (width - args.gap) / 2 if args.herringbone else width
     mesh = helical_mesh(pair, analysis.contact_ratio, analysis.backlash, helix_width)
     extra = [*hand_findings(pair.gear1.hand, pair.gear2.hand), overlap_finding(mesh)]
-    findings = tuple(_in_normal_terms(f, analysis, pair.module / args.module) for f in analysis.findings)
-    analysis = dataclasses.replace(analysis, findings=(*findings, *extra))
+    analysis = in_normal_terms(analysis)
+    analysis = dataclasses.replace(analysis, findings=(*analysis.findings, *extra))
     info = {"mesh": mesh, "herringbone": args.herringbone, "gap": args.gap, "face_width": width}
     return show(args, pair, analysis, lambda a: helical_to_dict(a, info), lambda a, r=None: render_helical(a, info, r))
-
-
-def _in_normal_terms(finding, analysis, scale: float):
-    """The spur undercut finding restated with normal shifts (the transverse ones times ``scale`` = 1/cos beta)."""
-    if not finding.check.startswith("undercut"):
-        return finding
-    label = finding.check[len("undercut "):]
-    fig = analysis.gears[0 if label == "gear 1" else 1]
-    x, x_min = fig.gear.normal_shift, fig.min_shift * scale
-    if fig.undercut:
-        text = (f"{label} ({fig.gear.teeth} teeth) is undercut: the cutter removes the foot of the involute; "
-                f"a normal profile shift of at least {x_min:+.3f} avoids it")
-    else:
-        text = f"{label} ({fig.gear.teeth} teeth) is not undercut (least normal shift without undercut {x_min:+.3f})"
-    return dataclasses.replace(finding, value=x, limit=x_min, message=text)
 
 
 def _spur_dict(a) -> dict:

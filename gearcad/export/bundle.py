@@ -136,6 +136,17 @@ def _layers(options: BuildOptions) -> dict[str, tuple[str, int]] | None:
     return {role: (name, colour) for role, name, colour in options.dxf_layers} or None
 
 
+def _gear_build(plan, g, thickness: float):
+    """A gear's solid: straight, or swept along its helix (the drawn part is the section at mid-face)."""
+    from .step import build_solid, helical_solid
+
+    if not hasattr(g.gear, "hand"):
+        return build_solid(g.part, thickness, plan.tolerance)
+    stage = plan.spec.stages[g.stage - 1]
+    return helical_solid(g.part, thickness, g.gear.twist(thickness), plan.tolerance, herringbone=stage.herringbone,
+                         gap=stage.gap, gap_diameter=g.gear.root_diameter)
+
+
 def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
     from .step import AssemblyItem, build_solid, kernel_quiet, with_hub, write_step, write_stl
 
@@ -144,7 +155,7 @@ def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
     with kernel_quiet():
         for g in plan.gears:
             note(f"solid {g.name}")
-            built = build_solid(g.part, thickness, plan.tolerance)
+            built = _gear_build(plan, g, thickness)
             if g.hub is not None:
                 built = with_hub(built, g.hub, thickness, g.hub_length, plan.tolerance)
             solid = built.solid

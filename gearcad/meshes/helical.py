@@ -70,6 +70,7 @@ __all__ = [
     "helical_mesh",
     "hand_findings",
     "overlap_finding",
+    "in_normal_terms",
 ]
 
 HANDS = ("right", "left")
@@ -472,3 +473,29 @@ def overlap_finding(mesh: HelicalMesh) -> "object":
                        "widen the face or raise the helix angle")
     return Finding("overlap ratio", "ok", e, MIN_OVERLAP_RATIO,
                    f"overlap ratio {e:.3f}, total contact ratio {mesh.total_contact_ratio:.3f}")
+
+
+def in_normal_terms(analysis):
+    """A spur analysis of a helical pair's transverse section with its undercut findings restated in normal shifts.
+
+    The spur checks speak of transverse shifts ``x_t``; a helical gear is specified by
+    ``x_n = x_t / cos(beta)``.  Every other finding holds in the transverse section as it stands.
+    """
+    import dataclasses
+
+    def restate(finding):
+        if not finding.check.startswith("undercut"):
+            return finding
+        label = finding.check[len("undercut "):]
+        fig = analysis.gears[0 if label in ("gear 1", "pinion") else 1]
+        gear = fig.gear
+        scale = 1.0 / math.cos(gear.helix_angle)
+        x_min = fig.min_shift * scale
+        if fig.undercut:
+            text = (f"{label} ({gear.teeth} teeth) is undercut: the cutter removes the foot of the involute; "
+                    f"a normal profile shift of at least {x_min:+.3f} avoids it")
+        else:
+            text = f"{label} ({gear.teeth} teeth) is not undercut (least normal shift without undercut {x_min:+.3f})"
+        return dataclasses.replace(finding, value=gear.normal_shift, limit=x_min, message=text)
+
+    return dataclasses.replace(analysis, findings=tuple(restate(f) for f in analysis.findings))

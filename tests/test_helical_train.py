@@ -1,0 +1,117 @@
+"""Helical stages in train files: parsing, hands, the plan (phased at mid-face), the report, bad input."""
+
+import json
+import math
+from pathlib import Path
+
+import pytest
+import shapely
+
+from gearcad.cli import main
+from gearcad.errors import InputError
+from gearcad.meshes.helical import HelicalGear
+from gearcad.plan import placed_outline, plan_train
+from gearcad.trainfile import parse_train, train_to_toml
+
+HEAD = 'name = "hx"\nmodule = 1.0\nthickness = 6.0\nbore = 3.0\n'
+TWO_STAGES = HEAD + '''
+[[stage]]
+driver = { teeth = 15, shift = 0.2 }
+driven = 40
+helix = 20
+hand = "right"
+
+[[stage]]
+driver = 14
+idler = 17
+driven = { teeth = 30, hand = "left" }
+helix = 25
+hand = "left"
+herringbone = true
+gap = 1.0
+'''
+
+
+def test_parse_and_round_trip():
+    spec = parse_train(TWO_STAGES)
+    s1, s2 = spec.stages
+    assert (s1.helix, s1.hand, s1.herringbone) == (20.0, "right", False)
+    assert (s2.helix, s2.hand, s2.herringbone, s2.gap) == (25.0, "left", True, 1.0)
+    assert parse_train(train_to_toml(spec)) == spec
+
+
+def test_plan_alternates_the_hands_and_phases_at_mid_face():
+    plan = plan_train(parse_train(TWO_STAGES))
+    hands = {g.name: g.gear.hand for g in plan.gears}
+    assert all(isinstance(g.gear, HelicalGear) for g in plan.gears)
+    assert hands == {"s1-driver": "right", "s1-driven": "left", "s2-driver": "left", "s2-idler": "right",
+                     "s2-driven": "left"}
+    for m in plan.meshes:
+        assert {f.check: f.severity for f in m.findings}["hands"] == "ok"
+        # the drawn outlines (the transverse section at mid-face) of meshing gears, placed and turned as in the
+        # assembly, touch without overlapping (shapely as reference): the mesh is phased at mid-face
+        a, b = (shapely.Polygon(placed_outline(plan.gear(n), plan)) for n in m.names)
+        assert a.intersection(b).area < 1e-6
+        assert a.distance(b) < 0.3 + 1e-6  # no further apart than the backlash allows
+
+
+def test_zero_helix_stage_is_the_spur_stage():
+    spur = plan_train(parse_train(HEAD + "[[stage]]\ndriver = 15\ndriven = 40\n"))
+    zero = plan_train(parse_train(HEAD + "[[stage]]\ndriver = 15\ndriven = 40\nhelix = 0\n"))
+    assert [g.gear for g in spur.gears] == [g.gear for g in zero.gears]
+    assert [g.part.outer.points().tolist() for g in spur.gears] == [g.part.outer.points().tolist() for g in zero.gears]
+
+
+@pytest.mark.parametrize("stage, words", [
+    ('driver = 15\ndriven = 40\nhelix = 45\n', "below 45 degrees"),
+    ('driver = { teeth = 15, hand = "right" }\ndriven = { teeth = 40, hand = "right" }\nhelix = 20\n', "cannot mesh"),
+    ('driver = 15\ndriven = 40\nhelix = 20\nhand = "up"\n', "left or right"),
+    ('driver = { teeth = 15, hand = "left" }\ndriven = 40\n', "needs a helical stage"),
+    ('driver = 15\ndriven = 40\nhelix = 20\nherringbone = true\ngap = 6\n', "narrower than the face width"),
+    ('driver = 15\ndriven = 40\nherringbone = true\n', "above 0 degrees"),
+])
+def test_bad_helical_stages(stage, words):
+    with pytest.raises(InputError, match=words):
+        parse_train(HEAD + "[[stage]]\n" + stage)
+
+
+def test_helix_on_a_planetary_train_is_refused():
+    text = HEAD + "[planetary]\nsun = 18\nplanet = 18\nring = 54\n[[stage]]\ndriver = 15\ndriven = 40\nhelix = 20\n"
+    with pytest.raises(InputError, match="compound trains"):
+        parse_train(text)
+
+
+def test_build_bad_hands_exit_2_nothing_written(tmp_path, capsys):
+    path = tmp_path / "bad.toml"
+    path.write_text(HEAD + '[[stage]]\ndriver = { teeth = 15, hand = "left" }\ndriven = 40\nhelix = 20\n')
+    out = tmp_path / "out"
+    assert main(["build", str(path), "--out", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert len(err.strip().splitlines()) == 1 and "cannot mesh" in err
+    assert not out.exists()
+
+
+def test_build_report_carries_the_helical_keys(tmp_path, capsys):
+    path = tmp_path / "hx.toml"
+    path.write_text(TWO_STAGES)
+    out = tmp_path / "out"
+    code = main(["build", str(path), "--out", str(out), "--formats", "dxf,svg", "--torque", "0.05", "--speed", "60"])
+    assert code in (0, 1)
+    data = json.loads((out / "report.json").read_text())
+    g = data["gears"][0]
+    assert g["helix_angle"] == pytest.approx(20.0) and g["hand"] == "right" and g["module"] == pytest.approx(1.0)
+    assert g["lead"] == pytest.approx(math.pi * 15 / math.cos(math.radians(20)) / math.tan(math.radians(20)))
+    m1, m2 = data["meshes"][:2]
+    assert m1["axial_force"] > 0 and m1["overlap_ratio"] == pytest.approx(6 * math.sin(math.radians(20)) / math.pi)
+    assert "Helical gears" in (out / "report.md").read_text()
+    assert "transverse section" in (out / "s1-driver.svg").read_text() or "transverse section" in (out / "s1-driver.dxf").read_text()
+
+
+@pytest.mark.slow
+def test_build_writes_helical_solids(tmp_path, capsys):
+    # A herringbone stage built into STEP: bundle sweeps each gear (helical_solid checks BRepCheck and volume).
+    path = tmp_path / "hb.toml"
+    path.write_text(HEAD + '[[stage]]\ndriver = 12\ndriven = 18\nhelix = 30\nherringbone = true\n')
+    out = tmp_path / "out"
+    assert main(["build", str(path), "--out", str(out), "--formats", "step", "--no-assembly"]) in (0, 1)
+    assert (out / "s1-driver.step").stat().st_size > 10_000
