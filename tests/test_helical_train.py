@@ -115,3 +115,29 @@ def test_build_writes_helical_solids(tmp_path, capsys):
     out = tmp_path / "out"
     assert main(["build", str(path), "--out", str(out), "--formats", "step", "--no-assembly"]) in (0, 1)
     assert (out / "s1-driver.step").stat().st_size > 10_000
+
+
+def test_design_helix_writes_helical_stages_free_of_undercut(tmp_path, capsys):
+    out = tmp_path / "d"
+    code = main(["design", "0.1", "-m", "1", "--helix", "20", "--thickness", "10", "--out", str(out), "--formats", "dxf"])
+    assert code in (0, 1)
+    spec = parse_train((out / "train.toml").read_text())
+    assert all(s.helix == 20.0 for s in spec.stages)
+    # the countershaft's two gears share a hand, so their axial forces oppose (common practice)
+    assert spec.stages[1].hand == "left"
+    data = json.loads((out / "report.json").read_text())
+    for m in data["meshes"]:
+        checks = {f["check"]: f["severity"] for f in m["findings"]}
+        assert checks["undercut gear 1"] == "ok" and checks["undercut gear 2"] == "ok"
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["--helix", "50"], "below 45"),
+    (["--herringbone"], "needs a helix angle"),
+    (["--helix", "20", "--kind", "planetary"], "compound trains only"),
+])
+def test_design_bad_helix(tmp_path, capsys, argv, words):
+    out = tmp_path / "d"
+    assert main(["design", "0.1", "-m", "1", "--out", str(out), *argv]) == 2
+    err = capsys.readouterr().err
+    assert len(err.strip().splitlines()) == 1 and words in err and not out.exists()
