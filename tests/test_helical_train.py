@@ -141,3 +141,44 @@ def test_design_bad_helix(tmp_path, capsys, argv, words):
     assert main(["design", "0.1", "-m", "1", "--out", str(out), *argv]) == 2
     err = capsys.readouterr().err
     assert len(err.strip().splitlines()) == 1 and words in err and not out.exists()
+
+
+# -- laminations ---------------------------------------------------------------------------------------------
+
+def test_lamination_turns_share_the_twist():
+    from gearcad.meshes.helical import lamination_turns
+
+    twist = 0.3
+    turns = lamination_turns(6, 6.0, twist)
+    # each lamination is the section at its middle height: steps of twist / N, symmetric about mid-face
+    assert all(b - a == pytest.approx(twist / 6, rel=1e-12) for a, b in zip(turns, turns[1:]))
+    assert sum(turns) == pytest.approx(0.0, abs=1e-15)
+    herring = lamination_turns(6, 6.0, twist, herringbone=True)
+    assert herring == pytest.approx(herring[::-1], abs=1e-15) and max(herring) <= 0
+
+
+def test_lamination_parts_turn_only_the_teeth():
+    import numpy as np
+
+    from gearcad.meshes.helical import lamination_parts
+
+    plan = plan_train(parse_train(TWO_STAGES))
+    g = plan.gear("s1-driver")
+    laminations = lamination_parts(g.part, 3, 6.0, g.gear.twist(6.0))
+    turn = g.gear.twist(6.0) / 3
+    for lam, k in zip(laminations, (-1, 0, 1)):
+        assert lam.circles == g.part.circles and lam.holes == g.part.holes
+        c, s = math.cos(k * turn), math.sin(k * turn)
+        expected = g.part.outer.points() @ np.array([[c, -s], [s, c]]).T
+        assert np.allclose(lam.outer.points(), expected, atol=1e-12)
+    assert [lam.name for lam in laminations] == ["s1-driver-lam1", "s1-driver-lam2", "s1-driver-lam3"]
+
+
+def test_build_writes_laminations(tmp_path, capsys):
+    path = tmp_path / "hx.toml"
+    path.write_text(HEAD + '[[stage]]\ndriver = 15\ndriven = 40\nhelix = 20\n')
+    out = tmp_path / "out"
+    assert main(["build", str(path), "--out", str(out), "--formats", "dxf", "--laminations", "3"]) in (0, 1)
+    assert sorted(p.name for p in out.glob("s1-driver-lam*.dxf")) == [f"s1-driver-lam{k}.dxf" for k in (1, 2, 3)]
+    assert main(["build", str(path), "--out", str(tmp_path / "bad"), "--laminations", "1"]) == 2
+    assert not (tmp_path / "bad").exists()

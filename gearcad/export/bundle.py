@@ -37,6 +37,7 @@ class BuildOptions:
     preview: bool = True
     extra_files: tuple[tuple[str, str], ...] = field(default=())  # (name, text) written as they are
     dxf_layers: tuple[tuple[str, str, int], ...] = ()  # (role, layer name, colour) remappings
+    laminations: int = 0  # helical gears: also write this many turned laminations per gear (DXF, SVG)
 
 
 def prepare_folder(folder: Path, force: bool) -> list[str]:
@@ -102,6 +103,17 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
             if options.dxf_mode == "splines":  # SVG takes arcs, not spline fit points
                 drawing = part_drawing(g.cut_part, "arcs", options.dxf_tolerance, at, height)
             write_svg(drawing, put(g.name, "svg", f"{g.name}.svg"))
+        if options.laminations and hasattr(g.gear, "hand"):
+            for lam in _laminations(plan, g, options.laminations):
+                if "dxf" in options.formats:
+                    note(f"DXF {lam.name}")
+                    drawing = part_drawing(lam, options.dxf_mode, options.dxf_tolerance, at, height)
+                    warnings += write_dxf(drawing, put(lam.name, "dxf", f"{lam.name}.dxf"), version=options.dxf_version,
+                                          layers=_layers(options))
+                if "svg" in options.formats:  # SVG takes arcs, not spline fit points
+                    mode = "arcs" if options.dxf_mode == "splines" else options.dxf_mode
+                    write_svg(part_drawing(lam, mode, options.dxf_tolerance, at, height),
+                              put(lam.name, "svg", f"{lam.name}.svg"))
     margin = plan.fabrication.plate_margin
     for p in plan.plates:
         drawing = part_drawing(p.cut_part, options.dxf_mode, options.dxf_tolerance, (plan.layout.width / 2, margin / 2),
@@ -134,6 +146,15 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
 
 def _layers(options: BuildOptions) -> dict[str, tuple[str, int]] | None:
     return {role: (name, colour) for role, name, colour in options.dxf_layers} or None
+
+
+def _laminations(plan, g, count: int):
+    """The cut laminations of helical gear ``g`` (see gearcad.meshes.helical.lamination_parts)."""
+    from ..meshes.helical import lamination_parts
+
+    stage = plan.spec.stages[g.stage - 1]
+    thickness = plan.spec.thickness
+    return lamination_parts(g.cut_part, count, thickness, g.gear.twist(thickness), stage.herringbone, stage.gap)
 
 
 def _gear_build(plan, g, thickness: float):
