@@ -182,3 +182,16 @@ def test_build_writes_laminations(tmp_path, capsys):
     assert sorted(p.name for p in out.glob("s1-driver-lam*.dxf")) == [f"s1-driver-lam{k}.dxf" for k in (1, 2, 3)]
     assert main(["build", str(path), "--out", str(tmp_path / "bad"), "--laminations", "1"]) == 2
     assert not (tmp_path / "bad").exists()
+
+
+def test_zero_helix_files_are_todays_files(tmp_path, capsys):
+    # beta = 0 gives exactly the spur files: every DXF, SVG and the report byte for byte
+    spur, zero = tmp_path / "spur.toml", tmp_path / "zero.toml"
+    spur.write_text(HEAD + "[[stage]]\ndriver = 15\ndriven = 40\n")
+    zero.write_text(HEAD + "[[stage]]\ndriver = 15\ndriven = 40\nhelix = 0\n")
+    for path in (spur, zero):
+        assert main(["build", str(path), "--out", str(tmp_path / path.stem), "--formats", "dxf,svg"]) in (0, 1)
+    names = sorted(p.name for p in (tmp_path / "spur").iterdir() if p.suffix in (".dxf", ".svg", ".md", ".json"))
+    assert names and names == sorted(p.name for p in (tmp_path / "zero").iterdir() if p.suffix in (".dxf", ".svg", ".md", ".json"))
+    for name in names:
+        assert (tmp_path / "spur" / name).read_bytes() == (tmp_path / "zero" / name).read_bytes(), name
