@@ -93,11 +93,6 @@ def test_bad_helix_input_is_one_line_exit_2(capsys, argv, words):
     assert len(err.strip().splitlines()) == 1 and words in err
 
 
-def test_helix_on_a_ring_is_refused(capsys):
-    code, out, err = run(capsys, "pair", "16", "-60", "-m", "1", "--helix", "20")
-    assert code == 2 and "external pairs only" in err
-
-
 # -- the rating -------------------------------------------------------------------------------------
 
 def test_helix_factors():
@@ -133,3 +128,35 @@ def test_rating_in_json(capsys):
     code, out, _ = run(capsys, "pair", "18", "40", "-m", "1", "--helix", "25", "--torque", "0.5", "--speed", "200", "--json")
     rating = json.loads(out)["rating"]
     assert rating["axial_force"] > 0 and rating["bending_helix_factor"] < 1
+
+
+# -- internal pairs ---------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("x1, x2", [(0.0, 0.0), (0.3, 0.1), (0.2, -0.3)])
+def test_internal_helical_centre_distance_by_iso_formula(capsys, x1, x2):
+    # ISO 21771 with the ring's tooth count negative: a_w = m_n (z1 + z2) cos(alpha_t) / (2 cos(beta) cos(alpha_wt)),
+    # inv(alpha_wt) = inv(alpha_t) + 2 tan(alpha_n) (x1 + x2) / (z1 + z2); the magnitude is the distance.
+    code, out, _ = run(capsys, "pair", "16", "-60", "-m", "1", "--helix", "20", "--shift", str(x1), str(x2), "--json")
+    d = json.loads(out)
+    expected = -hx.helical_centre_distance(16, -60, 1.0, ISO53A.pressure_angle, math.radians(20), x1 + x2)
+    assert d["centre_distance"] == pytest.approx(expected, rel=1e-12)
+    assert d["internal"] is True and [g["hand"] for g in d["gears"]] == ["right", "right"]
+    found = {f["check"]: f["severity"] for f in d["findings"]}
+    assert found["hands"] == "ok"
+
+
+def test_internal_helix_zero_is_the_spur_internal_pair(capsys):
+    args = ["pair", "16", "-60", "-m", "1", "--shift", "0.3", "0.1", "--backlash", "0.1", "--json"]
+    _, spur, _ = run(capsys, *args)
+    _, zero, _ = run(capsys, *args, "--helix", "0")
+    spur, zero = json.loads(spur), json.loads(zero)
+    assert {k: zero[k] for k in spur} == spur
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["--helix", "20", "--herringbone"], "external pairs only"),
+    (["--helix", "20", "--torque", "1", "--speed", "10"], "not available yet"),
+])
+def test_internal_helical_refusals(capsys, argv, words):
+    code, out, err = run(capsys, "pair", "16", "-60", "-m", "1", *argv)
+    assert code == 2 and out == "" and words in err

@@ -35,8 +35,6 @@ def _check_options(args: argparse.Namespace, z2: int) -> tuple[float, str]:
 
     if args.helix is None:
         raise InputError("--hand, --herringbone and --gap describe a helix: give the helix angle with --helix DEG")
-    if z2 < 0:
-        raise InputError("--helix is available for external pairs only (z2 positive); a helical ring is not built yet")
     helix = check_helix(args.helix, "helix angle (--helix)")
     if args.herringbone and helix == 0:
         raise InputError("--herringbone needs a helix angle above 0 degrees")
@@ -65,6 +63,8 @@ def run_helical(args: argparse.Namespace, system, z1: int, z2: int, show) -> int
     from ..meshes.helical import hand_findings, helical_mesh, in_normal_terms, make_helical_pair, overlap_finding
 
     helix, hand = _check_options(args, z2)
+    if z2 < 0:
+        return _run_internal(args, system, z1, -z2, helix, hand, show)
     if args.cutter_teeth is not None or args.cutter_shift:
         from ..errors import InputError
 
@@ -83,6 +83,85 @@ def run_helical(args: argparse.Namespace, system, z1: int, z2: int, show) -> int
     analysis = dataclasses.replace(analysis, findings=(*analysis.findings, *extra))
     info = {"mesh": mesh, "herringbone": args.herringbone, "gap": args.gap, "face_width": width}
     return show(args, pair, analysis, lambda a: helical_to_dict(a, info), lambda a, r=None: render_helical(a, info, r))
+
+
+def _run_internal(args: argparse.Namespace, system, z1: int, z2: int, helix: float, hand: str, show) -> int:
+    """A helical pinion in a helical ring (same hand): figures and checks of the transverse section."""
+    from ..errors import InputError
+    from ..internal import analyse_internal_pair
+    from ..meshes.helical import hand_findings, helical_mesh, in_normal_terms, make_helical_internal_pair, overlap_finding
+    from .pair import internal_to_dict, render_internal
+
+    if args.centre is not None:
+        raise InputError("--centre is not available for an internal pair; give the shifts with --shift X1 X2")
+    if args.herringbone:
+        raise InputError("--herringbone is available for external pairs only (a herringbone ring cannot be cut "
+                         "by one shaper cutter)")
+    if args.torque is not None or args.power is not None:
+        raise InputError("the load rating of a helical internal pair is not available yet; leave out --torque/--power")
+    pair = make_helical_internal_pair(z1, z2, args.module, system, helix, hand,
+                                      shifts=tuple(args.shift) if args.shift else None, backlash=args.backlash,
+                                      centre_allowance=args.centre_allowance, shorten_tips=not args.full_tips,
+                                      cutter_teeth=args.cutter_teeth, cutter_shift=args.cutter_shift)
+    analysis = analyse_internal_pair(pair)
+    if helix == 0:
+        return show(args, pair, analysis, lambda a: {**internal_to_dict(a), **_zero_helix_keys(a)}, render_internal)
+    width = face_width(args, args.module)
+    mesh = helical_mesh(pair, analysis.contact_ratio, analysis.backlash, width)
+    analysis = in_normal_terms(analysis)
+    extra = [*hand_findings(pair.pinion.hand, pair.pinion.hand, internal=True), overlap_finding(mesh)]
+    analysis = dataclasses.replace(analysis, findings=(*analysis.findings, *extra))
+
+    def to_dict(a) -> dict:
+        data = internal_to_dict(a)
+        pin, ring = data["gears"]
+        scale = 1 / math.cos(mesh.helix_angle)
+        data.update(_helical_keys(mesh, width, False, 0.0), module=mesh.normal_module,
+                    pressure_angle=math.degrees(mesh.normal_pressure_angle),
+                    centre_modification=a.pair.centre_modification * scale, normal_backlash=mesh.normal_backlash)
+        for entry, fig, lead, z_n, x_n in zip((pin, ring), a.gears, mesh.leads, mesh.virtual_teeth, mesh.normal_shifts):
+            entry.update({"module": mesh.normal_module, "shift": x_n, "transverse_shift": fig.gear.shift,
+                          "lead": lead, "hand": mesh.hands[0], "virtual_teeth": z_n,
+                          "tip_shortening": fig.gear.tip_shortening * scale})
+        if pin.get("min_shift") is not None:
+            pin["min_shift"] = a.gears[0].min_shift * scale
+        return data
+
+    def render(a, rating=None) -> str:
+        head = (f"Helical internal pair {z1} : {z2} (ring)   normal module {mesh.normal_module:g} mm   normal pressure angle "
+                f"{math.degrees(mesh.normal_pressure_angle):g} deg   helix {math.degrees(mesh.helix_angle):g} deg, "
+                f"both {mesh.hands[0]}-hand")
+        rows = [("transverse module", f"{fmt(mesh.transverse_module)} mm"),
+                ("transverse pressure angle", f"{math.degrees(mesh.transverse_pressure_angle):.4f} deg"),
+                ("normal profile shifts x_n (ISO sign)", f"{mesh.normal_shifts[0]:+.4f} / {mesh.normal_shifts[1]:+.4f}"),
+                ("leads, pinion / ring", f"{fmt(mesh.leads[0], 3)} / {fmt(mesh.leads[1], 3)} mm"),
+                ("face width", f"{width:g} mm"),
+                ("overlap ratio", f"{mesh.overlap_ratio:.4f}"),
+                ("total contact ratio", f"{mesh.total_contact_ratio:.4f}")]
+        body = render_internal(a, rating)
+        return "\n".join([head, "", table(rows, header=("helix", "")), "",
+                          "the transverse section (figures in the transverse module; shifts there are x_n cos beta):",
+                          "", body])
+
+    return show(args, pair, analysis, to_dict, render)
+
+
+def _helical_keys(mesh, width: float, herringbone: bool, gap: float) -> dict:
+    """The helical contract keys shared by external and internal pairs (mm, degrees)."""
+    return {
+        "helix_angle": math.degrees(mesh.helix_angle),
+        "transverse_module": mesh.transverse_module,
+        "transverse_pressure_angle": math.degrees(mesh.transverse_pressure_angle),
+        "working_transverse_pressure_angle": math.degrees(mesh.working_transverse_pressure_angle),
+        "base_helix_angle": math.degrees(mesh.base_helix_angle),
+        "transverse_contact_ratio": mesh.transverse_contact_ratio,
+        "overlap_ratio": mesh.overlap_ratio,
+        "total_contact_ratio": mesh.total_contact_ratio,
+        "axial_pitch": mesh.axial_pitch,
+        "face_width": width,
+        "herringbone": herringbone,
+        "herringbone_gap": gap if herringbone else None,
+    }
 
 
 def _spur_dict(a) -> dict:
@@ -117,18 +196,7 @@ def helical_to_dict(a, info: dict) -> dict:
         "pressure_angle": math.degrees(mesh.normal_pressure_angle),
         "centre_modification": p.centre_modification * scale,
         "normal_backlash": mesh.normal_backlash,
-        "helix_angle": math.degrees(mesh.helix_angle),
-        "transverse_module": mesh.transverse_module,
-        "transverse_pressure_angle": math.degrees(mesh.transverse_pressure_angle),
-        "working_transverse_pressure_angle": math.degrees(mesh.working_transverse_pressure_angle),
-        "base_helix_angle": math.degrees(mesh.base_helix_angle),
-        "transverse_contact_ratio": mesh.transverse_contact_ratio,
-        "overlap_ratio": mesh.overlap_ratio,
-        "total_contact_ratio": mesh.total_contact_ratio,
-        "axial_pitch": mesh.axial_pitch,
-        "face_width": info["face_width"],
-        "herringbone": info["herringbone"],
-        "herringbone_gap": info["gap"] if info["herringbone"] else None,
+        **_helical_keys(mesh, info["face_width"], info["herringbone"], info["gap"]),
     })
     for entry, fig in zip(data["gears"], a.gears):
         g = fig.gear

@@ -67,6 +67,7 @@ __all__ = [
     "transverse_system",
     "helical_gear",
     "make_helical_pair",
+    "make_helical_internal_pair",
     "helical_mesh",
     "hand_findings",
     "overlap_finding",
@@ -380,6 +381,37 @@ def make_helical_pair(teeth1: int, teeth2: int, normal_module: float, system: To
                     pair.centre_distance, pair.centre_allowance)
 
 
+def make_helical_internal_pair(pinion_teeth: int, ring_teeth: int, normal_module: float, system: ToothSystem, helix: float,
+                               hand: str = "right", *, shifts: tuple[float, float] | None = None, backlash: float = 0.0,
+                               centre_allowance: float = 0.0, shorten_tips: bool = True, cutter_teeth: int | None = None,
+                               cutter_shift: float = 0.0):
+    """A helical pinion in a helical ring of the same hand, from the normal figures; see
+    :func:`gearcad.internal.make_internal_pair` (shifts in ISO 21771's signs, normal section).
+
+    The ring is the transverse section cut by a helical pinion-type cutter; its flanks are exact
+    involutes of the transverse base circle, while the cutter's tip round is taken as a circle of the
+    normal radius in the transverse plane (the shaper cutter's own tip, an approximation of the root
+    fillet only).  ``helix`` 0 gives exactly the spur pair.
+    """
+    from ..internal import InternalPair, make_internal_pair
+
+    helix = check_helix(math.degrees(finite(helix, "helix angle")))
+    check_hand(hand)
+    normal_module = positive(normal_module, "module", "mm")
+    if shifts is not None:
+        shifts = (in_range(shifts[0], "profile shift", *SHIFT_RANGE), in_range(shifts[1], "profile shift", *SHIFT_RANGE))
+    if helix == 0:
+        return make_internal_pair(pinion_teeth, ring_teeth, normal_module, system, shifts=shifts, backlash=backlash,
+                                  centre_allowance=centre_allowance, shorten_tips=shorten_tips,
+                                  cutter_teeth=cutter_teeth, cutter_shift=cutter_shift)
+    c = math.cos(helix)
+    t_shifts = None if shifts is None else (shifts[0] * c, shifts[1] * c)
+    pair = make_internal_pair(pinion_teeth, ring_teeth, normal_module / c, transverse_system(system, helix), shifts=t_shifts,
+                              backlash=backlash, centre_allowance=centre_allowance, shorten_tips=shorten_tips,
+                              cutter_teeth=cutter_teeth, cutter_shift=cutter_shift)
+    return InternalPair(_as_helical(pair.pinion, hand), pair.ring, pair.centre_distance, pair.centre_allowance)
+
+
 # -- the mesh's helical figures ----------------------------------------------------------------
 
 @dataclass(frozen=True)
@@ -436,17 +468,20 @@ def helical_mesh(pair: GearPair, transverse_contact: float, transverse_backlash:
     face_width : float
         Face width in mesh, mm.
     """
-    g1, g2 = (pair.gear1, pair.gear2) if hasattr(pair, "gear1") else (pair.pinion, pair.ring)
+    internal = not hasattr(pair, "gear1")
+    g1, g2 = (pair.pinion, pair.ring) if internal else (pair.gear1, pair.gear2)
     width = positive(face_width, "face width", "mm")
     beta = g1.helix_angle
     alpha_wt = pair.operating_pressure_angle
     beta_b = g1.base_helix_angle
+    alpha_n = g1.normal_pressure_angle
     return HelicalMesh(
-        helix_angle=beta, hands=(g1.hand, g2.hand), normal_module=g1.normal_module, transverse_module=g1.module,
-        normal_pressure_angle=g1.normal_pressure_angle, transverse_pressure_angle=g1.pressure_angle,
+        helix_angle=beta, hands=(g1.hand, g1.hand if internal else g2.hand), normal_module=g1.normal_module,
+        transverse_module=g1.module, normal_pressure_angle=alpha_n, transverse_pressure_angle=g1.pressure_angle,
         working_transverse_pressure_angle=alpha_wt, base_helix_angle=beta_b,
-        leads=(g1.lead, g2.lead), virtual_teeth=(g1.virtual_teeth, g2.virtual_teeth),
-        normal_shifts=(g1.normal_shift, g2.normal_shift), face_width=width,
+        leads=(g1.lead, lead(g2.reference_diameter, beta)),
+        virtual_teeth=(g1.virtual_teeth, virtual_teeth(g2.teeth, beta, alpha_n)),
+        normal_shifts=(g1.normal_shift, g2.shift / math.cos(beta)), face_width=width,
         transverse_contact_ratio=transverse_contact, overlap_ratio=overlap_ratio(width, beta, g1.normal_module),
         normal_backlash=transverse_backlash * math.cos(alpha_wt) * math.cos(beta_b))
 
