@@ -205,7 +205,8 @@ def _helical_gear(g, spec) -> dict[str, Any]:
     gear = g.gear
     if not hasattr(gear, "hand"):
         return {}
-    stage = spec.stages[g.stage - 1] if g.stage and g.stage <= len(spec.stages) else None
+    stage = spec.planetary if spec.planetary is not None else (
+        spec.stages[g.stage - 1] if g.stage and g.stage <= len(spec.stages) else None)
     return {"module": gear.normal_module, "shift": gear.normal_shift, "transverse_module": gear.module,
             "transverse_shift": gear.shift, "helix_angle": math.degrees(gear.helix_angle), "hand": gear.hand,
             "lead": gear.lead, "herringbone": bool(stage and stage.herringbone),
@@ -215,11 +216,11 @@ def _helical_gear(g, spec) -> dict[str, Any]:
 
 def _helical_mesh(m, spec) -> dict[str, Any]:
     """A helical mesh's keys (mm, degrees, N)."""
-    g1 = m.pair.gear1
+    g1, g2 = (m.pair.pinion, m.pair.ring) if hasattr(m.pair, "ring") else (m.pair.gear1, m.pair.gear2)
     if not hasattr(g1, "hand"):
         return {}
     overlap = next((f.value for f in m.findings if f.check == "overlap ratio"), None)
-    data = {"helix_angle": math.degrees(g1.helix_angle), "hands": [g1.hand, m.pair.gear2.hand],
+    data = {"helix_angle": math.degrees(g1.helix_angle), "hands": [g1.hand, g2.hand],
             "transverse_module": g1.module, "transverse_pressure_angle": math.degrees(g1.pressure_angle),
             "overlap_ratio": overlap, "total_contact_ratio": None if overlap is None else overlap + m.analysis.contact_ratio}
     if m.rating is not None and hasattr(m.rating, "helical_data"):

@@ -35,7 +35,8 @@ __all__ = ["parse_train", "read_train", "train_to_toml"]
 
 TOP_KEYS = {"name", "title", "target", "module", "thickness", "tooth_system", "pressure_angle", "fabrication",
             "bore", "coaxial", "stage", "solve", "planetary", "summing"}
-PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit"}
+PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit", "helix", "hand",
+                  "herringbone", "gap"}
 SUMMING_KEYS = {"differential", "sun", "planet", "planets", "ring", "module", "tube", "axis_distance", "shift_limit"}
 STAGE_KEYS = {"driver", "driven", "module", "idler", "helix", "hand", "herringbone", "gap"}
 GEAR_KEYS = {"teeth", "shift", "bore", "flat", "keyway", "hub", "hand"}
@@ -213,8 +214,22 @@ def _planetary(data: dict, ctx: _Context) -> PlanetarySpec | None:
     if p is None:
         return None
     counts = _counts(p, ("sun", "planet", "ring", "planets", "planet_ring"), ("sun", "planet", "ring"), ctx, "planetary")
-    return PlanetarySpec(fixed=_text(p, "fixed", ctx, "ring", "planetary"), input=_text(p, "input", ctx, None, "planetary"),
-                         shift_limit=_number(p, "shift_limit", ctx, "planetary"), **counts)
+    helical = {}
+    for key in ("helix", "gap"):
+        if key in p:
+            helical[key] = _number(p, key, ctx, "planetary")
+    if "hand" in p:
+        helical["hand"] = _text(p, "hand", ctx, None, "planetary")
+    if "herringbone" in p:
+        helical["herringbone"] = _flag(p, "herringbone", ctx, "planetary")
+    try:
+        return PlanetarySpec(fixed=_text(p, "fixed", ctx, "ring", "planetary"), input=_text(p, "input", ctx, None, "planetary"),
+                             shift_limit=_number(p, "shift_limit", ctx, "planetary"), **counts, **helical)
+    except InputError as exc:
+        if str(exc).startswith(ctx.filename) or not helical:
+            raise
+        key = next((k for k in ("helix", "hand", "herringbone", "gap") if k in str(exc).split(" must")[0]), "helix")
+        raise ctx.error(str(exc), key, "planetary") from None
 
 
 def _summing(data: dict, ctx: _Context) -> SummingSpec | None:
@@ -314,6 +329,12 @@ def train_to_toml(spec: TrainSpec) -> str:
             lines.append(f"input = {_quoted(p.input)}")
         if p.shift_limit is not None:
             lines.append(f"shift_limit = {p.shift_limit!r}")
+        if p.helix:
+            lines += [f"helix = {p.helix!r}", f"hand = {_quoted(p.hand)}"]
+        if p.herringbone:
+            lines.append("herringbone = true")
+        if p.gap:
+            lines.append(f"gap = {p.gap!r}")
     if spec.summing is not None:
         s = spec.summing
         lines += ["", "# A summing train: the first [[stage]] is path a, the second path b.", "[summing]",

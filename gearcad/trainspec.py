@@ -127,6 +127,21 @@ class PlanetarySpec:
     fixed: str = "ring"
     input: str | None = None
     shift_limit: float | None = None
+    helix: float = 0.0  # degrees; the sun's hand is ``hand``, planets and ring take the other
+    hand: str = "right"
+    herringbone: bool = False
+    gap: float = 0.0
+
+    def __post_init__(self) -> None:
+        helix = finite(self.helix, "helix angle")
+        if not 0.0 <= helix < 45.0:
+            raise InputError(f"helix angle must be from 0 to below 45 degrees, got {self.helix!r}")
+        if self.hand not in ("left", "right"):
+            raise InputError(f"hand must be left or right, got {self.hand!r}")
+        if self.herringbone and helix == 0:
+            raise InputError("a herringbone set needs a helix angle above 0 degrees")
+        if not (math.isfinite(self.gap) and self.gap >= 0) or (self.gap and not self.herringbone):
+            raise InputError(f"gap must be 0 mm or more and belongs to a herringbone set, got {self.gap!r}")
 
 
 DIFFERENTIALS = ("mean", "planetary")
@@ -210,8 +225,11 @@ class TrainSpec:
             if stage.gap >= self.thickness:
                 raise InputError(f"herringbone gap {stage.gap:g} mm must be narrower than the face width (thickness) {self.thickness:g} mm")
         if (self.summing is not None or self.planetary is not None) and any(s.helix for s in self.stages):
-            raise InputError("helix is available on the stages of compound trains; planetary and summing trains "
-                             "take spur gears only (remove helix from their stages)")
+            raise InputError("helix is available on the stages of compound trains and in a [planetary] table; "
+                             "summing trains take spur gears only (remove helix from their stages)")
+        if self.planetary is not None and self.planetary.gap >= self.thickness:
+            raise InputError(f"herringbone gap {self.planetary.gap:g} mm must be narrower than the face width "
+                             f"(thickness) {self.thickness:g} mm")
         if self.summing is not None and (self.planetary is not None or self.coaxial):
             raise InputError("a summing train cannot also be planetary or coaxial")
         if not self.stages and self.solver is None and self.planetary is None:

@@ -195,3 +195,96 @@ def test_zero_helix_files_are_todays_files(tmp_path, capsys):
     assert names and names == sorted(p.name for p in (tmp_path / "zero").iterdir() if p.suffix in (".dxf", ".svg", ".md", ".json"))
     for name in names:
         assert (tmp_path / "spur" / name).read_bytes() == (tmp_path / "zero" / name).read_bytes(), name
+
+
+# -- planetary sets ------------------------------------------------------------------------------------------
+
+PLANETARY = HEAD + '''
+[planetary]
+sun = 15
+planet = 15
+ring = 45
+planets = 3
+shift_limit = 0.5
+helix = 20
+hand = "right"
+'''
+
+
+def test_helical_planetary_hands_sun_planets_ring():
+    from gearcad.meshes.helical import HelicalRing
+
+    spec = parse_train(PLANETARY)
+    assert parse_train(train_to_toml(spec)) == spec
+    plan = plan_train(spec)
+    hands = {g.name: g.gear.hand for g in plan.gears}
+    # external sun/planet: opposite hands; internal planet/ring: the same hand
+    assert hands["sun"] == "right" and hands["planet-1"] == hands["planet-3"] == hands["ring"] == "left"
+    assert isinstance(plan.gear("ring").gear, HelicalRing)
+    for m in plan.meshes:
+        assert {f.check: f.severity for f in m.findings}["hands"] == "ok"
+    # every planet meshes sun and ring at mid-face: placed outlines touch without overlapping (shapely)
+    sun = shapely.Polygon(placed_outline(plan.gear("sun"), plan))
+    ring_hole = shapely.Polygon([tuple(p) for p in _placed_ring_hole(plan)])
+    for k in (1, 2, 3):
+        planet = shapely.Polygon(placed_outline(plan.gear(f"planet-{k}"), plan))
+        assert sun.intersection(planet).area < 1e-6
+        assert planet.difference(ring_hole).area < 1e-6
+
+
+def _placed_ring_hole(plan):
+    from gearcad.plan import placed_holes
+
+    return placed_holes(plan.gear("ring"), plan)[0]
+
+
+def test_helical_planetary_centre_by_iso_formula():
+    # the common centre distance of sun/planet and planet/ring pairs is ISO 21771's helical one
+    from gearcad.meshes.helical import helical_centre_distance
+    from gearcad.profiles import load_tooth_system
+
+    plan = plan_train(parse_train(PLANETARY))
+    sun, planet = plan.gear("sun").gear, plan.gear("planet-1").gear
+    expected = helical_centre_distance(15, 15, 1.0, load_tooth_system("iso53-a").pressure_angle, math.radians(20),
+                                       sun.normal_shift + planet.normal_shift)
+    assert plan.meshes[0].pair.centre_distance == pytest.approx(expected, rel=1e-12)
+
+
+def test_zero_helix_planetary_is_the_spur_set():
+    spur = plan_train(parse_train(PLANETARY.replace("helix = 20\n", "").replace('hand = "right"\n', "")))
+    zero = plan_train(parse_train(PLANETARY.replace("helix = 20", "helix = 0")))
+    assert [g.gear for g in spur.gears] == [g.gear for g in zero.gears]
+
+
+def test_helical_planetary_refusals(tmp_path, capsys):
+    with pytest.raises(InputError, match="below 45"):
+        parse_train(PLANETARY.replace("helix = 20", "helix = 50"))
+    path = tmp_path / "p.toml"
+    path.write_text(PLANETARY)
+    assert main(["build", str(path), "--out", str(tmp_path / "o"), "--torque", "0.1", "--speed", "10"]) == 2
+    assert "not available yet" in capsys.readouterr().err
+
+
+def test_ring_laminations_turn_the_teeth_not_the_blank():
+    import numpy as np
+
+    from gearcad.meshes.helical import lamination_parts
+
+    plan = plan_train(parse_train(PLANETARY))
+    g = plan.gear("ring")
+    lams = lamination_parts(g.part, 2, 6.0, g.gear.twist(6.0), turn_holes=True)
+    for lam in lams:
+        assert np.array_equal(lam.outer.points(), g.part.outer.points()) and lam.circles == g.part.circles
+    assert not np.allclose(lams[0].holes[0].points(), lams[1].holes[0].points())
+
+
+@pytest.mark.slow
+def test_helical_ring_solid():
+    # the ring's teeth (its hole) swept along the helix: BRepCheck and the volume (blank less tooth area x face
+    # width, 1e-6) are checked inside helical_solid
+    from gearcad.export.step import helical_solid
+
+    plan = plan_train(parse_train(PLANETARY), tolerance=1e-3)
+    g = plan.gear("ring")
+    built = helical_solid(g.part, 6.0, g.gear.twist(6.0), 1e-3, twist_holes=True)
+    assert built.volume > 0

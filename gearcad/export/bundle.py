@@ -152,9 +152,20 @@ def _laminations(plan, g, count: int):
     """The cut laminations of helical gear ``g`` (see gearcad.meshes.helical.lamination_parts)."""
     from ..meshes.helical import lamination_parts
 
-    stage = plan.spec.stages[g.stage - 1]
+    herringbone, gap = _helix_style(plan, g)
     thickness = plan.spec.thickness
-    return lamination_parts(g.cut_part, count, thickness, g.gear.twist(thickness), stage.herringbone, stage.gap)
+    return lamination_parts(g.cut_part, count, thickness, g.gear.twist(thickness), herringbone, gap,
+                            turn_holes=_is_ring(g))
+
+
+def _is_ring(g) -> bool:
+    return hasattr(g.gear, "cutter_teeth")
+
+
+def _helix_style(plan, g) -> tuple[bool, float]:
+    """Herringbone or not, and the gap (mm), of a helical gear: its stage's, or the planetary set's."""
+    style = plan.spec.planetary if plan.spec.planetary is not None else plan.spec.stages[g.stage - 1]
+    return style.herringbone, style.gap
 
 
 def _gear_build(plan, g, thickness: float):
@@ -163,9 +174,9 @@ def _gear_build(plan, g, thickness: float):
 
     if not hasattr(g.gear, "hand"):
         return build_solid(g.part, thickness, plan.tolerance)
-    stage = plan.spec.stages[g.stage - 1]
-    return helical_solid(g.part, thickness, g.gear.twist(thickness), plan.tolerance, herringbone=stage.herringbone,
-                         gap=stage.gap, gap_diameter=g.gear.root_diameter)
+    herringbone, gap = _helix_style(plan, g)
+    return helical_solid(g.part, thickness, g.gear.twist(thickness), plan.tolerance, herringbone=herringbone,
+                         gap=gap, gap_diameter=g.gear.root_diameter, twist_holes=_is_ring(g))
 
 
 def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:

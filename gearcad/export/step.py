@@ -673,7 +673,7 @@ def _twisted(wire: "TopoDS_Wire", z0: float, length: float, start_turn: float, t
 
 
 def helical_solid(part: "Part", thickness: float, twist: float, tolerance: float, *, herringbone: bool = False,
-                  gap: float = 0.0, gap_diameter: float = 0.0) -> SolidBuild:
+                  gap: float = 0.0, gap_diameter: float = 0.0, twist_holes: bool = False) -> SolidBuild:
     """A helical or herringbone gear: the outer loop swept along the helix, holes straight through.
 
     The part's outer loop is the transverse section at mid-face (z = thickness / 2), so
@@ -701,7 +701,12 @@ def helical_solid(part: "Part", thickness: float, twist: float, tolerance: float
         Two halves of opposite hand (the lower half turns with ``twist``'s sign).
     gap, gap_diameter : float
         Herringbone: the gap's length along the axis and the diameter of the disc filling it, mm.
+    twist_holes : bool
+        A ring gear: its teeth are the part's hole loops, which are swept along the helix (the gap of a
+        herringbone ring is a disc of ``gap_diameter`` removed); the outer loop and round holes stay straight.
     """
+    if twist_holes:
+        return _helical_ring_solid(part, thickness, twist, tolerance, herringbone, gap, gap_diameter)
     from OCP.BRepAlgoAPI import BRepAlgoAPI_Cut, BRepAlgoAPI_Fuse
     from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace
     from OCP.BRepCheck import BRepCheck_Analyzer
@@ -753,4 +758,55 @@ def helical_solid(part: "Part", thickness: float, twist: float, tolerance: float
     if abs(volume - expected) > HELICAL_VOLUME_TOLERANCE * expected:
         raise GeometryError(f"part {part.name!r}: helical solid volume {volume:.9g} mm³ differs from the transverse "
                             f"area x face width {expected:.9g} mm³ by more than {HELICAL_VOLUME_TOLERANCE:g}")
+    return SolidBuild(shape, stats.splines, stats.poles, stats.worst, volume)
+
+
+def _helical_ring_solid(part: "Part", thickness: float, twist: float, tolerance: float, herringbone: bool,
+                        gap: float, gap_diameter: float) -> SolidBuild:
+    """A helical ring: the straight blank less its tooth loops swept along the helix (see :func:`helical_solid`)."""
+    from OCP.BRepAlgoAPI import BRepAlgoAPI_Cut, BRepAlgoAPI_Fuse
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace
+    from OCP.BRepCheck import BRepCheck_Analyzer
+    from OCP.BRepPrimAPI import BRepPrimAPI_MakeCylinder, BRepPrimAPI_MakePrism
+    from OCP.gp import gp_Ax2, gp_Dir, gp_Pnt, gp_Vec
+    from OCP.ShapeUpgrade import ShapeUpgrade_UnifySameDomain
+
+    from ..geometry.shape import Part as _Part
+
+    _check_inputs(part, thickness, tolerance)
+    if not (math.isfinite(twist) and 0 < abs(twist) < 2 * math.pi):
+        raise InputError(f"helix twist over the face must be above 0 and below one turn, got {twist!r} rad")
+    if herringbone and not (math.isfinite(gap) and 0 <= gap < thickness):
+        raise InputError(f"herringbone gap must be from 0 to below the face width {thickness:g} mm, got {gap!r}")
+    stats = _Stats()
+    rate = twist / thickness
+    with kernel_quiet():
+        blank = _face(_Part(part.name, part.outer, (), part.circles), tolerance, stats)
+        expected = _adaptive_area(blank) * thickness
+        shape = BRepPrimAPI_MakePrism(blank, gp_Vec(0.0, 0.0, float(thickness))).Shape()
+        for k, hole in enumerate(part.holes):
+            wire = _loop_wire(hole.reversed(), tolerance, stats, f"{part.name} hole {k}")
+            area = abs(_adaptive_area(BRepBuilderAPI_MakeFace(wire, True).Face()))
+            if not herringbone:
+                cutter = _twisted(wire, 0.0, thickness, -twist / 2, twist)
+                expected -= area * thickness
+            else:
+                half = (thickness - gap) / 2
+                cutter = BRepAlgoAPI_Fuse(_twisted(wire, 0.0, half, -rate * half, rate * half),
+                                          _twisted(wire, half + gap, half, 0.0, -rate * half)).Shape()
+                expected -= 2 * area * half
+                if gap > 0:
+                    axis = gp_Ax2(gp_Pnt(0.0, 0.0, half), gp_Dir(0.0, 0.0, 1.0))
+                    cutter = BRepAlgoAPI_Fuse(cutter, BRepPrimAPI_MakeCylinder(axis, gap_diameter / 2, gap).Shape()).Shape()
+                    expected -= math.pi * gap_diameter ** 2 / 4 * gap
+            shape = BRepAlgoAPI_Cut(shape, cutter).Shape()
+        unify = ShapeUpgrade_UnifySameDomain(shape, True, True, False)
+        unify.Build()
+        shape = unify.Shape()
+        if not BRepCheck_Analyzer(shape).IsValid():
+            raise GeometryError(f"part {part.name!r}: the kernel rejects the helical ring as invalid")
+        volume = _adaptive_volume(shape)
+    if abs(volume - expected) > HELICAL_VOLUME_TOLERANCE * expected:
+        raise GeometryError(f"part {part.name!r}: helical ring volume {volume:.9g} mm³ differs from the blank less the "
+                            f"transverse tooth area x face width {expected:.9g} mm³ by more than {HELICAL_VOLUME_TOLERANCE:g}")
     return SolidBuild(shape, stats.splines, stats.poles, stats.worst, volume)

@@ -33,6 +33,7 @@ Pure functions and frozen dataclasses; no I/O.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -49,6 +50,8 @@ __all__ = [
     "MIN_OVERLAP_RATIO",
     "TransverseSystem",
     "HelicalGear",
+    "HelicalRing",
+    "as_helical_ring",
     "HelicalMesh",
     "check_helix",
     "check_hand",
@@ -300,6 +303,78 @@ class HelicalGear(SpurGear):
         return self.helix_sign * face_width * math.tan(self.helix_angle) / (self.reference_diameter / 2)
 
 
+class _HelixFigures:
+    """Helical figures shared by :class:`HelicalGear` and :class:`HelicalRing` (needs ``system``, ``hand``)."""
+
+    @property
+    def helix_angle(self) -> float:
+        """Helix angle at the reference cylinder, radians (>= 0; the hand says which way)."""
+        return self.system.helix_angle
+
+    @property
+    def helix_sign(self) -> int:
+        """+1 for a right hand, -1 for a left hand (the sign of the twist seen along +z)."""
+        return 1 if self.hand == "right" else -1
+
+    @property
+    def normal_module(self) -> float:
+        """Normal module ``m_n = m_t cos(beta)``, mm."""
+        return self.module * math.cos(self.helix_angle)
+
+    @property
+    def normal_pressure_angle(self) -> float:
+        """Normal pressure angle of the basic rack, radians."""
+        return self.system.normal.pressure_angle
+
+    @property
+    def normal_shift(self) -> float:
+        """Normal profile shift coefficient ``x_n = x_t / cos(beta)``."""
+        return self.shift / math.cos(self.helix_angle)
+
+    @property
+    def lead(self) -> float:
+        """Lead ``pi d / tan(beta)``, mm."""
+        return lead(self.reference_diameter, self.helix_angle)
+
+    def twist(self, face_width: float) -> float:
+        """Turn of the transverse section over ``face_width`` (mm), radians: ``b tan(beta) / r``, signed by the hand.
+
+        Positive (counter-clockwise seen from +z) for a right hand as z grows.
+        """
+        return self.helix_sign * face_width * math.tan(self.helix_angle) / (self.reference_diameter / 2)
+
+
+def _ring_class():
+    from ..geometry.internal import RingGear
+
+    @dataclass(frozen=True)
+    class HelicalRing(_HelixFigures, RingGear):
+        """A helical ring (internal gear) as its transverse section with a hand; see :class:`HelicalGear`."""
+
+        hand: str = "right"
+
+        def __post_init__(self) -> None:
+            check_hand(self.hand)
+            if not isinstance(self.system, TransverseSystem):
+                raise InputError("a helical ring needs the transverse section of its tooth system (transverse_system)")
+            super().__post_init__()
+
+    HelicalRing.__module__ = __name__
+    HelicalRing.__qualname__ = "HelicalRing"
+    return HelicalRing
+
+
+HelicalRing = _ring_class()
+
+
+def as_helical_ring(ring, hand: str):
+    """The transverse-section ring ``ring`` (a RingGear cut with a :class:`TransverseSystem`) with a hand."""
+    from ..geometry.internal import RingGear
+
+    values = {f.name: getattr(ring, f.name) for f in dataclasses.fields(RingGear)}
+    return HelicalRing(**values, hand=hand)
+
+
 def helical_gear(teeth: int, normal_module: float, system: ToothSystem, helix: float, hand: str = "right", *,
                  shift: float = 0.0, thinning: float = 0.0, tip_shortening: float = 0.0) -> SpurGear:
     """A helical gear from its normal figures; a plain :class:`SpurGear` when ``helix`` is 0.
@@ -409,7 +484,8 @@ def make_helical_internal_pair(pinion_teeth: int, ring_teeth: int, normal_module
     pair = make_internal_pair(pinion_teeth, ring_teeth, normal_module / c, transverse_system(system, helix), shifts=t_shifts,
                               backlash=backlash, centre_allowance=centre_allowance, shorten_tips=shorten_tips,
                               cutter_teeth=cutter_teeth, cutter_shift=cutter_shift)
-    return InternalPair(_as_helical(pair.pinion, hand), pair.ring, pair.centre_distance, pair.centre_allowance)
+    return InternalPair(_as_helical(pair.pinion, hand), as_helical_ring(pair.ring, hand), pair.centre_distance,
+                        pair.centre_allowance)
 
 
 # -- the mesh's helical figures ----------------------------------------------------------------
@@ -528,8 +604,12 @@ def in_normal_terms(analysis):
         label = finding.check[len("undercut "):]
         fig = analysis.gears[0 if label in ("gear 1", "pinion") else 1]
         gear = fig.gear
-        scale = 1.0 / math.cos(gear.helix_angle)
-        x_min = fig.min_shift * scale
+        from ..checks import min_shift_without_undercut
+
+        # least transverse shift by the rack-generation condition, the thinning's deeper feed included
+        x_min_t = (min_shift_without_undercut(gear.teeth, gear.pressure_angle, gear.system.straight_flank_depth)
+                   + gear.shift - gear.generating_shift)
+        x_min = x_min_t / math.cos(gear.helix_angle)
         if fig.undercut:
             text = (f"{label} ({gear.teeth} teeth) is undercut: the cutter removes the foot of the involute; "
                     f"a normal profile shift of at least {x_min:+.3f} avoids it")
@@ -569,7 +649,8 @@ def lamination_turns(count: int, thickness: float, twist: float, herringbone: bo
     return tuple(section_turn((k + 0.5) * step, thickness, twist, herringbone, gap) for k in range(count))
 
 
-def lamination_parts(part, count: int, thickness: float, twist: float, herringbone: bool = False, gap: float = 0.0) -> tuple:
+def lamination_parts(part, count: int, thickness: float, twist: float, herringbone: bool = False, gap: float = 0.0,
+                     turn_holes: bool = False) -> tuple:
     """The ``count`` laminations of a helical gear drawn as ``part`` (its mid-face section), bottom first.
 
     Each lamination's outer loop is the section turned by its share of the twist (:func:`lamination_turns`);
@@ -581,7 +662,11 @@ def lamination_parts(part, count: int, thickness: float, twist: float, herringbo
     turns = lamination_turns(count, thickness, twist, herringbone, gap)
     out = []
     for k, turn in enumerate(turns, start=1):
-        outer = Loop(tuple(c.transformed(rotation=turn) for c in part.outer.curves))
         label = f"{part.label}  lamination {k}/{count} (bottom first), turned {math.degrees(turn):+.3f} deg"
+        if turn_holes:  # a ring: its teeth are the hole; the blank and its bolt holes stay
+            holes = tuple(Loop(tuple(c.transformed(rotation=turn) for c in h.curves)) for h in part.holes)
+            out.append(Part(f"{part.name}-lam{k}", part.outer, holes, part.circles, label.strip(), part.symmetry))
+            continue
+        outer = Loop(tuple(c.transformed(rotation=turn) for c in part.outer.curves))
         out.append(Part(f"{part.name}-lam{k}", outer, part.holes, part.circles, label.strip(), part.symmetry))
     return tuple(out)
