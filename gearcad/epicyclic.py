@@ -148,7 +148,10 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
     if abs(ring_pair.centre_distance - centre) > 1e-6:
         raise GeometryError(f"sun and ring centre distances differ ({centre:.6f} and {ring_pair.centre_distance:.6f} mm)")
     if ps.helix:
+        from .meshes.helical import check_face_width
+
         sun_pair, ring_pair = _helical_pairs(sun_pair, ring_pair, ps.hand)
+        check_face_width((sun_pair.gear1, sun_pair.gear2, ring_pair.pinion), spec.thickness)
     ring = ring_pair.ring
     if ps.fixed == "ring":  # a fixed ring is bolted to the frame: a rim wide enough for the bolts
         rim = ring.root_diameter + 2 * (1.5 * fab.spacer_hole + 2.0)

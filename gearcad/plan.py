@@ -178,6 +178,9 @@ def _pairs(spec: TrainSpec, chain: _Chain, system: ToothSystem, fab: Fabrication
             pair = make_helical_pair(ga.teeth, gb.teeth, _stage_module(spec, stage), system, math.radians(st.helix),
                                      hand, shifts=(ga.shift, gb.shift), backlash=fab.backlash)
             hands[b] = pair.gear2.hand
+            from .meshes.helical import check_face_width
+
+            check_face_width((pair.gear1, pair.gear2), spec.thickness)
             pairs[(a, b)] = pair
             continue
         pairs[(a, b)] = make_pair(ga.teeth, gb.teeth, _stage_module(spec, stage), system,

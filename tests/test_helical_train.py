@@ -288,3 +288,10 @@ def test_helical_ring_solid():
     g = plan.gear("ring")
     built = helical_solid(g.part, 6.0, g.gear.twist(6.0), 1e-3, twist_holes=True)
     assert built.volume > 0
+
+
+def test_face_width_longer_than_a_lead_is_refused(tmp_path, capsys):
+    path = tmp_path / "long.toml"
+    path.write_text(HEAD.replace("thickness = 6.0", "thickness = 200.0") + "[[stage]]\ndriver = 12\ndriven = 20\nhelix = 40\n")
+    assert main(["build", str(path), "--out", str(tmp_path / "o")]) == 2
+    assert "lead" in capsys.readouterr().err and not (tmp_path / "o").exists()

@@ -77,7 +77,9 @@ def run(args: argparse.Namespace) -> int:
     if args.helix is not None and args.kind in ("planetary", "summing"):
         from ..errors import InputError
 
-        raise InputError(f"--helix applies to compound trains only; --kind {args.kind} takes spur gears")
+        hint = ("; for a helical set, add helix = DEG to the [planetary] table of the train file it writes"
+                if args.kind == "planetary" else "")
+        raise InputError(f"--helix applies to compound trains only in gearcad design; --kind {args.kind} takes spur gears{hint}")
     if args.kind == "planetary":
         return _design_planetary(args)
     if args.kind == "summing":

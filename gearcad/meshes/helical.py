@@ -79,6 +79,7 @@ __all__ = [
     "lamination_turns",
     "lamination_parts",
     "MAX_LAMINATIONS",
+    "check_face_width",
 ]
 
 HANDS = ("right", "left")
@@ -618,6 +619,14 @@ def in_normal_terms(analysis):
         return dataclasses.replace(finding, value=gear.normal_shift, limit=x_min, message=text)
 
     return dataclasses.replace(analysis, findings=tuple(restate(f) for f in analysis.findings))
+
+
+def check_face_width(gears, face_width: float) -> None:
+    """Refuse a face width (mm) over which a helical gear's section would turn a whole turn or more (a lead)."""
+    for gear in gears:
+        if hasattr(gear, "hand") and abs(gear.twist(face_width)) >= 2 * math.pi:
+            raise InputError(f"face width {face_width:g} mm is as long as the lead of the {gear.teeth}-tooth helical gear "
+                             f"({gear.lead:.4g} mm): use a narrower face or a smaller helix angle")
 
 
 # -- laminations: a helical gear stacked from flat sheets -------------------------------------------
