@@ -108,6 +108,7 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
         "findings": [{"check": f.check, "severity": f.severity, "message": f.message, "value": f.value, "limit": f.limit}
                      for f in plan.findings],
         "tolerance": plan.tolerance,
+        **_shaft_thrusts(plan),
         "cautions": list(CAUTIONS) + ([plan.fabrication.note] if plan.fabrication.note else []),
     }
 
@@ -189,6 +190,10 @@ def report_markdown(data: Mapping[str, Any]) -> str:
     lines += _table(["shaft", "x", "y", "diameter", "back plate", "front plate"],
                     [[s["name"], f"{s['x']:.4f}", f"{s['y']:.4f}", f"{s['diameter']:g}", "yes" if s["back_plate"] else "no",
                       "yes" if s["front_plate"] else "no"] for s in data["shafts"]])
+    if data.get("shaft_axial_forces"):
+        lines += ["", "Axial forces on the shafts from the helical meshes (N, net of each shaft's gears; a bearing "
+                  "that takes thrust wherever it is not 0): " + "; ".join(f"{k} {v:.4g}" for k, v in
+                                                                          data["shaft_axial_forces"].items())]
     lines += ["", "## Files", ""]
     for g in data["gears"] + data["plates"]:
         lines.append(f"- {g['name']}: " + ", ".join(f"`{p}`" for p in g["files"].values() if p))
@@ -238,3 +243,20 @@ def _helical_gears_markdown(gears) -> list[str]:
     return ["", "Helical gears: module and shift above are the normal section's; the DXF and SVG drawings are the "
             "transverse section at mid-face; the solids are that section swept along the helix.", ""] + _table(
         ["gear", "helix deg", "hand", "lead", "transverse module", "transverse pressure angle deg"], rows)
+
+
+def _shaft_thrusts(plan) -> dict[str, Any]:
+    """``shaft_axial_forces``: net axial force per shaft (N) when helical meshes are rated, else nothing."""
+    loads = []
+    for m in plan.meshes:
+        force = getattr(m.rating, "axial_force", None)
+        if not force:
+            continue
+        for name, drives in zip(m.names, (True, False)):
+            g = plan.gear(name)
+            loads.append((plan.shafts[g.shaft].name, g.gear.hand, drives, force))
+    if not loads:
+        return {}
+    from .meshes.helical import shaft_axial_forces
+
+    return {"shaft_axial_forces": shaft_axial_forces(loads)}

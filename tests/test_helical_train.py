@@ -295,3 +295,31 @@ def test_face_width_longer_than_a_lead_is_refused(tmp_path, capsys):
     path.write_text(HEAD.replace("thickness = 6.0", "thickness = 200.0") + "[[stage]]\ndriver = 12\ndriven = 20\nhelix = 40\n")
     assert main(["build", str(path), "--out", str(tmp_path / "o")]) == 2
     assert "lead" in capsys.readouterr().err and not (tmp_path / "o").exists()
+
+
+def test_shaft_axial_forces_statics():
+    # Statics of the helix (F_a = F_t tan beta, sense by hand and by driving/driven): same-hand gears on one
+    # shaft, one driven and one driving, push opposite ways; an idler's two meshes cancel; opposite hands add.
+    from gearcad.meshes.helical import shaft_axial_forces
+
+    same = shaft_axial_forces([("s", "left", False, 3.0), ("s", "left", True, 5.0)])
+    assert same["s"] == pytest.approx(2.0)
+    idler = shaft_axial_forces([("i", "right", False, 4.0), ("i", "right", True, 4.0)])
+    assert idler["i"] == pytest.approx(0.0)
+    opposite = shaft_axial_forces([("s", "right", False, 3.0), ("s", "left", True, 5.0)])
+    assert opposite["s"] == pytest.approx(8.0)
+
+
+def test_report_lists_thrust_per_shaft(tmp_path, capsys):
+    path = tmp_path / "hx.toml"
+    path.write_text(TWO_STAGES.replace("herringbone = true\ngap = 1.0\n", ""))
+    out = tmp_path / "out"
+    assert main(["build", str(path), "--out", str(out), "--formats", "dxf", "--torque", "0.05", "--speed", "60"]) in (0, 1)
+    data = json.loads((out / "report.json").read_text())
+    forces = data["shaft_axial_forces"]
+    f1, f2 = (m["axial_force"] for m in data["meshes"][:2])
+    assert forces["input"] == pytest.approx(f1)
+    # shaft-1 carries stage 1's driven gear (left) and stage 2's driver (left): the thrusts oppose
+    assert forces["shaft-1"] == pytest.approx(abs(f1 - f2))
+    # the idler (right) sits between two meshes of the same load: no net thrust
+    assert forces["shaft-2"] == pytest.approx(0.0, abs=1e-9)

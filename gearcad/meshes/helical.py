@@ -80,6 +80,7 @@ __all__ = [
     "lamination_parts",
     "MAX_LAMINATIONS",
     "check_face_width",
+    "shaft_axial_forces",
 ]
 
 HANDS = ("right", "left")
@@ -619,6 +620,22 @@ def in_normal_terms(analysis):
         return dataclasses.replace(finding, value=gear.normal_shift, limit=x_min, message=text)
 
     return dataclasses.replace(analysis, findings=tuple(restate(f) for f in analysis.findings))
+
+
+def shaft_axial_forces(loads) -> dict[str, float]:
+    """Net axial force (N, magnitude) on each shaft from the helical meshes of its gears.
+
+    ``loads``: ``(shaft, hand, drives, force)`` per gear per mesh, ``force`` the mesh's ``F_t tan(beta)``
+    (N) and ``drives`` whether the gear drives its mate in that mesh.  The mate pushes a driven tooth with
+    the rotation and a driving tooth against it; the tooth's helix turns that push into an axial one whose
+    sense follows the hand.  So on one shaft the thrusts of a driven and a driving gear of the same hand
+    oppose (a countershaft's common practice), an idler's two meshes cancel, and opposite hands add.
+    """
+    net: dict[str, float] = {}
+    for shaft, hand, drives, force in loads:
+        sign = (1 if hand == "right" else -1) * (-1 if drives else 1)
+        net[shaft] = net.get(shaft, 0.0) + sign * force
+    return {shaft: abs(value) for shaft, value in net.items()}
 
 
 def check_face_width(gears, face_width: float) -> None:
