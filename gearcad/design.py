@@ -54,12 +54,19 @@ def balanced_shifts(driver: int, driven: int, system: ToothSystem, thinning: flo
     return shifts[0], shifts[1]
 
 
-def spec_with_stages(spec: TrainSpec, train, system: ToothSystem | None = None) -> TrainSpec:
-    """``spec`` with the stages of a solved ``train`` (a :class:`gearcad.ratio.Train`)."""
+def spec_with_stages(spec: TrainSpec, train, system: ToothSystem | None = None, helix: float = 0.0,
+                     hand: str = "right", herringbone: bool = False) -> TrainSpec:
+    """``spec`` with the stages of a solved ``train`` (a :class:`gearcad.ratio.Train`).
+
+    ``helix`` (degrees, 0 to below 45) makes every stage helical: the shifts are found in
+    the transverse section and given as normal shifts (see :func:`_helical_stages`).
+    """
     if system is None:
         system = _tooth_system(spec.tooth_system, spec.pressure_angle)
     elif spec.pressure_angle is not None:
         system = dataclasses.replace(system, pressure_angle=math.radians(spec.pressure_angle))
+    if helix:
+        return _helical_stages(spec, train, system, helix, hand, herringbone)
     from .profiles import load_fabrication
 
     thinning = thinning_shift(load_fabrication(spec.fabrication).backlash, spec.module, system)
@@ -76,6 +83,30 @@ def spec_with_stages(spec: TrainSpec, train, system: ToothSystem | None = None) 
         stages = _equal_centres(stages, spec.module, system)
     target = spec.target or (spec.solver.ratio if spec.solver else None)
     return dataclasses.replace(spec, stages=tuple(stages), coaxial=coaxial, target=target, solver=None)
+
+
+def _helical_stages(spec: TrainSpec, train, system: ToothSystem, helix: float, hand: str, herringbone: bool) -> TrainSpec:
+    """Helical stages: shifts against undercut in the transverse section (module ``m_n / cos(beta)``, the
+    transverse rack), turned into normal shifts ``x_n = x_t / cos(beta)``.
+
+    Hands: each stage's driver takes the hand of the gear it shares a shaft with (the previous stage's driven
+    gear), so that on every intermediate shaft the two gears' axial forces oppose (common practice).
+    """
+    from .meshes.helical import check_hand, check_helix, opposite_hand, transverse_system
+
+    beta = check_helix(helix)
+    check_hand(hand)
+    c = math.cos(beta)
+    plain = dataclasses.replace(spec, module=spec.module / c)
+    spur = spec_with_stages(plain, train, transverse_system(system, beta))
+    stages = []
+    for stage in spur.stages:
+        normal = [dataclasses.replace(g, shift=round(g.shift / c, 12)) if g is not None else None
+                  for g in (stage.driver, stage.driven, stage.idler)]
+        stages.append(StageSpec(normal[0], normal[1], stage.module, normal[2], helix=helix, hand=hand,
+                                herringbone=herringbone))
+        hand = hand if stage.idler is not None else opposite_hand(hand)
+    return dataclasses.replace(spur, module=spec.module, stages=tuple(stages))
 
 
 def _equal_centres(stages: list[StageSpec], module: float, system: ToothSystem) -> list[StageSpec]:

@@ -88,15 +88,56 @@ def _ring_part(ring: RingGear, fixed: bool, fab: Fabrication, tolerance: float) 
     return part, kerf_cut(part, fab, tolerance), bolt_circle
 
 
+def _helical_pairs(sun_pair, ring_pair, hand: str):
+    """The set's pairs with hands: the sun ``hand``; planets and ring the other (external pair opposite,
+    internal pair the same)."""
+    from .internal import InternalPair
+    from .meshes.helical import HelicalGear, as_helical_ring, opposite_hand
+    from .pair import GearPair
+
+    other = opposite_hand(hand)
+
+    def helical(gear, h):
+        return HelicalGear(gear.teeth, gear.module, gear.system, gear.shift, gear.thinning, gear.tip_shortening, hand=h)
+
+    sun = GearPair(helical(sun_pair.gear1, hand), helical(sun_pair.gear2, other), sun_pair.centre_distance,
+                   sun_pair.centre_allowance)
+    ring = InternalPair(helical(ring_pair.pinion, other), as_helical_ring(ring_pair.ring, other),
+                        ring_pair.centre_distance, ring_pair.centre_allowance)
+    return sun, ring
+
+
+def _helical_mesh(mesh: PlannedMesh, thickness: float, ps) -> PlannedMesh:
+    """A planned mesh of a helical set with its hands and overlap findings, undercut restated in normal shifts."""
+    from .meshes.helical import hand_findings, helical_mesh, in_normal_terms, overlap_finding
+
+    internal = hasattr(mesh.pair, "ring")
+    g1, g2 = (mesh.pair.pinion, mesh.pair.ring) if internal else (mesh.pair.gear1, mesh.pair.gear2)
+    width = (thickness - ps.gap) / 2 if ps.herringbone else thickness
+    figures = helical_mesh(mesh.pair, mesh.analysis.contact_ratio, mesh.analysis.backlash, width)
+    extra = (*hand_findings(g1.hand, g2.hand, internal=internal), overlap_finding(figures))
+    return dataclasses.replace(mesh, analysis=in_normal_terms(mesh.analysis), findings=(*extra, *mesh.findings))
+
+
 def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = None) -> Plan:
     """Plan a planetary set described by ``spec.planetary``."""
     ps = spec.planetary
     system = _system(spec)
     fab = load_fabrication(spec.fabrication)
     m = spec.module
+    shift_limit = ps.shift_limit
+    if ps.helix:  # helical: the set is solved and built in the transverse section (gearcad.meshes.helical)
+        from .meshes.helical import transverse_system
+
+        if load is not None:
+            raise InputError("the load rating of a helical planetary set is not available yet; build it without "
+                             "--torque/--power, or with helix = 0")
+        beta = math.radians(ps.helix)
+        system, m = transverse_system(system, beta), m / math.cos(beta)
+        shift_limit = None if shift_limit is None else shift_limit * math.cos(beta)
     pset = make_set(ps.sun, ps.planet, ps.ring, ps.planets, ps.planet_ring)
     arrangement = make_arrangement(ps.fixed, ps.input)
-    conditions = check_set(pset, m, ps.shift_limit, pressure_angle=system.pressure_angle, addendum=system.addendum)
+    conditions = check_set(pset, m, shift_limit, pressure_angle=system.pressure_angle, addendum=system.addendum)
     failed = [f for f in conditions.findings if f.severity == "failure"]
     if failed:
         raise InputError(f"the planetary set {pset.describe()} cannot be built: {failed[0].message}")
@@ -106,6 +147,11 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
     centre = sun_pair.centre_distance
     if abs(ring_pair.centre_distance - centre) > 1e-6:
         raise GeometryError(f"sun and ring centre distances differ ({centre:.6f} and {ring_pair.centre_distance:.6f} mm)")
+    if ps.helix:
+        from .meshes.helical import check_face_width
+
+        sun_pair, ring_pair = _helical_pairs(sun_pair, ring_pair, ps.hand)
+        check_face_width((sun_pair.gear1, sun_pair.gear2, ring_pair.pinion), spec.thickness)
     ring = ring_pair.ring
     if ps.fixed == "ring":  # a fixed ring is bolted to the frame: a rim wide enough for the bolts
         rim = ring.root_diameter + 2 * (1.5 * fab.spacer_hole + 2.0)
@@ -156,6 +202,8 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
                           ratings[0].findings() if ratings[0] else (), ratings[0]),
               PlannedMesh(("planet-1-ring-side" if pset.stepped else "planet-1", "ring"), ring_pair,
                           analyse_internal_pair(ring_pair), ratings[1].findings() if ratings[1] else (), ratings[1]))
+    if ps.helix:
+        meshes = tuple(_helical_mesh(mesh, spec.thickness, ps) for mesh in meshes)
     top = z0 + (layer_b + 1) * pitch
     plates = _plates(spec, fab, tolerance, cx, cy, centre, angles, ps, ring, bolt_circle, top, pin)
     layout = Layout(np.array([[s.x, s.y] for s in shafts]), 2 * half, 2 * half,

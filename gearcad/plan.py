@@ -167,8 +167,22 @@ def _stage_module(spec: TrainSpec, stage: int) -> float:
 def _pairs(spec: TrainSpec, chain: _Chain, system: ToothSystem, fab: Fabrication) -> dict[tuple[str, str], GearPair]:
     specs = {name: (gspec, stage) for name, _, stage, gspec, _, _ in chain.gears}
     pairs = {}
+    hands: dict[str, str] = {}
     for _, _, a, b in chain.links:
         (ga, stage), (gb, _) = specs[a], specs[b]
+        st = spec.stages[stage - 1]
+        if st.helix:  # a helical stage: normal module and shifts; the hands alternate from the driver's
+            from .meshes.helical import make_helical_pair
+
+            hand = hands.get(a, st.hand)
+            pair = make_helical_pair(ga.teeth, gb.teeth, _stage_module(spec, stage), system, math.radians(st.helix),
+                                     hand, shifts=(ga.shift, gb.shift), backlash=fab.backlash)
+            hands[b] = pair.gear2.hand
+            from .meshes.helical import check_face_width
+
+            check_face_width((pair.gear1, pair.gear2), spec.thickness)
+            pairs[(a, b)] = pair
+            continue
         pairs[(a, b)] = make_pair(ga.teeth, gb.teeth, _stage_module(spec, stage), system,
                                   shifts=(ga.shift, gb.shift), backlash=fab.backlash)
     return pairs
@@ -192,6 +206,9 @@ def _check_bore(name: str, gear: SpurGear, gspec: GearSpec, bore: float) -> None
 
 
 def _label(name: str, gear: SpurGear) -> str:
+    if hasattr(gear, "hand"):  # helical: normal module and shift; the drawing is the transverse section at mid-face
+        return (f"{name}  z{gear.teeth}  mn{gear.normal_module:g}  xn{gear.normal_shift:+.3f}  "
+                f"helix {math.degrees(gear.helix_angle):g} {gear.hand}  transverse section")
     return f"{name}  z{gear.teeth}  m{gear.module:g}  x{gear.shift:+.3f}"
 
 
@@ -314,16 +331,32 @@ def _meshes(chain: _Chain, pairs, fab: Fabrication, spec: TrainSpec, load: Input
         from .materials import load_material
 
         material = load_material(fab.material_profile)
+    stage_of = {g[0]: g[2] for g in chain.gears}
     for (a, b), pair in pairs.items():
         rating, extra = None, ()
+        stage = spec.stages[stage_of[a] - 1]
         if load:
             from .strength import PROCESS_CLASS, rate_pair
 
             torque, speed = loads[a]
-            rating = rate_pair(pair, torque, speed, spec.thickness, material, material,
-                               PROCESS_CLASS[fab.process])
+            if stage.helix:
+                from .meshes.helical_rating import rate_helical_pair
+
+                rating = rate_helical_pair(pair, torque, speed, spec.thickness, material, material,
+                                           PROCESS_CLASS[fab.process], herringbone=stage.herringbone, gap_mm=stage.gap)
+            else:
+                rating = rate_pair(pair, torque, speed, spec.thickness, material, material,
+                                   PROCESS_CLASS[fab.process])
             extra = rating.findings()
-        yield PlannedMesh((a, b), pair, analyse_pair(pair), extra, rating)
+        analysis = analyse_pair(pair)
+        if stage.helix:
+            from .meshes.helical import hand_findings, helical_mesh, in_normal_terms, overlap_finding
+
+            analysis = in_normal_terms(analysis)
+            width = (spec.thickness - stage.gap) / 2 if stage.herringbone else spec.thickness
+            mesh = helical_mesh(pair, analysis.contact_ratio, analysis.backlash, width)
+            extra = (*hand_findings(pair.gear1.hand, pair.gear2.hand), overlap_finding(mesh), *extra)
+        yield PlannedMesh((a, b), pair, analysis, extra, rating)
 
 
 def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: InputLoad | None = None) -> Plan:

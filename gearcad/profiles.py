@@ -177,6 +177,16 @@ class ToothSystem:
         return (math.pi / 4 - self.dedendum * math.tan(a)) / (1 / math.cos(a) - math.tan(a))
 
     @property
+    def fillet_stretch(self) -> float:
+        """Ratio of the cutter tip round's semi-axis along the rack to its radius: 1, a circle.
+
+        A helical gear's transverse section is cut by the transverse section of the
+        rack, whose round is an ellipse stretched along the rack by ``1/cos(beta)``
+        (see ``gearcad.meshes.helical.TransverseSystem``).
+        """
+        return 1.0
+
+    @property
     def straight_flank_depth(self) -> float:
         """Depth of the cutter's straight flank below the reference line, in modules.
 

@@ -74,6 +74,7 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
             "z": g.z, "rotation": math.degrees(g.rotation),
             "hub": {"diameter": g.spec.hub.diameter, "length": g.spec.hub.length} if g.spec.hub else None,
             "files": _files(files, g.name, ("dxf", "step", "stl", "svg")),
+            **_helical_gear(g, spec),
         })
     meshes = []
     for m in plan.meshes:
@@ -86,6 +87,7 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
             "rating": rating_data(m.rating) if m.rating is not None else None,
             "findings": [{"check": f.check, "severity": f.severity, "message": f.message, "value": f.value, "limit": f.limit}
                          for f in a.findings + m.findings],
+            **_helical_mesh(m, spec),
         })
     return {
         "name": spec.name, "title": spec.title, "kind": train_kind(plan)[0], "ratio_rule": train_kind(plan)[1],
@@ -106,6 +108,7 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
         "findings": [{"check": f.check, "severity": f.severity, "message": f.message, "value": f.value, "limit": f.limit}
                      for f in plan.findings],
         "tolerance": plan.tolerance,
+        **_shaft_thrusts(plan),
         "cautions": list(CAUTIONS) + ([plan.fabrication.note] if plan.fabrication.note else []),
     }
 
@@ -154,12 +157,19 @@ def report_markdown(data: Mapping[str, Any]) -> str:
                     [[g["name"], g["teeth"], f"{g['module']:g}", f"{g['shift']:+.4f}", f"{g['reference_diameter']:.4f}",
                       f"{g['tip_diameter']:.4f}", f"{g['root_diameter']:.4f}", f"{g['tip_thickness']:.3f}", f"{g['bore']:g}",
                       g["shaft"], g["layer"]] for g in data["gears"]])
+    lines += _helical_gears_markdown(data["gears"])
     lines += ["", "## Meshes", ""]
     for m in data["meshes"]:
         lines += [f"### {m['gears'][0]} with {m['gears'][1]}", "",
                   f"- centre distance {m['centre_distance']:.4f} mm (reference {m['standard_centre_distance']:.4f} mm)",
                   f"- working pressure angle {m['working_pressure_angle']:.4f} deg; contact ratio {m['contact_ratio']:.4f}; "
                   f"backlash {m['backlash']:.4f} mm", ""]
+        if m.get("helix_angle"):
+            lines[-1:] = [f"- helix {m['helix_angle']:g} deg; transverse module {m['transverse_module']:.4f} mm, transverse "
+                          f"pressure angle {m['transverse_pressure_angle']:.4f} deg; overlap ratio {m['overlap_ratio']:.4f}, "
+                          f"total contact ratio {m['total_contact_ratio']:.4f}"
+                          + (f"; axial force on each shaft {m['axial_force']:.4g} N (a bearing that takes thrust)"
+                             if m.get("axial_force") else ""), ""]
         if m["rating"]:
             r = m["rating"]
             lines += [f"Load rating (estimates for light duty): input of this mesh {r['gears'][0]['torque']:.4g} N·m at "
@@ -180,6 +190,10 @@ def report_markdown(data: Mapping[str, Any]) -> str:
     lines += _table(["shaft", "x", "y", "diameter", "back plate", "front plate"],
                     [[s["name"], f"{s['x']:.4f}", f"{s['y']:.4f}", f"{s['diameter']:g}", "yes" if s["back_plate"] else "no",
                       "yes" if s["front_plate"] else "no"] for s in data["shafts"]])
+    if data.get("shaft_axial_forces"):
+        lines += ["", "Axial forces on the shafts from the helical meshes (N, net of each shaft's gears; a bearing "
+                  "that takes thrust wherever it is not 0): " + "; ".join(f"{k} {v:.4g}" for k, v in
+                                                                          data["shaft_axial_forces"].items())]
     lines += ["", "## Files", ""]
     for g in data["gears"] + data["plates"]:
         lines.append(f"- {g['name']}: " + ", ".join(f"`{p}`" for p in g["files"].values() if p))
@@ -187,3 +201,62 @@ def report_markdown(data: Mapping[str, Any]) -> str:
         lines.append(f"- assembly: `{data['assembly']}`")
     lines += ["", "## Cautions", ""] + [f"- {c}" for c in data["cautions"]]
     return "\n".join(lines) + "\n"
+
+
+# -- helical gears (gearcad.meshes.helical) --------------------------------------------------------
+
+def _helical_gear(g, spec) -> dict[str, Any]:
+    """A helical gear's keys: module and shift become the normal ones (mm, degrees)."""
+    gear = g.gear
+    if not hasattr(gear, "hand"):
+        return {}
+    stage = spec.planetary if spec.planetary is not None else (
+        spec.stages[g.stage - 1] if g.stage and g.stage <= len(spec.stages) else None)
+    return {"module": gear.normal_module, "shift": gear.normal_shift, "transverse_module": gear.module,
+            "transverse_shift": gear.shift, "helix_angle": math.degrees(gear.helix_angle), "hand": gear.hand,
+            "lead": gear.lead, "herringbone": bool(stage and stage.herringbone),
+            "pressure_angle": math.degrees(gear.normal_pressure_angle),
+            "transverse_pressure_angle": math.degrees(gear.pressure_angle)}
+
+
+def _helical_mesh(m, spec) -> dict[str, Any]:
+    """A helical mesh's keys (mm, degrees, N)."""
+    g1, g2 = (m.pair.pinion, m.pair.ring) if hasattr(m.pair, "ring") else (m.pair.gear1, m.pair.gear2)
+    if not hasattr(g1, "hand"):
+        return {}
+    overlap = next((f.value for f in m.findings if f.check == "overlap ratio"), None)
+    data = {"helix_angle": math.degrees(g1.helix_angle), "hands": [g1.hand, g2.hand],
+            "transverse_module": g1.module, "transverse_pressure_angle": math.degrees(g1.pressure_angle),
+            "overlap_ratio": overlap, "total_contact_ratio": None if overlap is None else overlap + m.analysis.contact_ratio}
+    if m.rating is not None and hasattr(m.rating, "helical_data"):
+        data["axial_force"] = m.rating.axial_force
+        data["rating_helical"] = m.rating.helical_data()
+    return data
+
+
+def _helical_gears_markdown(gears) -> list[str]:
+    rows = [[g["name"], f"{g['helix_angle']:g}", g["hand"] + (" / other half opposite" if g["herringbone"] else ""),
+             f"{g['lead']:.3f}", f"{g['transverse_module']:.4f}", f"{g['transverse_pressure_angle']:.4f}"]
+            for g in gears if "helix_angle" in g]
+    if not rows:
+        return []
+    return ["", "Helical gears: module and shift above are the normal section's; the DXF and SVG drawings are the "
+            "transverse section at mid-face; the solids are that section swept along the helix.", ""] + _table(
+        ["gear", "helix deg", "hand", "lead", "transverse module", "transverse pressure angle deg"], rows)
+
+
+def _shaft_thrusts(plan) -> dict[str, Any]:
+    """``shaft_axial_forces``: net axial force per shaft (N) when helical meshes are rated, else nothing."""
+    loads = []
+    for m in plan.meshes:
+        force = getattr(m.rating, "axial_force", None)
+        if not force:
+            continue
+        for name, drives in zip(m.names, (True, False)):
+            g = plan.gear(name)
+            loads.append((plan.shafts[g.shaft].name, g.gear.hand, drives, force))
+    if not loads:
+        return {}
+    from .meshes.helical import shaft_axial_forces
+
+    return {"shaft_axial_forces": shaft_axial_forces(loads)}

@@ -35,10 +35,11 @@ __all__ = ["parse_train", "read_train", "train_to_toml"]
 
 TOP_KEYS = {"name", "title", "target", "module", "thickness", "tooth_system", "pressure_angle", "fabrication",
             "bore", "coaxial", "stage", "solve", "planetary", "summing"}
-PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit"}
+PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit", "helix", "hand",
+                  "herringbone", "gap"}
 SUMMING_KEYS = {"differential", "sun", "planet", "planets", "ring", "module", "tube", "axis_distance", "shift_limit"}
-STAGE_KEYS = {"driver", "driven", "module", "idler"}
-GEAR_KEYS = {"teeth", "shift", "bore", "flat", "keyway", "hub"}
+STAGE_KEYS = {"driver", "driven", "module", "idler", "helix", "hand", "herringbone", "gap"}
+GEAR_KEYS = {"teeth", "shift", "bore", "flat", "keyway", "hub", "hand"}
 SOLVE_KEYS = {"ratio", "stages", "min_teeth", "max_teeth", "max_stage_ratio", "direction", "hunting", "coaxial", "exclude"}
 
 
@@ -125,7 +126,8 @@ def _gear(value: Any, key: str, ctx: _Context, index: int) -> GearSpec:
     try:
         return GearSpec(teeth=value["teeth"], shift=_number(value, "shift", ctx, "stage", index, key + ".", default=0.0),
                         bore=_number(value, "bore", ctx, "stage", index, key + "."),
-                        flat=_number(value, "flat", ctx, "stage", index, key + "."), keyway=keyway, hub=hub)
+                        flat=_number(value, "flat", ctx, "stage", index, key + "."), keyway=keyway, hub=hub,
+                        hand=value.get("hand"))
     except InputError as exc:
         raise ctx.error(str(exc), key, "stage", index) from None
 
@@ -141,8 +143,22 @@ def _stages(data: dict, ctx: _Context) -> tuple[StageSpec, ...]:
             if key not in s:
                 raise ctx.error("missing (a tooth count or a gear table)", key, "stage", i)
         idler = _gear(s["idler"], "idler", ctx, i) if "idler" in s else None
-        stages.append(StageSpec(_gear(s["driver"], "driver", ctx, i), _gear(s["driven"], "driven", ctx, i),
-                                _number(s, "module", ctx, "stage", i), idler))
+        helical = {}
+        if "helix" in s:
+            helical["helix"] = _number(s, "helix", ctx, "stage", i)
+        if "gap" in s:
+            helical["gap"] = _number(s, "gap", ctx, "stage", i)
+        for key, kind in (("hand", str), ("herringbone", bool)):
+            if key in s:
+                if not isinstance(s[key], kind):
+                    raise ctx.error("must be \"left\" or \"right\"" if kind is str else "must be true or false", key, "stage", i)
+                helical[key] = s[key]
+        driver, driven = _gear(s["driver"], "driver", ctx, i), _gear(s["driven"], "driven", ctx, i)
+        try:
+            stages.append(StageSpec(driver, driven, _number(s, "module", ctx, "stage", i), idler, **helical))
+        except InputError as exc:
+            key = next((k for k in ("helix", "hand", "herringbone", "gap") if k in str(exc).split(" must")[0]), "helix")
+            raise ctx.error(str(exc), key, "stage", i) from None
     return tuple(stages)
 
 
@@ -198,8 +214,22 @@ def _planetary(data: dict, ctx: _Context) -> PlanetarySpec | None:
     if p is None:
         return None
     counts = _counts(p, ("sun", "planet", "ring", "planets", "planet_ring"), ("sun", "planet", "ring"), ctx, "planetary")
-    return PlanetarySpec(fixed=_text(p, "fixed", ctx, "ring", "planetary"), input=_text(p, "input", ctx, None, "planetary"),
-                         shift_limit=_number(p, "shift_limit", ctx, "planetary"), **counts)
+    helical = {}
+    for key in ("helix", "gap"):
+        if key in p:
+            helical[key] = _number(p, key, ctx, "planetary")
+    if "hand" in p:
+        helical["hand"] = _text(p, "hand", ctx, None, "planetary")
+    if "herringbone" in p:
+        helical["herringbone"] = _flag(p, "herringbone", ctx, "planetary")
+    try:
+        return PlanetarySpec(fixed=_text(p, "fixed", ctx, "ring", "planetary"), input=_text(p, "input", ctx, None, "planetary"),
+                             shift_limit=_number(p, "shift_limit", ctx, "planetary"), **counts, **helical)
+    except InputError as exc:
+        if str(exc).startswith(ctx.filename) or not helical:
+            raise
+        key = next((k for k in ("helix", "hand", "herringbone", "gap") if k in str(exc).split(" must")[0]), "helix")
+        raise ctx.error(str(exc), key, "planetary") from None
 
 
 def _summing(data: dict, ctx: _Context) -> SummingSpec | None:
@@ -266,6 +296,8 @@ def _gear_toml(g: GearSpec) -> str:
         parts.append(f"keyway = {{ width = {g.keyway.width!r}, depth = {g.keyway.depth!r} }}")
     if g.hub is not None:
         parts.append(f"hub = {{ diameter = {g.hub.diameter!r}, length = {g.hub.length!r} }}")
+    if g.hand is not None:
+        parts.append(f"hand = {_quoted(g.hand)}")
     return str(g.teeth) if len(parts) == 1 else "{ " + ", ".join(parts) + " }"
 
 
@@ -297,6 +329,12 @@ def train_to_toml(spec: TrainSpec) -> str:
             lines.append(f"input = {_quoted(p.input)}")
         if p.shift_limit is not None:
             lines.append(f"shift_limit = {p.shift_limit!r}")
+        if p.helix:
+            lines += [f"helix = {p.helix!r}", f"hand = {_quoted(p.hand)}"]
+        if p.herringbone:
+            lines.append("herringbone = true")
+        if p.gap:
+            lines.append(f"gap = {p.gap!r}")
     if spec.summing is not None:
         s = spec.summing
         lines += ["", "# A summing train: the first [[stage]] is path a, the second path b.", "[summing]",
@@ -310,4 +348,10 @@ def train_to_toml(spec: TrainSpec) -> str:
             lines.append(f"module = {stage.module!r}")
         if stage.idler is not None:
             lines.append(f"idler = {_gear_toml(stage.idler)}")
+        if stage.helix:
+            lines += [f"helix = {stage.helix!r}", f"hand = {_quoted(stage.hand)}"]
+        if stage.herringbone:
+            lines.append("herringbone = true")
+        if stage.gap:
+            lines.append(f"gap = {stage.gap!r}")
     return "\n".join(lines) + "\n"

@@ -48,9 +48,12 @@ class GearSpec:
     flat: float | None = None
     keyway: Keyway | None = None
     hub: Hub | None = None
+    hand: str | None = None  # helical stages: the gear's hand, checked against the stage's (None: follow it)
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "teeth", as_int(self.teeth, "tooth count"))
+        if self.hand is not None and self.hand not in ("left", "right"):
+            raise InputError(f"hand must be left or right, got {self.hand!r}")
         object.__setattr__(self, "shift", finite(self.shift, "profile shift"))
         if self.bore is not None and not (math.isfinite(self.bore) and self.bore > 0):
             raise InputError(f"bore must be greater than 0 mm, got {self.bore!r}")
@@ -58,12 +61,42 @@ class GearSpec:
 
 @dataclass(frozen=True)
 class StageSpec:
-    """A driver/driven mesh; ``module`` overrides the train's; ``idler`` adds a gear between."""
+    """A driver/driven mesh; ``module`` overrides the train's; ``idler`` adds a gear between.
+
+    Helical stages: ``helix`` is the helix angle in degrees (0: spur; the module and shifts
+    are then the normal section's), ``hand`` the driver's hand (each mate has the other),
+    ``herringbone`` two halves of opposite hand with a ``gap`` (mm) between them.
+    """
 
     driver: GearSpec
     driven: GearSpec
     module: float | None = None
     idler: GearSpec | None = None
+    helix: float = 0.0
+    hand: str = "right"
+    herringbone: bool = False
+    gap: float = 0.0
+
+    def __post_init__(self) -> None:
+        helix = finite(self.helix, "helix angle")
+        if not 0.0 <= helix < 45.0:
+            raise InputError(f"helix angle must be from 0 to below 45 degrees, got {self.helix!r}")
+        object.__setattr__(self, "helix", helix)
+        if self.hand not in ("left", "right"):
+            raise InputError(f"hand must be left or right, got {self.hand!r}")
+        if self.herringbone and helix == 0:
+            raise InputError("a herringbone stage needs a helix angle above 0 degrees")
+        if not (math.isfinite(self.gap) and self.gap >= 0) or (self.gap and not self.herringbone):
+            raise InputError(f"gap must be 0 mm or more and belongs to a herringbone stage, got {self.gap!r}")
+        mates = [self.driver] + ([self.idler] if self.idler else []) + [self.driven]
+        hand = self.hand
+        for gear in mates:  # external meshes: the hands alternate along the stage
+            if helix and gear.hand is not None and gear.hand != hand:
+                raise InputError(f"hand {gear.hand} of the {gear.teeth}-tooth gear cannot mesh: on an external pair the "
+                                 f"hands are opposite, so this gear must be {hand} (the stage's driver is {self.hand})")
+            hand = "left" if hand == "right" else "right"
+        if not helix and any(g.hand is not None for g in mates):
+            raise InputError("a gear's hand needs a helical stage (helix = DEG)")
 
 
 @dataclass(frozen=True)
@@ -94,6 +127,21 @@ class PlanetarySpec:
     fixed: str = "ring"
     input: str | None = None
     shift_limit: float | None = None
+    helix: float = 0.0  # degrees; the sun's hand is ``hand``, planets and ring take the other
+    hand: str = "right"
+    herringbone: bool = False
+    gap: float = 0.0
+
+    def __post_init__(self) -> None:
+        helix = finite(self.helix, "helix angle")
+        if not 0.0 <= helix < 45.0:
+            raise InputError(f"helix angle must be from 0 to below 45 degrees, got {self.helix!r}")
+        if self.hand not in ("left", "right"):
+            raise InputError(f"hand must be left or right, got {self.hand!r}")
+        if self.herringbone and helix == 0:
+            raise InputError("a herringbone set needs a helix angle above 0 degrees")
+        if not (math.isfinite(self.gap) and self.gap >= 0) or (self.gap and not self.herringbone):
+            raise InputError(f"gap must be 0 mm or more and belongs to a herringbone set, got {self.gap!r}")
 
 
 DIFFERENTIALS = ("mean", "planetary")
@@ -173,6 +221,15 @@ class TrainSpec:
             raise InputError(f"bore must be greater than 0 mm, got {self.bore!r}")
         if self.summing is not None and len(self.stages) != 2:
             raise InputError(f"a summing train needs exactly two [[stage]] tables (path A, path B), got {len(self.stages)}")
+        for stage in self.stages:
+            if stage.gap >= self.thickness:
+                raise InputError(f"herringbone gap {stage.gap:g} mm must be narrower than the face width (thickness) {self.thickness:g} mm")
+        if (self.summing is not None or self.planetary is not None) and any(s.helix for s in self.stages):
+            raise InputError("helix is available on the stages of compound trains and in a [planetary] table; "
+                             "summing trains take spur gears only (remove helix from their stages)")
+        if self.planetary is not None and self.planetary.gap >= self.thickness:
+            raise InputError(f"herringbone gap {self.planetary.gap:g} mm must be narrower than the face width "
+                             f"(thickness) {self.thickness:g} mm")
         if self.summing is not None and (self.planetary is not None or self.coaxial):
             raise InputError("a summing train cannot also be planetary or coaxial")
         if not self.stages and self.solver is None and self.planetary is None:

@@ -38,6 +38,9 @@ def add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--stl-angle", type=float, default=15.0, metavar="DEG",
                    help="STL angular tolerance, degrees (default 15; the chord tolerance governs accuracy)")
     p.add_argument("--no-assembly", action="store_true", help="skip the assembly STEP")
+    p.add_argument("--laminations", type=int, default=0, metavar="N",
+                   help="helical gears: also write N laminations per gear (DXF/SVG), each the section turned by its "
+                        "share of the twist, to stack from sheets of face width / N (2 to 200)")
     p.add_argument("--json", action="store_true", help="print report.json's content on stdout instead of the summary")
     add_load_options(p)
 
@@ -65,7 +68,17 @@ def _options(args: argparse.Namespace, extra_files=()):
                         stl_tolerance=in_range(args.stl_tolerance, "--stl-tolerance", 1e-3, 1.0, "mm"),
                         stl_angle=in_range(args.stl_angle, "--stl-angle", 0.5, 45.0, "degrees"),
                         assembly=not args.no_assembly, extra_files=tuple(extra_files),
-                        dxf_layers=_layer_spec(args.dxf_layers))
+                        dxf_layers=_layer_spec(args.dxf_layers), laminations=_laminations(args))
+
+
+def _laminations(args: argparse.Namespace) -> int:
+    from ..errors import InputError
+    from ..meshes.helical import MAX_LAMINATIONS
+
+    n = getattr(args, "laminations", 0)
+    if n and not 2 <= n <= MAX_LAMINATIONS:
+        raise InputError(f"--laminations must be from 2 to {MAX_LAMINATIONS}, got {n}")
+    return n
 
 
 def _layer_spec(text: str) -> tuple[tuple[str, str, int], ...]:

@@ -40,6 +40,10 @@ def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParse
     p.add_argument("--system", default="iso53-a", metavar="NAME", help="tooth system (default iso53-a)")
     p.add_argument("--bore", type=float, default=3.0, metavar="MM", help="shaft diameter, mm (default 3)")
     p.add_argument("--name", default="design", help="train name: output folder and file prefix (default design)")
+    p.add_argument("--helix", type=float, metavar="DEG",
+                   help="helical gears: helix angle of every stage, degrees (0 to below 45); --module is then the normal module")
+    p.add_argument("--hand", choices=("left", "right"), default="right", help="hand of the input gear (default right)")
+    p.add_argument("--herringbone", action="store_true", help="herringbone stages (needs --helix)")
     add_output_options(p)
     return p
 
@@ -62,6 +66,20 @@ def run(args: argparse.Namespace) -> int:
         from ..errors import InputError
 
         raise InputError("--separate-axes cannot be built: gearcad design needs both paths on one axle")
+    if args.helix is not None:
+        from ..meshes.helical import check_helix
+
+        check_helix(args.helix, "helix angle (--helix)")
+    if args.helix is None and args.herringbone:
+        from ..errors import InputError
+
+        raise InputError("--herringbone needs a helix angle: give --helix DEG")
+    if args.helix is not None and args.kind in ("planetary", "summing"):
+        from ..errors import InputError
+
+        hint = ("; for a helical set, add helix = DEG to the [planetary] table of the train file it writes"
+                if args.kind == "planetary" else "")
+        raise InputError(f"--helix applies to compound trains only in gearcad design; --kind {args.kind} takes spur gears{hint}")
     if args.kind == "planetary":
         return _design_planetary(args)
     if args.kind == "summing":
@@ -78,7 +96,7 @@ def run(args: argparse.Namespace) -> int:
     base = TrainSpec(name=args.name, module=args.module, thickness=args.thickness, stages=(), target=args.target,
                      tooth_system=args.system, fabrication=args.profile, bore=args.bore, solver=solver,
                      title=f"Train for {args.target}")
-    spec = spec_with_stages(base, train)
+    spec = spec_with_stages(base, train, helix=args.helix or 0.0, hand=args.hand, herringbone=args.herringbone)
     return build_and_write(spec, args, (("train.toml", train_to_toml(spec)),))
 
 

@@ -20,7 +20,10 @@ Defaults: 20 degrees, ISO 53 profile A, tips shortened to keep the bottom cleara
 Internal pair (a pinion inside a ring gear): give the ring's teeth negative, as
 ISO 21771 does, e.g.  gearcad pair 16 -24 -m 3 --shift 0 -0.516
 Shifts keep ISO 21771's sign (positive towards the tooth tips, for the ring
-towards its axis).  The ring is cut by a pinion-type cutter (--cutter-teeth)."""
+towards its axis).  The ring is cut by a pinion-type cutter (--cutter-teeth).
+
+Helical pair: add --helix DEG (and --hand, --herringbone); the module, pressure
+angle and shifts are then the normal section's, e.g.  gearcad pair 12 60 -m 3 --helix 30"""
 
 
 def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParser:
@@ -54,6 +57,9 @@ def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParse
     p.add_argument("--mate-material", metavar="NAME", help="material of gear 2, if it differs")
     p.add_argument("--made-by", choices=("laser", "fdm", "cnc"), default="cnc",
                    help="how the teeth are made, for the velocity factor (default cnc)")
+    from ._helical import add_helix_options
+
+    add_helix_options(p)
     return p
 
 
@@ -91,6 +97,10 @@ def run(args: argparse.Namespace) -> int:
         from ..errors import InputError
 
         raise InputError(f"tooth count z1 must be positive (only gear 2 may be a ring, given negative), got {z1}")
+    from ._helical import run_helical, wants_helix
+
+    if wants_helix(args):
+        return run_helical(args, system, z1, z2, _show)
     if z2 < 0:
         return _run_internal(args, system, z1, -z2)
     if args.cutter_teeth is not None or args.cutter_shift:
@@ -197,6 +207,8 @@ def _show(args: argparse.Namespace, pair, analysis, to_dict, render_table) -> in
             from ..report import rating_data
 
             data["rating"] = rating_data(rating)
+            if hasattr(rating, "helical_data"):
+                data["rating"].update(rating.helical_data())
             data["findings"] = [finding_to_dict(f) for f in findings]
             data["verdict"] = _worst(findings)
         print_json(data)
@@ -213,10 +225,15 @@ def _rating(args: argparse.Namespace, pair):
     from ..strength import PROCESS_CLASS, rate_internal_pair, rate_pair
     from ..validate import positive
 
-    width = positive(args.face_width, "face width", "mm") if args.face_width is not None else 10 * pair.module
+    width = positive(args.face_width, "face width", "mm") if args.face_width is not None else 10 * getattr(getattr(pair, "gear1", None), "normal_module", pair.module)
     first = load_material(args.material)
     second = load_material(args.mate_material) if args.mate_material else first
     rate = rate_internal_pair if hasattr(pair, "ring") else rate_pair
+    if hasattr(getattr(pair, "gear1", None), "hand"):  # a helical pair
+        from ..meshes.helical_rating import rate_helical_pair
+
+        return rate_helical_pair(pair, load.torque, load.speed, width, first, second, PROCESS_CLASS[args.made_by],
+                                 herringbone=args.herringbone, gap_mm=args.gap)
     return rate(pair, load.torque, load.speed, width, first, second, PROCESS_CLASS[args.made_by])
 
 

@@ -37,6 +37,7 @@ class BuildOptions:
     preview: bool = True
     extra_files: tuple[tuple[str, str], ...] = field(default=())  # (name, text) written as they are
     dxf_layers: tuple[tuple[str, str, int], ...] = ()  # (role, layer name, colour) remappings
+    laminations: int = 0  # helical gears: also write this many turned laminations per gear (DXF, SVG)
 
 
 def prepare_folder(folder: Path, force: bool) -> list[str]:
@@ -102,6 +103,17 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
             if options.dxf_mode == "splines":  # SVG takes arcs, not spline fit points
                 drawing = part_drawing(g.cut_part, "arcs", options.dxf_tolerance, at, height)
             write_svg(drawing, put(g.name, "svg", f"{g.name}.svg"))
+        if options.laminations and hasattr(g.gear, "hand"):
+            for lam in _laminations(plan, g, options.laminations):
+                if "dxf" in options.formats:
+                    note(f"DXF {lam.name}")
+                    drawing = part_drawing(lam, options.dxf_mode, options.dxf_tolerance, at, height)
+                    warnings += write_dxf(drawing, put(lam.name, "dxf", f"{lam.name}.dxf"), version=options.dxf_version,
+                                          layers=_layers(options))
+                if "svg" in options.formats:  # SVG takes arcs, not spline fit points
+                    mode = "arcs" if options.dxf_mode == "splines" else options.dxf_mode
+                    write_svg(part_drawing(lam, mode, options.dxf_tolerance, at, height),
+                              put(lam.name, "svg", f"{lam.name}.svg"))
     margin = plan.fabrication.plate_margin
     for p in plan.plates:
         drawing = part_drawing(p.cut_part, options.dxf_mode, options.dxf_tolerance, (plan.layout.width / 2, margin / 2),
@@ -136,6 +148,37 @@ def _layers(options: BuildOptions) -> dict[str, tuple[str, int]] | None:
     return {role: (name, colour) for role, name, colour in options.dxf_layers} or None
 
 
+def _laminations(plan, g, count: int):
+    """The cut laminations of helical gear ``g`` (see gearcad.meshes.helical.lamination_parts)."""
+    from ..meshes.helical import lamination_parts
+
+    herringbone, gap = _helix_style(plan, g)
+    thickness = plan.spec.thickness
+    return lamination_parts(g.cut_part, count, thickness, g.gear.twist(thickness), herringbone, gap,
+                            turn_holes=_is_ring(g))
+
+
+def _is_ring(g) -> bool:
+    return hasattr(g.gear, "cutter_teeth")
+
+
+def _helix_style(plan, g) -> tuple[bool, float]:
+    """Herringbone or not, and the gap (mm), of a helical gear: its stage's, or the planetary set's."""
+    style = plan.spec.planetary if plan.spec.planetary is not None else plan.spec.stages[g.stage - 1]
+    return style.herringbone, style.gap
+
+
+def _gear_build(plan, g, thickness: float):
+    """A gear's solid: straight, or swept along its helix (the drawn part is the section at mid-face)."""
+    from .step import build_solid, helical_solid
+
+    if not hasattr(g.gear, "hand"):
+        return build_solid(g.part, thickness, plan.tolerance)
+    herringbone, gap = _helix_style(plan, g)
+    return helical_solid(g.part, thickness, g.gear.twist(thickness), plan.tolerance, herringbone=herringbone,
+                         gap=gap, gap_diameter=g.gear.root_diameter, twist_holes=_is_ring(g))
+
+
 def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
     from .step import AssemblyItem, build_solid, kernel_quiet, with_hub, write_step, write_stl
 
@@ -144,7 +187,7 @@ def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
     with kernel_quiet():
         for g in plan.gears:
             note(f"solid {g.name}")
-            built = build_solid(g.part, thickness, plan.tolerance)
+            built = _gear_build(plan, g, thickness)
             if g.hub is not None:
                 built = with_hub(built, g.hub, thickness, g.hub_length, plan.tolerance)
             solid = built.solid

@@ -147,8 +147,22 @@ class _Cutter:
     tip_line: float  # v of the cutter's flat tip (gives the root circle)
     round_u: float  # u of the tip round's centre (right flank)
     round_v: float  # v of the tip round's centre
-    radius: float  # tip round radius
+    radius: float  # tip round radius (its semi-axis across the rack)
     alpha: float
+    stretch: float = 1.0  # semi-axis along the rack over ``radius``: 1 a circle, 1/cos(beta) a helical gear's transverse rack
+
+    def round_offset(self, beta: np.ndarray | float) -> tuple:
+        """Offset (du, dv) from the round's centre of its point whose outward normal has angle ``beta`` (radians).
+
+        A circle: ``rho (cos b, sin b)``.  An ellipse with semi-axes ``(a_u, a_v)``:
+        ``(a_u² cos b, a_v² sin b) / sqrt(a_u² cos² b + a_v² sin² b)``.
+        """
+        if self.stretch == 1.0:
+            return self.radius * np.cos(beta), self.radius * np.sin(beta)
+        a_u, a_v = self.radius * self.stretch, self.radius
+        c, s = np.cos(beta), np.sin(beta)
+        norm = np.sqrt((a_u * c) ** 2 + (a_v * s) ** 2)
+        return a_u * a_u * c / norm, a_v * a_v * s / norm
 
 
 def _cutter(gear: SpurGear) -> _Cutter:
@@ -158,17 +172,27 @@ def _cutter(gear: SpurGear) -> _Cutter:
     tip_line = datum - sys_.dedendum * m
     rho = sys_.fillet_radius * m
     round_v = tip_line + rho
-    round_u = math.pi * m / 4 + (round_v - datum) * math.tan(alpha) - rho / math.cos(alpha)
-    return _Cutter(tip_line, max(round_u, 0.0), round_v, rho, alpha)
+    stretch = sys_.fillet_stretch
+    if stretch == 1.0:
+        round_u = math.pi * m / 4 + (round_v - datum) * math.tan(alpha) - rho / math.cos(alpha)
+    else:  # the round's point with normal angle -alpha lies on the flank
+        du, dv = _Cutter(tip_line, 0.0, round_v, rho, alpha, stretch).round_offset(-alpha)
+        round_u = math.pi * m / 4 + (round_v + dv - datum) * math.tan(alpha) - du
+    return _Cutter(tip_line, max(round_u, 0.0), round_v, rho, alpha, stretch)
 
 
 def _fillet_points(gear: SpurGear, cutter: _Cutter, beta: np.ndarray) -> np.ndarray:
     """Gear-frame points cut by the tip round at normal angles ``beta`` (radians)."""
     r = gear.reference_diameter / 2
     beta = np.asarray(beta, dtype=float)
-    u = cutter.round_u + cutter.radius * np.cos(beta)
-    v = cutter.round_v + cutter.radius * np.sin(beta)
-    s = cutter.round_v * np.cos(beta) / np.sin(beta) - cutter.round_u
+    if cutter.stretch == 1.0:
+        u = cutter.round_u + cutter.radius * np.cos(beta)
+        v = cutter.round_v + cutter.radius * np.sin(beta)
+        s = cutter.round_v * np.cos(beta) / np.sin(beta) - cutter.round_u
+    else:  # law of gearing at the ellipse's point: s = v n_u / n_v - u
+        du, dv = cutter.round_offset(beta)
+        u, v = cutter.round_u + du, cutter.round_v + dv
+        s = v * np.cos(beta) / np.sin(beta) - u
     return _to_gear_frame(gear, u + s, r + v, s / r)
 
 
@@ -211,7 +235,10 @@ def _flank_start_roll(gear: SpurGear, cutter: _Cutter) -> float:
     r = gear.reference_diameter / 2
     rb = gear.base_diameter / 2
     a = cutter.alpha
-    depth = -(cutter.round_v - cutter.radius * math.sin(a))
+    if cutter.stretch == 1.0:
+        depth = -(cutter.round_v - cutter.radius * math.sin(a))
+    else:
+        depth = -(cutter.round_v + float(cutter.round_offset(-a)[1]))
     return (r * math.sin(a) - depth / math.sin(a)) / rb
 
 

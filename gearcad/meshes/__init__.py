@@ -1,0 +1,1 @@
+"""Meshes: the figures, checks and load ratings of meshing pairs (pure, numpy)."""
