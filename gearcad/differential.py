@@ -220,9 +220,10 @@ def plan_summing(spec: TrainSpec, tolerance: float, load: InputLoad | None = Non
         problem, keys = _layout_problem(paths, trial, diff, build.bores, fab, top)
         pos = np.array([trial[k] for k in keys])
         shortfall = clearance_shortfall(problem, pos)
-        layouts.append((shortfall > 1e-9, _extent(problem, pos), shortfall, problem, keys, pos))
-    layouts.sort(key=lambda t: (t[0], t[1]))
-    bad, _, shortfall, problem, keys, pos = layouts[0]
+        one_sided = sum(not (back and front) for back, front in shaft_sides(problem, pos))
+        layouts.append((shortfall > 1e-9, one_sided, _extent(problem, pos), shortfall, problem, keys, pos))
+    layouts.sort(key=lambda t: t[:3])
+    bad, _, _, shortfall, problem, keys, pos = layouts[0]
     if bad:
         raise InputError(f"the differential and the paths' gears do not clear each other (short by {shortfall:.2f} mm): "
                          "the input shaft passes the differential, so the axle must be farther from it: use a smaller "
@@ -256,7 +257,10 @@ def _layout_problem(paths, positions: dict, diff, bores: dict, fab: Fabrication,
     for layer, radius in diff.envelope():
         gears.append(LayoutGear(f"differential-{layer}", index["axle"], layer, radius))
     radii = tuple(bores[k] / 2 for k in keys)
-    return LayoutProblem(radii, tuple(gears), (), frozenset(meshes), fab.gear_clearance, fab.plate_margin), keys
+    # One plate at least is the rule here (the loop is fixed by construction); the choice of idler sides prefers the
+    # placements that let more shafts reach both plates (see plan_summing).
+    return LayoutProblem(radii, tuple(gears), (), frozenset(meshes), fab.gear_clearance, fab.plate_margin,
+                         both_plates=False), keys
 
 
 def _path_gears(build: _Build, paths, placed: dict, top: int) -> None:
@@ -312,7 +316,8 @@ class _MeanDifferential:
         self.spread = 2 * math.asin(chord / (2 * self.radius))  # angle between an a planet and its b mate
         self.pin = spec.bore
         self.sun, self.planet = self.sun_pair.gear1, self.sun_pair.gear2
-        self.carrier_radius = self.radius + self.pin / 2 + max(2.0, 2 * self.m)
+        # The pin holes at least their own diameter from the disc's edge (gearcad.trains.supports.EDGE_RULE).
+        self.carrier_radius = self.radius + max(self.pin / 2 + max(2.0, 2 * self.m), 1.5 * (self.pin + fab.bore_clearance))
 
     def room(self) -> float:
         """Least axle distance at which the input shaft clears the differential, mm."""
@@ -459,7 +464,8 @@ class _PlanetaryDifferential:
         self.rim = rim
         self.pin = spec.bore
         self.radius = self.sun_pair.centre_distance
-        self.carrier_radius = self.radius + self.pin / 2 + max(2.0, 2 * self.m)
+        # The pin holes at least their own diameter from the disc's edge (gearcad.trains.supports.EDGE_RULE).
+        self.carrier_radius = self.radius + max(self.pin / 2 + max(2.0, 2 * self.m), 1.5 * (self.pin + fab.bore_clearance))
 
     def room(self) -> float:
         return 0.0  # the ring's outside teeth set the axle distance; nothing else reaches the input shaft
