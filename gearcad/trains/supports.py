@@ -180,7 +180,10 @@ def _sweeps(plan) -> list[Sweep]:
             r = math.hypot(s.x - centre[0], s.y - centre[1])
             out.append(Sweep(g.name, centre[0], centre[1], r + tip, max(r - tip, 0.0), g.z, top))
         else:
-            out.append(Sweep(g.name, s.x, s.y, tip, 0.0, g.z, top))
+            out.append(Sweep(g.name, s.x, s.y, tip, 0.0, g.z, g.z + t))
+            if g.hub is not None and g.hub_length > 0:
+                hub = float(np.hypot(*g.hub.outer.points().T).max())
+                out.append(Sweep(f"{g.name}-hub", s.x, s.y, hub, 0.0, g.z + t, top))
     for p in plan.plates:
         if p.name in FRAME or p.name.startswith("bridge-"):
             continue
@@ -415,8 +418,9 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
     hole = fab.spacer_hole
     pillar_d = 2 * w.nominal
     half = max(EDGE_RULE * hole + hole / 2, EDGE_RULE * (s.diameter + fab.bore_clearance) * 1.5, pillar_d / 2)
-    if side == "front":
-        zb = max(_gear_top(g, t) for g in gears) + fab.layer_gap
+    if side == "front":  # above the top of its layer (hubs included): the room the plan left
+        layer = max(g.layer for g in gears)
+        zb = max(_gear_top(g, t) for g in plan.gears if g.layer == layer) + fab.layer_gap
         pz0, pz1 = w.back_z + t, zb
     else:
         zb = min(g.z for g in gears) - fab.layer_gap - t
@@ -476,8 +480,9 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
 
     part = Part(name, _stadium(p1, p2, half, plan.tolerance), (), holes, f"{plan.spec.name} {name}")
     w.bridges.append(PlannedPlate(name, part, kerf_cut(part, fab, plan.tolerance), zb))
+    ends = (w.back_z, zb + t) if side == "front" else (zb, w.front_z + t)
     for k, p in enumerate((p1, p2), start=1):
-        _pillar(w, f"{name}-pillar-{k}", float(p[0]), float(p[1]), pz0, pz1, (plate[0], name))
+        _pillar(w, f"{name}-pillar-{k}", float(p[0]), float(p[1]), pz0, pz1, (plate[0], name), ends, tapped=True)
     supports = [plate, (name, zb)]
     return _frame_shaft(w, i, s, gears, supports, "arbor")
 
@@ -485,11 +490,18 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
 # -- pillars -----------------------------------------------------------------------------------
 
 def _pillar(w: _Work, name: str, x: float, y: float, z0: float, z1: float, holds: tuple[str, ...],
-            bolt_z: tuple[float, float] | None = None) -> None:
-    """A pillar (a sleeve over a through screw) from ``z0`` to ``z1``, and its screw through the plates it holds."""
+            bolt_z: tuple[float, float] | None = None, tapped: bool = False) -> None:
+    """A pillar (a sleeve over a through screw) from ``z0`` to ``z1``, and its screw through the plates it holds.
+
+    ``tapped``: the screw comes in from the outside of the frame plate and ends flush in a thread tapped in the
+    bridge (nothing stands out into the layer beyond the bridge); otherwise a nut and washer close it.
+    """
     hole = w.fab.spacer_hole
     w.rods.append(Rod(name, "pillar", x, y, 2 * w.nominal, hole, z0, z1, holds))
     lo, hi = bolt_z if bolt_z else (z0 - w.t, z1 + w.t)
+    if tapped:
+        w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, hi, holds, thread=w.screw))
+        return
     nut = 0.8 * w.nominal + 0.5 * w.nominal  # nut (ISO 4032, 0.8 d, from memory) and a washer
     length = _screw_length(hi - lo + nut)
     w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, lo + length, holds, thread=w.screw))
