@@ -552,9 +552,16 @@ def _finish(build: _Build, spec, system, fab, layout, placed, sides, keys, diff,
     if diff.kind == "planetary":
         diff.rephase_path_b(build, placed, paths)
     pitch = spec.thickness + fab.layer_gap
+    # An idler that reaches one plate only is held at its other end by a bridge (gearcad.trains.supports): leave
+    # room for it above path A's layer (idler a) or below path B's (idler b).
+    from .trains.supports import bridge_room
+
+    room = bridge_room(spec.thickness, fab.layer_gap)
+    room_a = "idler-a" in sides and not sides["idler-a"][1]
+    room_b = "idler-b" in sides and not sides["idler-b"][0]
 
     def z_of(layer: int) -> float:
-        return fab.layer_gap + layer * pitch
+        return fab.layer_gap + layer * pitch + (room if room_a and layer >= 1 else 0.0) + (room if room_b and layer >= top else 0.0)
 
     shaft_keys = list(keys) + [k for k, _ in diff.pins]
     names = {"input": "input", "axle": "differential", "idler-a": "idler-a", "idler-b": "idler-b"}
@@ -568,10 +575,12 @@ def _finish(build: _Build, spec, system, fab, layout, placed, sides, keys, diff,
     for g in build.gears:
         planned.append(PlannedGear(g.name, g.role, g.stage, g.gear, g.spec, index[g.shaft], g.layer, g.bore, g.part,
                                    g.cut, g.rotation, z_of(g.layer), label_at=g.label_at))
-    front_z = z_of(top + 1)
-    plates = list(frame_plates(spec, fab, layout, shafts, tolerance, front_z))
     axle = np.array([shafts[index["axle"]].x, shafts[index["axle"]].y])
-    plates += diff.plates(build, axle, z_of)
+    discs = diff.plates(build, axle, z_of)
+    # The front plate above the top layer and above every disc (the planetary differential's carrier sits one
+    # layer above path B).
+    front_z = max([z_of(top + 1)] + [p.z + spec.thickness + fab.layer_gap for p in discs])
+    plates = list(frame_plates(spec, fab, layout, shafts, tolerance, front_z)) + list(discs)
     signed = _network_ratio(spec, paths, diff)
     rho = [_path_ratio(p) for p in paths]
     expected = diff.formula(*rho)

@@ -34,7 +34,7 @@ from .trainspec import GearSpec, Hub, Keyway, PlanetarySpec, SolverSpec, StageSp
 __all__ = ["parse_train", "read_train", "train_to_toml"]
 
 TOP_KEYS = {"name", "title", "target", "module", "thickness", "tooth_system", "pressure_angle", "fabrication",
-            "bore", "coaxial", "stage", "solve", "planetary", "summing"}
+            "bore", "coaxial", "stage", "solve", "planetary", "summing", "join"}
 PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit"}
 SUMMING_KEYS = {"differential", "sun", "planet", "planets", "ring", "module", "tube", "axis_distance", "shift_limit"}
 STAGE_KEYS = {"driver", "driven", "module", "idler"}
@@ -234,11 +234,11 @@ def parse_train(text: str, filename: str = "train file") -> TrainSpec:
             stages=_stages(data, ctx), tooth_system=_text(data, "tooth_system", ctx, "iso53-a"),
             pressure_angle=_number(data, "pressure_angle", ctx), fabrication=_text(data, "fabrication", ctx, "laser-3mm-acrylic"),
             bore=_number(data, "bore", ctx, default=3.0), coaxial=_flag(data, "coaxial", ctx), solver=_solver(data, ctx),
-            planetary=_planetary(data, ctx), summing=_summing(data, ctx))
+            planetary=_planetary(data, ctx), summing=_summing(data, ctx), join=_text(data, "join", ctx))
     except InputError as exc:
         if str(exc).startswith(filename):
             raise
-        key = next((k for k in ("thickness", "module", "bore", "name") if k in str(exc).split(" must")[0]), "name")
+        key = next((k for k in ("thickness", "module", "bore", "join", "name") if k in str(exc).split(" must")[0]), "name")
         raise ctx.error(str(exc), key) from None
 
 
@@ -287,6 +287,8 @@ def train_to_toml(spec: TrainSpec) -> str:
     lines += [f"fabrication = {_quoted(spec.fabrication)}", f"bore = {spec.bore!r}"]
     if spec.coaxial:
         lines.append("coaxial = true")
+    if spec.join:
+        lines.append(f"join = {_quoted(spec.join)}")
     if spec.planetary is not None:
         p = spec.planetary
         lines += ["", "[planetary]", f"sun = {p.sun}", f"planet = {p.planet}", f"ring = {p.ring}", f"planets = {p.planets}"]

@@ -312,8 +312,12 @@ def test_coaxial_output_turns_on_a_pipe_through_the_front_plate():
 @pytest.mark.parametrize("name, method", [("COMPOUND", "pinned"), ("PRINTED", "fused"), ("MILLED", "flat")])
 def test_compound_pairs_are_joined_as_the_process_allows(name, method):
     plan = plan_of(name)
-    joins = plan.mechanism.joins
+    joins = [j for j in plan.mechanism.joins if len(j.gears) == 2]
     assert [j.method for j in joins] == [method] * 2
+    # The input's and output's gears are fixed to their shafts by a D-flat.
+    ends = [j for j in plan.mechanism.joins if len(j.gears) == 1]
+    assert {j.shaft for j in ends} == {"input", "output"}
+    assert all(plan.gear(j.gears[0]).part.holes for j in ends)
     for j in joins:
         gears = [plan.gear(n) for n in j.gears]
         if method == "pinned":

@@ -20,10 +20,10 @@ import math
 from dataclasses import dataclass
 
 from ..checks import Finding
+from ..trainspec import JOINS
 
 __all__ = ["Join", "JOINS", "DEFAULT_JOIN", "join_compounds"]
 
-JOINS = ("fused", "pinned", "flat")
 DEFAULT_JOIN = {"fdm": "fused", "laser": "pinned", "cnc": "flat"}
 FLAT_DEPTH = 0.1  # a D-flat takes this share of the shaft diameter; common practice (D-shafts of small motors)
 PIN_SIZES = (1.0, 1.5, 2.0, 2.5, 3.0, 4.0)  # dowel pins, ISO 2338 diameters (from memory)
@@ -91,8 +91,14 @@ def _flat(plan, gears):
     return out
 
 
+def _pipe_output(plan, index: int) -> bool:
+    """A coaxial train's output: its gear is fixed to the output pipe (glued), not to a shaft."""
+    return bool(plan.spec.coaxial) and index == len(plan.shafts) - 1
+
+
 def join_compounds(plan, rods) -> tuple[object, list[Join], list[Finding]]:
-    """Join the gears of every compound shaft of a compound train; the plan with its gears changed, the joins, findings."""
+    """Join the gears of every compound shaft of a compound train, and fix the input's and output's gears to their
+    shafts; the plan with its gears changed, the joins, findings."""
     if plan.spec.planetary is not None or plan.spec.summing is not None:
         return plan, [], []
     method = _method(plan)
@@ -100,6 +106,15 @@ def join_compounds(plan, rods) -> tuple[object, list[Join], list[Finding]]:
     joins, findings = [], []
     for i, s in enumerate(plan.shafts):
         members = [g for g in gears if g.shaft == i]
+        if len(members) == 1 and s.name in ("input", "output") and not _pipe_output(plan, i):
+            # The input's gear must take the drive from its shaft, the output's give it to a hand or a coupling.
+            g = members[0]
+            if g.spec.flat is None and g.spec.keyway is None:
+                gears[gears.index(g)] = _flat(plan, [g])[0]
+            joins.append(Join(s.name, (g.name,), "flat",
+                              f"{g.name} is fixed to the {s.name} shaft: its bore has a D-flat (or its keyway); file or "
+                              "grind the matching flat on the shaft (or fit the key)"))
+            continue
         if len(members) < 2:
             continue
         names = tuple(g.name for g in members)

@@ -368,6 +368,7 @@ def _respace(w: _Work, s, spans, rest, frame) -> None:
     t = w.t
     w.rods[:] = [r for r in w.rods if not (r.kind == "spacer" and r.name.startswith(f"{s.name}-spacer-"))]
     occupied = [(z, z + t) for _, z in frame] + spans + [(g.z, _gear_top(g, t)) for g in rest]
+    occupied += [(p.z, p.z + t) for p in _holding_discs(w.plan, s)]  # carrier discs riding on the axle
     zs = sorted(z for _, z in frame)
     _spacers(w, s.name, s.x, s.y, s.diameter, occupied, zs[0] + t, zs[-1])
 
@@ -478,7 +479,7 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
     from ..epicyclic import kerf_cut
     from ..plan import PlannedPlate
 
-    part = Part(name, _stadium(p1, p2, half, plan.tolerance), (), holes, f"{plan.spec.name} {name}")
+    part = Part(name, _stadium(p1, p2, half, plan.tolerance), (), holes)  # too narrow for a marking
     w.bridges.append(PlannedPlate(name, part, kerf_cut(part, fab, plan.tolerance), zb))
     ends = (w.back_z, zb + t) if side == "front" else (zb, w.front_z + t)
     for k, p in enumerate((p1, p2), start=1):
