@@ -285,7 +285,10 @@ def _layout(spec: TrainSpec, chain: _Chain, pairs, bores: dict[int, float], fab:
     coaxial = (0, chain.shafts - 1) if spec.coaxial else None
     if spec.coaxial and any(s.idler for s in spec.stages):
         raise InputError("a coaxial train cannot carry idlers")
-    problem = LayoutProblem(tuple(bores[s] / 2 for s in range(chain.shafts)), gears, links, meshes,
+    from .trains.supports import SPACER_WALL
+
+    # What passes the gears of other layers is the shaft with its spacer tube on it.
+    problem = LayoutProblem(tuple(bores[s] / 2 + SPACER_WALL for s in range(chain.shafts)), gears, links, meshes,
                             fab.gear_clearance, fab.plate_margin, coaxial)
     return problem, solve_layout(problem)
 

@@ -100,8 +100,8 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
         "joins": _joins(plan),
         "parts": parts_list(plan, files),
         "sequence": assembly_steps(plan),
-        "plates": [{"name": p.name, "width": plan.layout.width, "height": plan.layout.height, "z": p.z,
-                    "files": _files(files, p.name, ("dxf", "step", "svg"))} for p in plan.plates],
+        "plates": [{"name": p.name, **_extent(plan, p), "z": p.z, "files": _files(files, p.name, ("dxf", "step", "svg"))}
+                   for p in plan.plates],
         "layout": {"area": plan.layout.area, "width": plan.layout.width, "height": plan.layout.height,
                    "search": plan.layout.search},
         "assembly": _assembly(plan, files),
@@ -113,6 +113,15 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
         "tolerance": plan.tolerance,
         "cautions": list(CAUTIONS) + ([plan.fabrication.note] if plan.fabrication.note else []),
     }
+
+
+def _extent(plan: Plan, plate) -> dict[str, float]:
+    """A plate's width and height: the frame's, or the bounding box of a carrier disc or bridge, mm."""
+    if plate.name in ("back-plate", "front-plate"):
+        return {"width": plan.layout.width, "height": plan.layout.height}
+    pts = plate.part.outer.points()
+    size = pts.max(axis=0) - pts.min(axis=0)
+    return {"width": float(size[0]), "height": float(size[1])}
 
 
 def _shafts(plan: Plan) -> list[dict[str, Any]]:

@@ -58,29 +58,57 @@ def parts_list(plan, files: Mapping[str, Mapping[str, str]]) -> list[dict[str, A
     return rows
 
 
+def _bridge_side(plan, bridge: str) -> str:
+    """``back`` when a bridge stands on the back plate (it holds a shaft's front end), else ``front``."""
+    pillars = [r for r in plan.mechanism.rods if r.kind == "pillar" and bridge in r.supports]
+    return "back" if any("back-plate" in r.supports for r in pillars) else "front"
+
+
+def _stack(plan, shaft_names: set[str], reverse: bool) -> list[str]:
+    """Gears, spacers, pipes and pins on the named shafts in z order (``reverse``: from the front down)."""
+    mech = plan.mechanism
+    items = [(g.z, f"gear {g.name} on {plan.shafts[g.shaft].name}") for g in plan.gears
+             if plan.shafts[g.shaft].name in shaft_names]
+    items += [(r.z0, f"{_WHAT[r.kind]} {r.name} ({r.length:.2f} mm)") for r in mech.rods
+              if r.kind in ("spacer", "pipe", "dowel") and any(r.name.startswith(f"{n}-") or r.name == n
+                                                                 for n in shaft_names)]
+    return [what for _, what in sorted(items, key=lambda t: t[0], reverse=reverse)]
+
+
 def assembly_steps(plan) -> list[str]:
-    """Numbered assembly steps (without the numbers), from the back plate up."""
+    """Numbered assembly steps (without the numbers): joins, the front plate's bridges, then from the back plate up."""
     mech = plan.mechanism
     if mech is None:
         return []
-    steps = []
-    for j in mech.joins:
-        steps.append(f"Join {' and '.join(j.gears)}: {j.note}.")
+    steps = [(f"Join {' and '.join(j.gears)}: " if len(j.gears) > 1 else "") + f"{j.note}." for j in mech.joins]
+    front_bridges = [b for b in mech.bridges if _bridge_side(plan, b) == "front"]
+    held_front = {s.name for s in mech.shafts if any(b in s.supports for b in front_bridges)}
+    for b in front_bridges:
+        shafts = sorted(s.name for s in mech.shafts if b in s.supports)
+        steps.append(f"Front plate first: lay it inner face up and put the {', '.join(shafts)} shaft(s) into their "
+                     f"holes; slide on, in this order, " + "; ".join(_stack(plan, set(shafts), reverse=True)) +
+                     f"; then stand the {b} pillars on the front plate and screw {b} onto them over the shaft end(s) "
+                     "(screws from the plate's outside, tapped into the bridge).")
     steps.append("Lay the back plate flat, inner face up (the face the layers stand on).")
     pillars = [r for r in mech.rods if r.kind == "pillar" and "back-plate" in r.supports]
     if pillars:
         steps.append(f"Put a screw ({mech.screw}) up through each of the back plate's {len(pillars)} pillar holes and slide "
                      "the pillar sleeves over them (" + ", ".join(f"{p.name} {p.length:.2f} mm" for p in pillars) + ").")
-    holders = [r for r in mech.rods if r.kind in ("arbor", "axle", "stud")]
+    holders = [r for r in mech.rods if r.kind in ("arbor", "axle", "stud") and r.name not in held_front]
     for r in sorted(holders, key=lambda r: r.z0):
         steps.append(f"Fit the {_WHAT[r.kind]} {r.name} ({r.diameter:g} mm, {r.length:.2f} mm long) into its hole in the "
                      f"{r.supports[0] if r.supports else 'plate'}.")
-    items = [(g.z, f"gear {g.name} on {plan.shafts[g.shaft].name}") for g in plan.gears]
+    items = [(g.z, f"gear {g.name} on {plan.shafts[g.shaft].name}") for g in plan.gears
+             if plan.shafts[g.shaft].name not in held_front]
     items += [(r.z0, f"{_WHAT[r.kind]} {r.name} ({r.length:.2f} mm)") for r in mech.rods
-              if r.kind in ("spacer", "pipe", "pin", "dowel")]
-    items += [(p.z, f"{p.name}") for p in plan.plates if p.name not in ("back-plate", "front-plate")]
+              if r.kind in ("spacer", "pipe", "pin", "dowel") and not any(r.name.startswith(f"{n}-") for n in held_front)]
+    items += [(p.z, p.name) for p in plan.plates if p.name not in ("back-plate", "front-plate")
+              and p.name not in front_bridges]
+    bridges = set(mech.bridges)
     layer = None
     for z, what in sorted(items, key=lambda t: t[0]):
+        if what in bridges:
+            what = f"{what}, screwed onto its pillars (screws from the back plate's outside, tapped into the bridge)"
         if layer is not None and abs(z - layer[0]) < 1e-6:
             layer[1].append(what)
             continue
@@ -90,6 +118,8 @@ def assembly_steps(plan) -> list[str]:
     if layer:
         steps.append(f"At {layer[0]:.2f} mm above the back plate: " + "; ".join(layer[1]) + ".")
     steps.append("Check that every gear turns freely and meshes in the phase the assembly drawing shows (assembly.step).")
-    steps.append("Lower the front plate over the shaft ends and the screws; fit washers and nuts and tighten evenly.")
+    what = "the front plate" + (" with its bridge(s) and what they hold" if front_bridges else "")
+    steps.append(f"Lower {what} over the shaft ends and the screws, the gears it carries meshing as they go down; fit "
+                 "washers and nuts and tighten evenly.")
     steps.append("Turn the input by hand through a full turn of the output: nothing may bind or rub.")
     return steps

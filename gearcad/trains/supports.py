@@ -36,7 +36,7 @@ from ..errors import InputError
 from ..geometry.shape import Loop, Part, arc_curve, line_curve, rounded_rectangle
 
 __all__ = ["Rod", "Sweep", "ShaftSupport", "Mechanism", "complete_plan", "END_SHAKE", "REACH", "STUD_PIPE",
-           "PIPE_WALL", "EDGE_RULE", "screw_size", "bridge_room", "FRAME"]
+           "PIPE_WALL", "SPACER_WALL", "EDGE_RULE", "screw_size", "bridge_room", "FRAME"]
 
 END_SHAKE = 0.2  # axial play left on every shaft, mm; common practice for small clockwork (0.1-0.2 mm, from memory)
 REACH = 3.0  # input and output shafts stand out of their plate by this many diameters (a collar and a hand); our choice
