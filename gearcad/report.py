@@ -156,15 +156,12 @@ def _joins(plan: Plan) -> list[dict[str, Any]]:
 
 def _assembly(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str, Any]:
     """The assembly file and its interference check: solids checked, overlaps found (empty when clean)."""
-    from .trains.interference import check_assembly
-
     data: dict[str, Any] = {"file": files.get("assembly", {}).get("step"), "solids": 0, "interference": []}
     if plan.mechanism is None:
         return data
-    check = check_assembly(plan, plan.mechanism)
-    data["solids"] = check.solids
+    data["solids"] = plan.mechanism.solids
     data["interference"] = [{"parts": [a, b], "depth": depth, "message": f"{a} and {b} overlap by {depth:.3f} mm"}
-                            for a, b, depth in check.overlaps]
+                            for a, b, depth in plan.mechanism.overlaps]
     data["sweep_margin"] = plan.mechanism.margin
     return data
 

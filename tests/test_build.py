@@ -113,7 +113,8 @@ def test_step_solids_are_valid_with_the_expected_volume(printed):
     from OCP.TopExp import TopExp_Explorer
 
     out, report = printed
-    g = next(g for g in report["gears"] if g["name"] == "s1-driven")  # round bore (the input's gear has a D-flat to take the drive)
+    # s1-driven: a round bore (the input's gear has a D-flat to take the drive).
+    g = next(g for g in report["gears"] if g["name"] == "s1-driven")
     pts, circles, _ = dxf_outline(out / g["files"]["dxf"])
     reader = STEPControl_Reader()
     assert reader.ReadFile(str(out / g["files"]["step"])) == 1

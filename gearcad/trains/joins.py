@@ -81,12 +81,24 @@ def _pinned(plan, shaft, gears, rods):
 
 
 def _flat(plan, gears):
-    from ..plan import _gear_parts
+    """The gears with a D-flat bore (their outlines kept; only the bore is made again, kerf applied)."""
+    from ..geometry.bore import bore_loop
+    from ..geometry.offset import offset_loop
 
+    fab, tol = plan.fabrication, plan.tolerance
     out = []
     for g in gears:
-        spec = g.spec if g.spec.flat is not None else dataclasses.replace(g.spec, flat=g.bore / 2 - FLAT_DEPTH * g.bore)
-        part, cut = _gear_parts(g.name, g.gear, spec, g.bore, plan.fabrication, plan.tolerance)
+        if g.spec.flat is not None or g.spec.keyway is not None:  # shaped as the train file says already
+            out.append(g)
+            continue
+        spec = dataclasses.replace(g.spec, flat=g.bore / 2 - FLAT_DEPTH * g.bore)
+        keyway = (spec.keyway.width, spec.keyway.depth) if spec.keyway else None
+        shaped = bore_loop(g.bore + fab.bore_clearance, flat=spec.flat, keyway=keyway, tolerance=tol)
+        extra = tuple(c for c in g.part.circles if (c[0], c[1]) != (0.0, 0.0))  # pin holes stay
+        cut_extra = tuple(c for c in g.cut_part.circles if (c[0], c[1]) != (0.0, 0.0))
+        part = dataclasses.replace(g.part, holes=(shaped,), circles=extra)
+        cut_hole = offset_loop(shaped, fab.kerf / 2, tol) if fab.kerf else shaped
+        cut = dataclasses.replace(g.cut_part, holes=(cut_hole,), circles=cut_extra)
         out.append(dataclasses.replace(g, spec=spec, part=part, cut_part=cut))
     return out
 

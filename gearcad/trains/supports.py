@@ -117,6 +117,8 @@ class Mechanism:
     findings: tuple[Finding, ...]
     screw: str
     joins: tuple = ()  # gearcad.trains.joins.Join, one per compound pair
+    solids: int = 0  # solids the interference check saw
+    overlaps: tuple = ()  # (part, part, depth mm) it found; empty when clean
 
     @property
     def pillars(self) -> tuple[Rod, ...]:
@@ -668,5 +670,7 @@ def complete_plan(plan, bridges_wanted: dict[int, str] | None = None):
                      width, height, tuple(w.findings), w.screw, tuple(joins))
     from .interference import check_assembly
 
-    mech = dataclasses.replace(mech, findings=mech.findings + tuple(check_assembly(plan, mech).findings()))
+    check = check_assembly(plan, mech)
+    mech = dataclasses.replace(mech, findings=mech.findings + tuple(check.findings()), solids=check.solids,
+                               overlaps=check.overlaps)
     return dataclasses.replace(plan, mechanism=mech, findings=plan.findings + mech.findings)
