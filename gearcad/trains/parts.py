@@ -75,6 +75,13 @@ def _stack(plan, shaft_names: set[str], reverse: bool) -> list[str]:
     return [what for _, what in sorted(items, key=lambda t: t[0], reverse=reverse)]
 
 
+def _gear_words(plan, g) -> str:
+    if g.role == "ring":
+        fixed = plan.spec.planetary is not None and plan.spec.planetary.fixed == "ring"
+        return f"ring gear {g.name}" + (" over the bolt screws, its bolt holes on them" if fixed else "")
+    return f"gear {g.name} on {plan.shafts[g.shaft].name}"
+
+
 def assembly_steps(plan) -> list[str]:
     """Numbered assembly steps (without the numbers): joins, the front plate's bridges, then from the back plate up."""
     mech = plan.mechanism
@@ -98,10 +105,11 @@ def assembly_steps(plan) -> list[str]:
     for r in sorted(holders, key=lambda r: r.z0):
         steps.append(f"Fit the {_WHAT[r.kind]} {r.name} ({r.diameter:g} mm, {r.length:.2f} mm long) into its hole in the "
                      f"{r.supports[0] if r.supports else 'plate'}.")
-    items = [(g.z, f"gear {g.name} on {plan.shafts[g.shaft].name}") for g in plan.gears
-             if plan.shafts[g.shaft].name not in held_front]
+    items = [(g.z, _gear_words(plan, g)) for g in plan.gears if plan.shafts[g.shaft].name not in held_front]
     items += [(r.z0, f"{_WHAT[r.kind]} {r.name} ({r.length:.2f} mm)") for r in mech.rods
               if r.kind in ("spacer", "pipe", "pin", "dowel") and not any(r.name.startswith(f"{n}-") for n in held_front)]
+    items += [(r.z0, f"pillar sleeve {r.name} ({r.length:.2f} mm) over its screw") for r in mech.rods
+              if r.kind == "pillar" and "back-plate" not in r.supports and not set(r.supports) & set(front_bridges)]
     items += [(p.z, p.name) for p in plan.plates if p.name not in ("back-plate", "front-plate")
               and p.name not in front_bridges]
     bridges = set(mech.bridges)
