@@ -329,40 +329,44 @@ def _axle_pipes(w: _Work, s, gears) -> list[tuple[float, float]]:
 
 
 def _shafts(w: _Work, bridges_wanted: dict[int, str]) -> None:
-    plan, t = w.plan, w.t
+    """Every shaft's support; the bridged ones last, so their pillars see every other shaft's rods."""
+    plan = w.plan
+    one_plate = [i for i, s in enumerate(plan.shafts)
+                 if s.back != s.front and i in bridges_wanted and any(g.shaft == i for g in plan.gears)]
+    done = {i: _one_shaft(w, i, s, bridges_wanted) for i, s in enumerate(plan.shafts) if i not in one_plate}
+    done.update({i: _one_shaft(w, i, plan.shafts[i], bridges_wanted) for i in one_plate})
+    w.shafts = [done[i] for i in range(len(plan.shafts))]
+
+
+def _one_shaft(w: _Work, i: int, s, bridges_wanted: dict[int, str]) -> ShaftSupport:
+    """What holds shaft ``i``: both plates, carrier discs, a plate and a bridge, or (last) a stud."""
+    plan = w.plan
     coaxial = plan.spec.coaxial and plan.spec.planetary is None and plan.spec.summing is None
-    for i, s in enumerate(plan.shafts):
-        gears = [g for g in plan.gears if g.shaft == i and g.role != "ring"]
-        frame = [(n, z) for n, z, ok in (("back-plate", w.back_z, s.back), ("front-plate", w.front_z, s.front)) if ok]
-        if coaxial and i == len(plan.shafts) - 1:
-            w.shafts.append(_coaxial_pipe(w, s, gears))
-            continue
-        if not gears and not frame:
-            w.shafts.append(ShaftSupport(s.name, "pin", (), 0.0, 0.0))
-            continue
-        tubes = [g for g in gears if g.bore > s.diameter + 1e-9]
-        if len(frame) == 2:
-            if tubes:
-                spans = _axle_pipes(w, s, tubes)
-                rest = [g for g in gears if g not in tubes]
-                support = _frame_shaft(w, i, s, rest, frame, "axle")
-                _respace(w, s, spans, rest, frame)
-                w.shafts.append(support)
-            else:
-                w.shafts.append(_frame_shaft(w, i, s, gears, frame, "arbor"))
-            continue
-        discs = _holding_discs(plan, s)
-        if not frame and len(discs) >= 2:
-            w.shafts.append(_frame_shaft(w, i, s, gears, [(p.name, p.z) for p in discs], "pin"))
-            continue
-        if len(frame) == 1 and i in bridges_wanted:
-            w.shafts.append(_bridged(w, i, s, gears, frame[0], bridges_wanted[i]))
-            continue
-        support = frame[0] if frame else ((discs[0].name, discs[0].z) if discs else None)
-        if support is None:
-            raise InputError(f"shaft {s.name!r} reaches no plate and no carrier: it cannot be held")
-        w.shafts.append(_stud(w, s, gears, support, "a gear of another layer blocks its way to the other plate"
-                              if frame else "it is held by one carrier disc only"))
+    gears = [g for g in plan.gears if g.shaft == i and g.role != "ring"]
+    frame = [(n, z) for n, z, ok in (("back-plate", w.back_z, s.back), ("front-plate", w.front_z, s.front)) if ok]
+    if coaxial and i == len(plan.shafts) - 1:
+        return _coaxial_pipe(w, s, gears)
+    if not gears and not frame:
+        return ShaftSupport(s.name, "pin", (), 0.0, 0.0)
+    tubes = [g for g in gears if g.bore > s.diameter + 1e-9]
+    if len(frame) == 2 and tubes:
+        spans = _axle_pipes(w, s, tubes)
+        rest = [g for g in gears if g not in tubes]
+        support = _frame_shaft(w, i, s, rest, frame, "axle")
+        _respace(w, s, spans, rest, frame)
+        return support
+    if len(frame) == 2:
+        return _frame_shaft(w, i, s, gears, frame, "arbor")
+    discs = _holding_discs(plan, s)
+    if not frame and len(discs) >= 2:
+        return _frame_shaft(w, i, s, gears, [(p.name, p.z) for p in discs], "pin")
+    if len(frame) == 1 and i in bridges_wanted:
+        return _bridged(w, i, s, gears, frame[0], bridges_wanted[i])
+    support = frame[0] if frame else ((discs[0].name, discs[0].z) if discs else None)
+    if support is None:
+        raise InputError(f"shaft {s.name!r} reaches no plate and no carrier: it cannot be held")
+    return _stud(w, s, gears, support, "a gear of another layer blocks its way to the other plate"
+                 if frame else "it is held by one carrier disc only")
 
 
 def _respace(w: _Work, s, spans, rest, frame) -> None:
@@ -429,8 +433,7 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
         zb = min(g.z for g in gears) - fab.layer_gap - t
         pz0, pz1 = zb + t, w.front_z
     centre = np.array([s.x, s.y])
-    others = [r for r in w.rods if r.kind in ("arbor", "axle", "shaft", "pipe", "stud", "pin") or r.kind == "pillar"]
-    others += [r for r in w.rods if r.kind == "spacer"]
+    others = [r for r in w.rods if r.kind in ("arbor", "axle", "pipe", "stud", "pin", "pillar", "spacer")]
     width, height = plan.layout.width, plan.layout.height
     edge = EDGE_RULE * hole + hole / 2
 
@@ -439,8 +442,9 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
             return False
         if _clear_of_sweeps(p[0], p[1], pillar_d / 2, pz0, pz1, w.sweeps, w.margin) < 0:
             return False
-        for r in others + [r for r in w.rods if r.kind == "shaft"]:
-            if min(pz1, r.z1) - max(pz0, r.z0) > 1e-9 and math.hypot(p[0] - r.x, p[1] - r.y) < r.diameter / 2 + pillar_d / 2 + w.margin:
+        for r in others:
+            near = math.hypot(p[0] - r.x, p[1] - r.y) < r.diameter / 2 + pillar_d / 2 + w.margin
+            if near and min(pz1, r.z1) - max(pz0, r.z0) > 1e-9:
                 return False
         return True
 
