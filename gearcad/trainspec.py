@@ -163,6 +163,7 @@ class TrainSpec:
     planetary: PlanetarySpec | None = None
     summing: SummingSpec | None = None
     join: str | None = None  # how compound pairs are joined: fused, pinned or flat (None: the process's default)
+    studs: tuple[str, ...] = ()  # shafts to hold as fixed studs in one plate, their gears on a pipe (by shaft name)
 
     def __post_init__(self) -> None:
         if self.join is not None and self.join not in JOINS:

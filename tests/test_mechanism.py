@@ -380,3 +380,30 @@ def test_a_profile_whose_margin_cannot_hold_its_holes_is_refused(tmp_path):
         outline = shapely.Polygon(p.part.outer.points())
         for x, y, d in p.part.circles:
             assert shapely.Point(x, y).buffer(d / 2).distance(outline.exterior) >= d - 0.01
+
+
+def test_a_stud_named_in_the_train_file_turns_on_a_pipe_long_enough():
+    text = COMPOUND.replace('thickness = 3.0', 'thickness = 3.0\nstuds = ["shaft-1"]')
+    plan = plan_train(parse_train(text))
+    stud = next(s for s in plan.mechanism.shafts if s.name == "shaft-1")
+    pipe = next(r for r in plan.mechanism.rods if r.name == stud.pipe)
+    assert stud.kind == "stud" and len(stud.supports) == 1
+    assert pipe.length >= STUD_PIPE * 3.0
+    assert next(f for f in plan.findings if f.check == "stud shaft-1").severity == "ok"
+    assert check_assembly(plan, plan.mechanism).overlaps == ()
+
+
+@pytest.mark.parametrize("text, message", [
+    ('studs = ["shaft-9"]', "not a shaft of this train"),
+    ('join = "glue"', "join must be one of fused, pinned, flat"),
+    ("studs = 3", "must be a list of shaft names"),
+])
+def test_bad_mechanism_keys_are_one_line_errors(tmp_path, capsys, text, message):
+    from gearcad.cli import main
+
+    train = tmp_path / "t.toml"
+    train.write_text(COMPOUND.replace('thickness = 3.0', f'thickness = 3.0\n{text}'))
+    assert main(["build", str(train), "--out", str(tmp_path / "o"), "--formats", "dxf"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert message in err and len(err.splitlines()) == 1
+    assert not (tmp_path / "o").exists()

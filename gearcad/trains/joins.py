@@ -130,6 +130,10 @@ def join_compounds(plan, rods) -> tuple[object, list[Join], list[Finding]]:
         if len(members) < 2:
             continue
         names = tuple(g.name for g in members)
+        if any(r.kind == "stud" and r.name == s.name for r in rods):
+            joins.append(Join(s.name, names, "pipe", f"glue {' and '.join(names)} to the {s.name}-pipe, teeth in the "
+                              "phase the assembly shows; the pipe turns on the fixed stud"))
+            continue
         how = method
         if how == "pinned":
             done = _pinned(plan, s, members, rods)

@@ -301,7 +301,7 @@ def _stud(w: _Work, s, gears, support: tuple[str, float], why: str) -> ShaftSupp
     w.rods.append(Rod(pipe, "pipe", s.x, s.y, s.diameter, d_stud + w.fab.bore_clearance, p0, p1, (s.name,),
                       tuple(g.name for g in gears)))
     length = p1 - p0
-    severity = "warning"
+    severity = "ok" if why.startswith("the train file") and length >= STUD_PIPE * s.diameter - 1e-9 else "warning"
     w.findings.append(Finding(f"stud {s.name}", severity, length, STUD_PIPE * s.diameter,
                               f"{s.name}: {why}; it is a {d_stud:g} mm stud fixed in the {name} with its gears fixed to a "
                               f"{s.diameter:g} mm pipe {length:.2f} mm long turning on it "
@@ -348,6 +348,8 @@ def _one_shaft(w: _Work, i: int, s, bridges_wanted: dict[int, str]) -> ShaftSupp
         return _coaxial_pipe(w, s, gears)
     if not gears and not frame:
         return ShaftSupport(s.name, "pin", (), 0.0, 0.0)
+    if s.name in plan.spec.studs and frame and gears:
+        return _stud(w, s, gears, frame[0], "the train file names it a stud")
     tubes = [g for g in gears if g.bore > s.diameter + 1e-9]
     if len(frame) == 2 and tubes:
         spans = _axle_pipes(w, s, tubes)
@@ -656,6 +658,10 @@ def complete_plan(plan, bridges_wanted: dict[int, str] | None = None):
         bridges_wanted = {i: ("front" if s.back else "back") for i, s in enumerate(plan.shafts) if s.back != s.front}
     name, nominal = screw_size(fab.spacer_hole)
     w = _Work(plan, t, fab, back.z, front.z, [], [], _sweeps(plan), [], [], fab.gear_clearance, name, nominal)
+    unknown = sorted(set(plan.spec.studs) - {s.name for s in plan.shafts})
+    if unknown:
+        raise InputError(f"studs names {unknown[0]!r}, which is not a shaft of this train; shafts: "
+                         + ", ".join(s.name for s in plan.shafts))
     _shafts(w, bridges_wanted)
     _ring_bolts(w)
     width, height = _frame_pillars(w, plan.layout.width, plan.layout.height)
