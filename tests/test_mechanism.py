@@ -407,3 +407,29 @@ def test_bad_mechanism_keys_are_one_line_errors(tmp_path, capsys, text, message)
     err = capsys.readouterr().err.strip()
     assert message in err and len(err.splitlines()) == 1
     assert not (tmp_path / "o").exists()
+
+
+def readme_trains():
+    import re
+    from pathlib import Path
+
+    text = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
+    out = []
+    for block in re.findall(r"```toml\n(.*?)```", text, re.S):
+        if "[planetary]" in block or "[summing]" in block:  # README shows these tables alone
+            out.append('name = "readme"\nmodule = 1.0\nthickness = 3.0\n' + block)
+        elif "name =" in block and "[[stage]]" in block:
+            out.append(block)
+    return out
+
+
+@pytest.mark.parametrize("index", range(3))
+def test_every_readme_train_builds_with_every_shaft_held_at_two_points(index):
+    # The README's own train files (compound, planetary, summing): each plans, every shaft has two supports,
+    # no overlap in the assembly and no failure among the findings.
+    trains = readme_trains()
+    assert len(trains) == 3
+    plan = plan_train(parse_train(trains[index]))
+    assert all(len(s.supports) >= 2 for s in plan.mechanism.shafts)
+    assert plan.mechanism.overlaps == ()
+    assert not [f for f in plan.findings if f.severity == "failure"]
