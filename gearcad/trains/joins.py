@@ -118,6 +118,11 @@ def join_compounds(plan, rods) -> tuple[object, list[Join], list[Finding]]:
     joins, findings = [], []
     for i, s in enumerate(plan.shafts):
         members = [g for g in gears if g.shaft == i]
+        on_stud = any(r.kind == "stud" and r.name == s.name for r in rods)
+        if len(members) == 1 and s.name in ("input", "output") and on_stud:
+            joins.append(Join(s.name, (members[0].name,), "pipe", f"glue {members[0].name} to the {s.name}-pipe, which "
+                              "turns on the fixed stud and carries the drive"))
+            continue
         if len(members) == 1 and s.name in ("input", "output") and not _pipe_output(plan, i):
             # The input's gear must take the drive from its shaft, the output's give it to a hand or a coupling.
             g = members[0]
@@ -130,7 +135,7 @@ def join_compounds(plan, rods) -> tuple[object, list[Join], list[Finding]]:
         if len(members) < 2:
             continue
         names = tuple(g.name for g in members)
-        if any(r.kind == "stud" and r.name == s.name for r in rods):
+        if on_stud:
             joins.append(Join(s.name, names, "pipe", f"glue {' and '.join(names)} to the {s.name}-pipe, teeth in the "
                               "phase the assembly shows; the pipe turns on the fixed stud"))
             continue
