@@ -220,9 +220,10 @@ def plan_summing(spec: TrainSpec, tolerance: float, load: InputLoad | None = Non
         problem, keys = _layout_problem(paths, trial, diff, build.bores, fab, top)
         pos = np.array([trial[k] for k in keys])
         shortfall = clearance_shortfall(problem, pos)
-        layouts.append((shortfall > 1e-9, _extent(problem, pos), shortfall, problem, keys, pos))
-    layouts.sort(key=lambda t: (t[0], t[1]))
-    bad, _, shortfall, problem, keys, pos = layouts[0]
+        one_sided = sum(not (back and front) for back, front in shaft_sides(problem, pos))
+        layouts.append((shortfall > 1e-9, one_sided, _extent(problem, pos), shortfall, problem, keys, pos))
+    layouts.sort(key=lambda t: t[:3])
+    bad, _, _, shortfall, problem, keys, pos = layouts[0]
     if bad:
         raise InputError(f"the differential and the paths' gears do not clear each other (short by {shortfall:.2f} mm): "
                          "the input shaft passes the differential, so the axle must be farther from it: use a smaller "
@@ -256,7 +257,10 @@ def _layout_problem(paths, positions: dict, diff, bores: dict, fab: Fabrication,
     for layer, radius in diff.envelope():
         gears.append(LayoutGear(f"differential-{layer}", index["axle"], layer, radius))
     radii = tuple(bores[k] / 2 for k in keys)
-    return LayoutProblem(radii, tuple(gears), (), frozenset(meshes), fab.gear_clearance, fab.plate_margin), keys
+    # One plate at least is the rule here (the loop is fixed by construction); the choice of idler sides prefers the
+    # placements that let more shafts reach both plates (see plan_summing).
+    return LayoutProblem(radii, tuple(gears), (), frozenset(meshes), fab.gear_clearance, fab.plate_margin,
+                         both_plates=False), keys
 
 
 def _path_gears(build: _Build, paths, placed: dict, top: int) -> None:
@@ -312,7 +316,8 @@ class _MeanDifferential:
         self.spread = 2 * math.asin(chord / (2 * self.radius))  # angle between an a planet and its b mate
         self.pin = spec.bore
         self.sun, self.planet = self.sun_pair.gear1, self.sun_pair.gear2
-        self.carrier_radius = self.radius + self.pin / 2 + max(2.0, 2 * self.m)
+        # The pin holes at least their own diameter from the disc's edge (gearcad.trains.supports.EDGE_RULE).
+        self.carrier_radius = self.radius + max(self.pin / 2 + max(2.0, 2 * self.m), 1.5 * (self.pin + fab.bore_clearance))
 
     def room(self) -> float:
         """Least axle distance at which the input shaft clears the differential, mm."""
@@ -459,7 +464,8 @@ class _PlanetaryDifferential:
         self.rim = rim
         self.pin = spec.bore
         self.radius = self.sun_pair.centre_distance
-        self.carrier_radius = self.radius + self.pin / 2 + max(2.0, 2 * self.m)
+        # The pin holes at least their own diameter from the disc's edge (gearcad.trains.supports.EDGE_RULE).
+        self.carrier_radius = self.radius + max(self.pin / 2 + max(2.0, 2 * self.m), 1.5 * (self.pin + fab.bore_clearance))
 
     def room(self) -> float:
         return 0.0  # the ring's outside teeth set the axle distance; nothing else reaches the input shaft
@@ -546,9 +552,16 @@ def _finish(build: _Build, spec, system, fab, layout, placed, sides, keys, diff,
     if diff.kind == "planetary":
         diff.rephase_path_b(build, placed, paths)
     pitch = spec.thickness + fab.layer_gap
+    # An idler that reaches one plate only is held at its other end by a bridge (gearcad.trains.supports): leave
+    # room for it above path A's layer (idler a) or below path B's (idler b).
+    from .trains.supports import bridge_room
+
+    room = bridge_room(spec.thickness, fab.layer_gap)
+    room_a = "idler-a" in sides and not sides["idler-a"][1]
+    room_b = "idler-b" in sides and not sides["idler-b"][0]
 
     def z_of(layer: int) -> float:
-        return fab.layer_gap + layer * pitch
+        return fab.layer_gap + layer * pitch + (room if room_a and layer >= 1 else 0.0) + (room if room_b and layer >= top else 0.0)
 
     shaft_keys = list(keys) + [k for k, _ in diff.pins]
     names = {"input": "input", "axle": "differential", "idler-a": "idler-a", "idler-b": "idler-b"}
@@ -562,10 +575,12 @@ def _finish(build: _Build, spec, system, fab, layout, placed, sides, keys, diff,
     for g in build.gears:
         planned.append(PlannedGear(g.name, g.role, g.stage, g.gear, g.spec, index[g.shaft], g.layer, g.bore, g.part,
                                    g.cut, g.rotation, z_of(g.layer), label_at=g.label_at))
-    front_z = z_of(top + 1)
-    plates = list(frame_plates(spec, fab, layout, shafts, tolerance, front_z))
     axle = np.array([shafts[index["axle"]].x, shafts[index["axle"]].y])
-    plates += diff.plates(build, axle, z_of)
+    discs = diff.plates(build, axle, z_of)
+    # The front plate above the top layer and above every disc (the planetary differential's carrier sits one
+    # layer above path B).
+    front_z = max([z_of(top + 1)] + [p.z + spec.thickness + fab.layer_gap for p in discs])
+    plates = list(frame_plates(spec, fab, layout, shafts, tolerance, front_z)) + list(discs)
     signed = _network_ratio(spec, paths, diff)
     rho = [_path_ratio(p) for p in paths]
     expected = diff.formula(*rho)

@@ -31,7 +31,7 @@ from .planetary import check_set, make_arrangement, make_set, set_ratio
 from .profiles import Fabrication, load_fabrication
 from .trainspec import GearSpec, TrainSpec
 
-__all__ = ["plan_planetary", "ring_phase", "same_phase", "kerf_cut", "toothed_parts"]
+__all__ = ["plan_planetary", "ring_phase", "same_phase", "kerf_cut", "toothed_parts", "bolt_angle"]
 
 RING_BOLTS = 6  # mounting holes in the rim of a fixed ring; common practice
 
@@ -78,11 +78,14 @@ def toothed_parts(name: str, gear, bore: float, fab: Fabrication, tolerance: flo
     return part, kerf_cut(part, fab, tolerance)
 
 
-def _ring_part(ring: RingGear, fixed: bool, fab: Fabrication, tolerance: float) -> tuple[Part, Part, float]:
+def _ring_part(ring: RingGear, fixed: bool, fab: Fabrication, tolerance: float, rotation: float = 0.0,
+               bolt_circle: float | None = None) -> tuple[Part, Part, float]:
+    """The ring's part; a fixed ring's bolt holes turned by ``-rotation`` so that, placed, they sit at the plate's angles."""
     base = ring_part(ring, tolerance, name="ring")
-    bolt_circle = (ring.root_diameter / 2 + ring.outer_diameter / 2) / 2
-    bolts = tuple((bolt_circle * math.cos(2 * math.pi * k / RING_BOLTS + math.pi / RING_BOLTS),
-                   bolt_circle * math.sin(2 * math.pi * k / RING_BOLTS + math.pi / RING_BOLTS), fab.spacer_hole)
+    if bolt_circle is None:
+        bolt_circle = (ring.root_diameter / 2 + ring.outer_diameter / 2) / 2
+    bolts = tuple((bolt_circle * math.cos(bolt_angle(k) - rotation),
+                   bolt_circle * math.sin(bolt_angle(k) - rotation), fab.spacer_hole)
                   for k in range(RING_BOLTS)) if fixed else ()
     part = Part("ring", base.outer, base.holes, bolts, f"ring  z{ring.teeth}  m{ring.module:g}  x{ring.shift:+.3f}")
     return part, kerf_cut(part, fab, tolerance), bolt_circle
@@ -119,6 +122,16 @@ def _helical_mesh(mesh: PlannedMesh, thickness: float, ps) -> PlannedMesh:
     return dataclasses.replace(mesh, analysis=in_normal_terms(mesh.analysis), findings=(*extra, *mesh.findings))
 
 
+def bolt_angle(k: int) -> float:
+    """Angle (radians) of a fixed ring's ``k``-th bolt in plate coordinates: half a bolt spacing off +x."""
+    return 2 * math.pi * k / RING_BOLTS + math.pi / RING_BOLTS
+
+
+def _sweep_radius(centre: float, planet_tips: list[float]) -> float:
+    """Outer radius of the planets' sweep about the set's axis (orbit plus the largest tip radius), mm."""
+    return centre + max(planet_tips)
+
+
 def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = None) -> Plan:
     """Plan a planetary set described by ``spec.planetary``."""
     ps = spec.planetary
@@ -153,13 +166,23 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
         sun_pair, ring_pair = _helical_pairs(sun_pair, ring_pair, ps.hand)
         check_face_width((sun_pair.gear1, sun_pair.gear2, ring_pair.pinion), spec.thickness)
     ring = ring_pair.ring
-    if ps.fixed == "ring":  # a fixed ring is bolted to the frame: a rim wide enough for the bolts
-        rim = ring.root_diameter + 2 * (1.5 * fab.spacer_hole + 2.0)
-        ring = dataclasses.replace(ring, rim_diameter=max(rim, ring.outer_diameter))
     sun_gear, planet_sun, planet_ring = sun_pair.gear1, sun_pair.gear2, ring_pair.pinion
+    centre = sun_pair.centre_distance
+    sweep = _sweep_radius(centre, [planet_sun.tip_diameter / 2, planet_ring.tip_diameter / 2])
+    bolt_circle = None
+    if ps.fixed == "ring":
+        # A fixed ring is bolted to both plates through sleeves: its bolts stand outside the planets' sweep by the
+        # gear clearance (the sleeves pass the planets' layers), each hole its own diameter from the rim.
+        from .trains.supports import screw_size
+
+        sleeve = 2 * screw_size(fab.spacer_hole)[1]
+        bolt_circle = max((ring.root_diameter / 2 + ring.outer_diameter / 2) / 2,
+                          sweep + fab.gear_clearance + sleeve / 2, ring.root_diameter / 2 + 1.5 * fab.spacer_hole)
+        rim = 2 * (bolt_circle + 1.5 * fab.spacer_hole)
+        ring = dataclasses.replace(ring, rim_diameter=max(rim, ring.outer_diameter))
 
     # Plate coordinates: the set's axis at the centre of a square plate.
-    half = ring.outer_diameter / 2 + fab.plate_margin
+    half = max(ring.outer_diameter / 2, sweep) + fab.plate_margin  # the plates cover the ring and the planets' sweep
     cx = cy = half
     angles = conditions.angles
     planet_rot_a = [mesh_phase(0.0, ps.sun, ps.planet, a) for a in angles]
@@ -176,7 +199,7 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
 
     bore = spec.bore
     layer_b = 1 if pset.stepped else 0
-    z0 = fab.layer_gap
+    z0 = 2 * fab.layer_gap + spec.thickness  # under the set: the back carrier disc (each planet pin held at two points)
     pitch = spec.thickness + fab.layer_gap
     gears: list[PlannedGear] = []
     sun_part, sun_cut = toothed_parts("sun", sun_gear, bore, fab, tolerance)
@@ -192,7 +215,7 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
             part, cut = toothed_parts(f"planet-{k}-ring-side", planet_ring, pin, fab, tolerance)
             gears.append(PlannedGear(f"planet-{k}-ring-side", "planet", 1, planet_ring, GearSpec(pset.ring_planet, x_p2), k,
                                      1, pin, part, cut, planet_rot_b[k - 1], z0 + pitch))
-    ring_drawn, ring_cut, bolt_circle = _ring_part(ring, ps.fixed == "ring", fab, tolerance)
+    ring_drawn, ring_cut, bolt_circle = _ring_part(ring, ps.fixed == "ring", fab, tolerance, ring_rots[0], bolt_circle)
     label_r = (ring.root_diameter / 2 + ring.outer_diameter / 2) / 2
     gears.append(PlannedGear("ring", "ring", 1, ring, GearSpec(ps.ring, x_r), 0, layer_b, bore, ring_drawn, ring_cut,
                              ring_rots[0], z0 + layer_b * pitch, label_at=(0.0, -label_r)))
@@ -239,17 +262,21 @@ def _plates(spec, fab, tolerance, cx, cy, centre, angles, ps, ring, bolt_circle,
     inset = fab.plate_margin / 2
     corners = tuple((x, y, fab.spacer_hole) for x in (inset, side - inset) for y in (inset, side - inset))
     shaft_hole = ((cx, cy, spec.bore + fab.bore_clearance),)
-    bolts = tuple((cx + bolt_circle * math.cos(2 * math.pi * k / RING_BOLTS + math.pi / RING_BOLTS),
-                   cy + bolt_circle * math.sin(2 * math.pi * k / RING_BOLTS + math.pi / RING_BOLTS), fab.spacer_hole)
+    bolts = tuple((cx + bolt_circle * math.cos(bolt_angle(k)), cy + bolt_circle * math.sin(bolt_angle(k)), fab.spacer_hole)
                   for k in range(RING_BOLTS)) if ps.fixed == "ring" else ()
     plates = []
     for name, z in (("back-plate", -spec.thickness), ("front-plate", top + spec.thickness + fab.layer_gap)):
         part = Part(name, outer, (), shaft_hole + bolts + corners, f"{spec.name} {name}")
         plates.append(PlannedPlate(name, part, kerf_cut(part, fab, tolerance), z))
     # The carrier: a disc on the set's axis holding the planet pins at their angles.
-    radius = centre + pin / 2 + max(2.0, 2 * spec.module)
+    # The pin holes at least their own diameter from the disc's edge (gearcad.trains.supports.EDGE_RULE).
+    radius = centre + max(pin / 2 + max(2.0, 2 * spec.module), 1.5 * (pin + fab.bore_clearance))
     pins = tuple((cx + centre * math.cos(a), cy + centre * math.sin(a), pin + fab.bore_clearance) for a in angles)
     carrier = Part("carrier", circle_loop(cx, cy, 2 * radius, tolerance, clockwise=False), (), shaft_hole + pins,
                    f"{spec.name} carrier, {len(angles)} planet pins on {2 * centre:.3f} mm")
     plates.append(PlannedPlate("carrier", carrier, kerf_cut(carrier, fab, tolerance), top))
+    # Its mate under the set: the pins are held at both ends; the two discs turn together (the pins join them).
+    lower = Part("carrier-back", carrier.outer, (), carrier.circles,
+                 f"{spec.name} carrier-back, {len(angles)} planet pins on {2 * centre:.3f} mm")
+    plates.append(PlannedPlate("carrier-back", lower, kerf_cut(lower, fab, tolerance), fab.layer_gap))
     return tuple(plates)

@@ -12,14 +12,18 @@ search picks the turn at every shaft that gives the smallest plate:
 2. the best candidates refined by halving the step down to 0.01°.
 
 Rules: gears of one layer that do not mesh keep their tip circles
-``clearance`` apart; a shaft runs through its own gears' layers and on to at
-least one of the two plates, and keeps ``clearance`` from the tip circle of
-every gear in the layers it passes.  Coaxial shafts coincide.
+``clearance`` apart; a shaft runs through its own gears' layers and on to both
+plates (every arbor held at its two ends, the first rule of a movement; common
+practice), and keeps ``clearance`` from the tip circle of every gear in the
+layers it passes.  Only where no placement lets every shaft reach both plates
+does the search accept a shaft that reaches one plate: the plan then holds its
+other end in a bridge (``gearcad.trains.supports``).  Coaxial shafts coincide.
 Pure numpy; lengths in mm, angles in radians.
 """
 
 from __future__ import annotations
 
+import dataclasses
 import itertools
 import math
 from dataclasses import dataclass
@@ -64,6 +68,7 @@ class LayoutProblem:
     clearance: float
     margin: float
     coaxial: tuple[int, int] | None = None
+    both_plates: bool = True  # every shaft must reach both plates (False: one plate, the other end in a bridge)
 
 
 @dataclass(frozen=True)
@@ -74,6 +79,7 @@ class Layout:
     width: float
     height: float
     search: str
+    both_plates: bool = True  # the rule the placement keeps: every shaft reaches both plates (False: one, and a bridge)
 
     @property
     def area(self) -> float:
@@ -147,7 +153,7 @@ def _violation(problem: LayoutProblem, pos: np.ndarray) -> np.ndarray:
         worst = np.maximum(worst, _shaft_gaps(problem, pos, s, set(range(lo, hi + 1))))
         back = _shaft_gaps(problem, pos, s, set(range(0, lo)))
         front = _shaft_gaps(problem, pos, s, set(range(hi + 1, top + 1)))
-        worst = np.maximum(worst, np.minimum(back, front))
+        worst = np.maximum(worst, np.maximum(back, front) if problem.both_plates else np.minimum(back, front))
     return worst
 
 
@@ -225,6 +231,10 @@ def solve_layout(problem: LayoutProblem) -> Layout:
     free = int(np.isnan(fixed).sum())
     grid = _grid(free)
     scores = _score(problem, _with_fixed(grid, fixed))
+    if not np.isfinite(scores).any() and problem.both_plates:
+        # No placement reaches both plates with every shaft: accept one plate and a bridge for the other end.
+        problem = dataclasses.replace(problem, both_plates=False)
+        scores = _score(problem, _with_fixed(grid, fixed))
     if not np.isfinite(scores).any():
         shortfall = float(_violation(problem, _positions(problem, _with_fixed(grid[:1], fixed))).min())
         raise InputError(f"no shaft layout keeps every gear clear (short by {shortfall:.2f} mm at best): "
@@ -267,7 +277,9 @@ def _place_on_plate(problem: LayoutProblem, pos: np.ndarray, rotation: float, fr
         return _place_on_plate(problem, turned, 0.0, free)
     how = (f"grid search over {free} free shaft turn(s), then refinement to 0.01 deg; plate rotation sampled every 0.05 deg"
            if free else "no free turns (coaxial or single stage)")
-    return Layout(turned - low, float(width), float(height), how)
+    how += ("; every shaft reaches both plates" if problem.both_plates
+            else "; no placement lets every shaft reach both plates: blocked ends go to bridges")
+    return Layout(turned - low, float(width), float(height), how, problem.both_plates)
 
 
 def mesh_phase(driver_rotation: float, driver_teeth: int, driven_teeth: int, direction: float) -> float:

@@ -113,6 +113,7 @@ class Plan:
     direction: str
     tolerance: float
     findings: tuple[Finding, ...]
+    mechanism: object | None = None  # gearcad.trains.supports.Mechanism: supports, bought parts, interference
 
     def gear(self, name: str) -> PlannedGear:
         """The planned gear called ``name``."""
@@ -241,15 +242,42 @@ def _hub_part(name: str, gear: SpurGear, gspec: GearSpec, part: Part, tolerance:
     return Part(f"{name}-hub", circle_loop(0.0, 0.0, hub.diameter, tolerance, clockwise=False), part.holes, part.circles)
 
 
-def _layer_heights(spec: TrainSpec, chain: _Chain, fab: Fabrication) -> list[float]:
-    """Lower-face z of each layer, mm: the face width, the gap and the longest hub of the layer below."""
+def _layer_heights(spec: TrainSpec, chain: _Chain, fab: Fabrication, room: frozenset[int] = frozenset()) -> list[float]:
+    """Lower-face z of each layer, mm: the face width, the gap and the longest hub of the layer below.
+
+    ``room``: the layers below which a bridge stands (``k`` in ``room``: room for a bridge under layer ``k``).
+    """
+    from .trains.supports import bridge_room
+
     layers = len(spec.stages)
     hubs = [max([g[3].hub.length for g in chain.gears if g[5] == k and g[3].hub] + [0.0]) for k in range(layers)]
     heights, z = [], fab.layer_gap
-    for k in range(layers):
+    for k in range(layers + 1):
+        if k in room:
+            z += bridge_room(spec.thickness, fab.layer_gap)
+        if k == layers:
+            break
         heights.append(z)
         z += spec.thickness + hubs[k] + fab.layer_gap
     return heights + [z]
+
+
+def _bridges_wanted(chain: _Chain, shafts: list[PlannedShaft]) -> dict[int, str]:
+    """Shafts that reach one plate only: the side their bridge goes (the blocked one)."""
+    wanted = {}
+    for i, s in enumerate(shafts):
+        if s.back != s.front:
+            wanted[i] = "front" if s.back else "back"
+    return wanted
+
+
+def _bridge_layers(chain: _Chain, wanted: dict[int, str]) -> frozenset[int]:
+    """Layer indices under which a bridge needs room: above a front-bridged shaft's top layer, below a back-bridged one's."""
+    room = set()
+    for i, side in wanted.items():
+        layers = [g[5] for g in chain.gears if g[4] == i]
+        room.add(max(layers) + 1 if side == "front" else min(layers))
+    return frozenset(room)
 
 
 def _tool_finding(name: str, loop: Loop, fab: Fabrication) -> Finding | None:
@@ -274,7 +302,10 @@ def _layout(spec: TrainSpec, chain: _Chain, pairs, bores: dict[int, float], fab:
     coaxial = (0, chain.shafts - 1) if spec.coaxial else None
     if spec.coaxial and any(s.idler for s in spec.stages):
         raise InputError("a coaxial train cannot carry idlers")
-    problem = LayoutProblem(tuple(bores[s] / 2 for s in range(chain.shafts)), gears, links, meshes,
+    from .trains.supports import SPACER_WALL
+
+    # What passes the gears of other layers is the shaft with its spacer tube on it.
+    problem = LayoutProblem(tuple(bores[s] / 2 + SPACER_WALL for s in range(chain.shafts)), gears, links, meshes,
                             fab.gear_clearance, fab.plate_margin, coaxial)
     return problem, solve_layout(problem)
 
@@ -360,15 +391,26 @@ def _meshes(chain: _Chain, pairs, fab: Fabrication, spec: TrainSpec, load: Input
 
 
 def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: InputLoad | None = None) -> Plan:
-    """Every figure, outline, position and check of the train ``spec``; with ``load``, the load ratings too."""
+    """Every figure, outline, position and check of the train ``spec``; with ``load``, the load ratings too.
+
+    The plan comes with its mechanism (``gearcad.trains.supports``): what holds every shaft, the
+    bought parts, the frame plates with every hole, and the assembly's interference check.
+    """
+    from .trains.supports import complete_plan
+
     if spec.planetary is not None:
         from .epicyclic import plan_planetary
 
-        return plan_planetary(spec, tolerance, load)
+        return complete_plan(plan_planetary(spec, tolerance, load))
     if spec.summing is not None:
         from .differential import plan_summing
 
-        return plan_summing(spec, tolerance, load)
+        return complete_plan(plan_summing(spec, tolerance, load))
+    plan, wanted = _plan_compound(spec, tolerance, load)
+    return complete_plan(plan, wanted)
+
+
+def _plan_compound(spec: TrainSpec, tolerance: float, load: InputLoad | None) -> tuple[Plan, dict[int, str]]:
     if not spec.stages:
         raise InputError("the train has no stages: solve its ratio first (gearcad design)")
     system = _system(spec)
@@ -377,7 +419,7 @@ def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: Inpu
     pairs = _pairs(spec, chain, system, fab)
     bores = {}
     for name, _, _, gspec, shaft, _ in chain.gears:
-        bore = gspec.bore if gspec.bore is not None else spec.bore
+        bore = _bore(spec, gspec, shaft, chain, fab)
         _check_bore(name, _gear_of(name, pairs), gspec, bore)
         bores[shaft] = max(bores.get(shaft, 0.0), bore)
     problem, layout = _layout(spec, chain, pairs, bores, fab)
@@ -385,11 +427,12 @@ def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: Inpu
     shafts = [PlannedShaft(_shaft_name(i, chain.shafts), float(x), float(y), bores[i], back, front)
               for i, ((x, y), (back, front)) in enumerate(zip(layout.positions, sides))]
     rotation = _phases(chain, layout)
-    heights = _layer_heights(spec, chain, fab)
+    wanted = _bridges_wanted(chain, shafts)
+    heights = _layer_heights(spec, chain, fab, _bridge_layers(chain, wanted))
     gears, extra = [], []
     for name, role, stage, gspec, shaft, layer in chain.gears:
         gear = _gear_of(name, pairs)
-        bore = gspec.bore if gspec.bore is not None else spec.bore
+        bore = _bore(spec, gspec, shaft, chain, fab)
         part, cut = _gear_parts(name, gear, gspec, bore, fab, tolerance)
         finding = _tool_finding(name, part.outer, fab)
         if finding:
@@ -402,7 +445,18 @@ def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: Inpu
     ratio, direction = abs(signed), direction_of(signed)
     plates = frame_plates(spec, fab, layout, shafts, tolerance, heights[-1])
     return Plan(spec, system, fab, tuple(gears), meshes, tuple(shafts), plates, layout, ratio, direction, tolerance,
-                tuple(extra))
+                tuple(extra)), wanted
+
+
+def _bore(spec: TrainSpec, gspec: GearSpec, shaft: int, chain: _Chain, fab: Fabrication) -> float:
+    """A gear's shaft diameter, mm; a coaxial train's output turns on a pipe around the input, so its gear fits the pipe."""
+    if gspec.bore is not None:
+        return gspec.bore
+    if spec.coaxial and shaft == chain.shafts - 1:
+        from .trains.supports import PIPE_WALL
+
+        return spec.bore + fab.bore_clearance + 2 * PIPE_WALL
+    return spec.bore
 
 
 def _network_ratio(chain: _Chain) -> Fraction:

@@ -10,6 +10,7 @@ import math
 from typing import Any, Mapping
 
 from .plan import Plan
+from .trains.parts import assembly_steps, parts_list
 
 __all__ = ["CAUTIONS", "report_data", "report_markdown", "ratio_data", "train_kind"]
 
@@ -95,13 +96,17 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
         "tooth_system": {"name": plan.system.name, "title": plan.system.title,
                          "pressure_angle": math.degrees(plan.system.pressure_angle)},
         "gears": gears, "meshes": meshes,
-        "shafts": [{"name": s.name, "x": s.x, "y": s.y, "diameter": s.diameter, "back_plate": s.back, "front_plate": s.front}
-                   for s in plan.shafts],
-        "plates": [{"name": p.name, "width": plan.layout.width, "height": plan.layout.height, "z": p.z,
-                    "files": _files(files, p.name, ("dxf", "step", "svg"))} for p in plan.plates],
+        "shafts": _shafts(plan),
+        "pillars": _pillars(plan),
+        "bridges": [p for p in plan.mechanism.bridges] if plan.mechanism else [],
+        "joins": _joins(plan),
+        "parts": parts_list(plan, files),
+        "sequence": assembly_steps(plan),
+        "plates": [{"name": p.name, **_extent(plan, p), "z": p.z, "files": _files(files, p.name, ("dxf", "step", "svg"))}
+                   for p in plan.plates],
         "layout": {"area": plan.layout.area, "width": plan.layout.width, "height": plan.layout.height,
                    "search": plan.layout.search},
-        "assembly": files.get("assembly", {}).get("step"),
+        "assembly": _assembly(plan, files),
         "fabrication": {"profile": plan.fabrication.name, "title": plan.fabrication.title,
                         "process": plan.fabrication.process, "kerf": plan.fabrication.kerf,
                         "backlash": plan.fabrication.backlash, "bore_clearance": plan.fabrication.bore_clearance},
@@ -111,6 +116,57 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
         **_shaft_thrusts(plan),
         "cautions": list(CAUTIONS) + ([plan.fabrication.note] if plan.fabrication.note else []),
     }
+
+
+def _extent(plan: Plan, plate) -> dict[str, float]:
+    """A plate's width and height: the frame's, or the bounding box of a carrier disc or bridge, mm."""
+    if plate.name in ("back-plate", "front-plate"):
+        return {"width": plan.layout.width, "height": plan.layout.height}
+    pts = plate.part.outer.points()
+    size = pts.max(axis=0) - pts.min(axis=0)
+    return {"width": float(size[0]), "height": float(size[1])}
+
+
+def _shafts(plan: Plan) -> list[dict[str, Any]]:
+    """Every shaft: position, diameter, the plates its hole is in, and (with a mechanism) its kind, supports, length, span."""
+    out = []
+    mech = plan.mechanism
+    for k, s in enumerate(plan.shafts):
+        row: dict[str, Any] = {"name": s.name, "x": s.x, "y": s.y, "diameter": s.diameter, "back_plate": s.back,
+                               "front_plate": s.front}
+        if mech is not None:
+            m = mech.shafts[k]
+            row.update({"kind": m.kind, "supports": list(m.supports), "length": m.length, "free_span": m.free_span,
+                        "pipe": m.pipe, "around": m.around})
+        out.append(row)
+    return out
+
+
+def _pillars(plan: Plan) -> list[dict[str, Any]]:
+    """Pillars in plate coordinates: centre, diameter (the sleeve's), length, the plates they hold, mm."""
+    if plan.mechanism is None:
+        return []
+    return [{"name": r.name, "x": r.x, "y": r.y, "diameter": r.diameter, "hole": plan.fabrication.spacer_hole,
+             "length": r.length, "z": r.z0, "holds": list(r.supports)} for r in plan.mechanism.pillars]
+
+
+def _joins(plan: Plan) -> list[dict[str, Any]]:
+    if plan.mechanism is None:
+        return []
+    return [{"shaft": j.shaft, "gears": list(j.gears), "method": j.method, "note": j.note, "pin": j.pin or None}
+            for j in plan.mechanism.joins]
+
+
+def _assembly(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str, Any]:
+    """The assembly file and its interference check: solids checked, overlaps found (empty when clean)."""
+    data: dict[str, Any] = {"file": files.get("assembly", {}).get("step"), "solids": 0, "interference": []}
+    if plan.mechanism is None:
+        return data
+    data["solids"] = plan.mechanism.solids
+    data["interference"] = [{"parts": [a, b], "depth": depth, "message": f"{a} and {b} overlap by {depth:.3f} mm"}
+                            for a, b, depth in plan.mechanism.overlaps]
+    data["sweep_margin"] = plan.mechanism.margin
+    return data
 
 
 def rating_data(r) -> dict[str, Any]:
@@ -131,6 +187,42 @@ def _row(cells) -> str:
 
 def _table(header, rows) -> list[str]:
     return [_row(header), _row(["---"] * len(header))] + [_row(r) for r in rows]
+
+
+def _mechanism_markdown(data: Mapping[str, Any]) -> list[str]:
+    """Pillars, joins, the parts table, the interference check and the numbered assembly sequence."""
+    lines: list[str] = []
+    if data.get("pillars"):
+        lines += ["", "## Pillars (mm, plate coordinates)", "",
+                  f"Each pillar stands outside every moving part's sweep by at least "
+                  f"{data['assembly'].get('sweep_margin', 0):g} mm; a screw runs through it and the plates it holds.", ""]
+        lines += _table(["pillar", "x", "y", "diameter", "length", "holds"],
+                        [[p["name"], f"{p['x']:.3f}", f"{p['y']:.3f}", f"{p['diameter']:g}", f"{p['length']:.2f}",
+                          ", ".join(p["holds"])] for p in data["pillars"]])
+    if data.get("joins"):
+        lines += ["", "## Compound gears", ""] + [f"- {j['shaft']} ({j['method']}): {j['note']}" for j in data["joins"]]
+    if data.get("parts"):
+        lines += ["", "## Parts list (mm)", "", "Made parts are cut or printed from the files; bought parts are cut to "
+                  "length from stock (shafts, tube) or bought (screws, pins). `parts.csv` holds the same table.", ""]
+        lines += _table(["part", "kind", "qty", "diameter", "bore", "length", "thread", "material", "files / used for"],
+                        [[p["name"], p["kind"], p["quantity"], _num(p.get("diameter")), _num(p.get("bore")),
+                          _num(p.get("length")), p.get("thread") or "", p.get("material") or "",
+                          ", ".join(f"`{f}`" for f in p.get("files", [])) or p.get("note", "")] for p in data["parts"]])
+    assembly = data.get("assembly") or {}
+    if "interference" in assembly:
+        lines += ["", "## Assembly check", ""]
+        if assembly["interference"]:
+            lines += [f"- **failure** {x['message']}" for x in assembly["interference"]]
+        else:
+            lines.append(f"No two of the {assembly['solids']} solids overlap but at designed fits (a shaft in its bores, "
+                         "a pipe on its shaft, a screw in its pillar, meshing teeth).")
+    if data.get("sequence"):
+        lines += ["", "## Assembly sequence", ""] + [f"{k}. {step}" for k, step in enumerate(data["sequence"], start=1)]
+    return lines
+
+
+def _num(v) -> str:
+    return "" if v is None else f"{v:g}"
 
 
 def report_markdown(data: Mapping[str, Any]) -> str:
@@ -187,18 +279,21 @@ def report_markdown(data: Mapping[str, Any]) -> str:
     lay = data["layout"]
     lines += ["## Layout", "", f"Plate {lay['width']:.2f} × {lay['height']:.2f} mm, area {lay['area']:.0f} mm² "
               f"(search: {lay['search']}). Centres in plate coordinates (the plate DXF's).", ""]
-    lines += _table(["shaft", "x", "y", "diameter", "back plate", "front plate"],
-                    [[s["name"], f"{s['x']:.4f}", f"{s['y']:.4f}", f"{s['diameter']:g}", "yes" if s["back_plate"] else "no",
-                      "yes" if s["front_plate"] else "no"] for s in data["shafts"]])
+    lines += _table(["shaft", "x", "y", "diameter", "kind", "held by", "length", "free span"],
+                    [[s["name"], f"{s['x']:.4f}", f"{s['y']:.4f}", f"{s['diameter']:g}", s.get("kind", ""),
+                      ", ".join(s.get("supports", [])) or "-", f"{s['length']:.2f}" if "length" in s else "",
+                      f"{s['free_span']:.2f}" if "free_span" in s else ""] for s in data["shafts"]])
     if data.get("shaft_axial_forces"):
         lines += ["", "Axial forces on the shafts from the helical meshes (N, net of each shaft's gears; a bearing "
                   "that takes thrust wherever it is not 0): " + "; ".join(f"{k} {v:.4g}" for k, v in
                                                                           data["shaft_axial_forces"].items())]
+    lines += _mechanism_markdown(data)
     lines += ["", "## Files", ""]
     for g in data["gears"] + data["plates"]:
         lines.append(f"- {g['name']}: " + ", ".join(f"`{p}`" for p in g["files"].values() if p))
-    if data.get("assembly"):
-        lines.append(f"- assembly: `{data['assembly']}`")
+    assembly = data.get("assembly") or {}
+    if assembly.get("file"):
+        lines.append(f"- assembly: `{assembly['file']}`")
     lines += ["", "## Cautions", ""] + [f"- {c}" for c in data["cautions"]]
     return "\n".join(lines) + "\n"
 

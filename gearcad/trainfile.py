@@ -34,7 +34,7 @@ from .trainspec import GearSpec, Hub, Keyway, PlanetarySpec, SolverSpec, StageSp
 __all__ = ["parse_train", "read_train", "train_to_toml"]
 
 TOP_KEYS = {"name", "title", "target", "module", "thickness", "tooth_system", "pressure_angle", "fabrication",
-            "bore", "coaxial", "stage", "solve", "planetary", "summing"}
+            "bore", "coaxial", "stage", "solve", "planetary", "summing", "join", "studs"}
 PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit", "helix", "hand",
                   "herringbone", "gap"}
 SUMMING_KEYS = {"differential", "sun", "planet", "planets", "ring", "module", "tube", "axis_distance", "shift_limit"}
@@ -264,12 +264,20 @@ def parse_train(text: str, filename: str = "train file") -> TrainSpec:
             stages=_stages(data, ctx), tooth_system=_text(data, "tooth_system", ctx, "iso53-a"),
             pressure_angle=_number(data, "pressure_angle", ctx), fabrication=_text(data, "fabrication", ctx, "laser-3mm-acrylic"),
             bore=_number(data, "bore", ctx, default=3.0), coaxial=_flag(data, "coaxial", ctx), solver=_solver(data, ctx),
-            planetary=_planetary(data, ctx), summing=_summing(data, ctx))
+            planetary=_planetary(data, ctx), summing=_summing(data, ctx), join=_text(data, "join", ctx),
+            studs=_studs(data, ctx))
     except InputError as exc:
         if str(exc).startswith(filename):
             raise
-        key = next((k for k in ("thickness", "module", "bore", "name") if k in str(exc).split(" must")[0]), "name")
+        key = next((k for k in ("thickness", "module", "bore", "join", "name") if k in str(exc).split(" must")[0]), "name")
         raise ctx.error(str(exc), key) from None
+
+
+def _studs(data: dict, ctx: _Context) -> tuple[str, ...]:
+    studs = data.get("studs", [])
+    if not isinstance(studs, list) or not all(isinstance(n, str) for n in studs) or len(studs) > 64:
+        raise ctx.error("must be a list of shaft names, e.g. [\"shaft-2\"]", "studs")
+    return tuple(studs)
 
 
 def read_train(path: str | Path) -> TrainSpec:
@@ -319,6 +327,10 @@ def train_to_toml(spec: TrainSpec) -> str:
     lines += [f"fabrication = {_quoted(spec.fabrication)}", f"bore = {spec.bore!r}"]
     if spec.coaxial:
         lines.append("coaxial = true")
+    if spec.join:
+        lines.append(f"join = {_quoted(spec.join)}")
+    if spec.studs:
+        lines.append("studs = [" + ", ".join(_quoted(n) for n in spec.studs) + "]")
     if spec.planetary is not None:
         p = spec.planetary
         lines += ["", "[planetary]", f"sun = {p.sun}", f"planet = {p.planet}", f"ring = {p.ring}", f"planets = {p.planets}"]

@@ -145,6 +145,7 @@ class PlanetarySpec:
 
 
 DIFFERENTIALS = ("mean", "planetary")
+JOINS = ("fused", "pinned", "flat")  # how the gears of a compound shaft are joined (gearcad.trains.joins)
 
 
 @dataclass(frozen=True)
@@ -209,8 +210,12 @@ class TrainSpec:
     solver: SolverSpec | None = field(default=None, compare=False)
     planetary: PlanetarySpec | None = None
     summing: SummingSpec | None = None
+    join: str | None = None  # how compound pairs are joined: fused, pinned or flat (None: the process's default)
+    studs: tuple[str, ...] = ()  # shafts to hold as fixed studs in one plate, their gears on a pipe (by shaft name)
 
     def __post_init__(self) -> None:
+        if self.join is not None and self.join not in JOINS:
+            raise InputError(f"join must be one of {', '.join(JOINS)}, got {self.join!r}")
         if not self.name or any(c in self.name for c in '/\\:*?"<>|') or self.name.startswith("."):
             raise InputError(f"train name must be a plain file name (no / \\ : * ? \" < > |), got {self.name!r}")
         if not (math.isfinite(self.thickness) and self.thickness > 0):

@@ -17,7 +17,7 @@ from ..errors import ExportError
 from ..jsonable import jsonable
 from .atomic import atomic_write
 
-__all__ = ["BuildOptions", "write_plan", "prepare_folder", "MARKER", "FORMATS"]
+__all__ = ["BuildOptions", "write_plan", "prepare_folder", "parts_csv", "MARKER", "FORMATS"]
 
 MARKER = ".gearcad-output"
 FORMATS = ("dxf", "svg", "step", "stl")
@@ -135,6 +135,9 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
         atomic_write(put(name, "toml", name), lambda tmp, text=text: tmp.write_text(text, encoding="utf-8"))
     data = report_data(plan, files)
     data["warnings"] = sorted(set(warnings))
+    if data.get("parts"):
+        text = parts_csv(data["parts"])
+        atomic_write(put("parts", "csv", "parts.csv"), lambda tmp: tmp.write_text(text, encoding="utf-8"))
     atomic_write(put("report", "json", "report.json"),
                  lambda tmp: tmp.write_text(json.dumps(jsonable(data), indent=2, ensure_ascii=False) + "\n", encoding="utf-8"))
     atomic_write(put("report", "md", "report.md"), lambda tmp: tmp.write_text(report_markdown(data), encoding="utf-8"))
@@ -142,6 +145,22 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
         (folder / stale).unlink(missing_ok=True)
     atomic_write(folder / MARKER, lambda tmp: tmp.write_text("\n".join(sorted(written)) + "\n", encoding="utf-8"))
     return files
+
+
+def parts_csv(parts: list[dict]) -> str:
+    """The parts list as CSV (RFC 4180 quoting; lengths in mm)."""
+    import csv
+    import io
+
+    from ..trains.parts import PARTS_COLUMNS
+
+    out = io.StringIO()
+    writer = csv.writer(out, lineterminator="\n")
+    writer.writerow(PARTS_COLUMNS)
+    for p in parts:
+        writer.writerow(["" if p.get(c) is None else (" ".join(p[c]) if isinstance(p.get(c), list) else p[c])
+                         for c in PARTS_COLUMNS])
+    return out.getvalue()
 
 
 def _layers(options: BuildOptions) -> dict[str, tuple[str, int]] | None:
@@ -203,8 +222,53 @@ def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
             if "step" in options.formats:
                 write_step(solid, put(p.name, "step", f"{p.name}.step"), names=[p.name])
             items.append(AssemblyItem(p.name, solid, 0.0, 0.0, p.z, 0.0))
+        items += _fused_compounds(plan, options, put, note, items)
+        items += _rod_items(plan)
         if options.assembly and "step" in options.formats:
             from .step import assembly_step
 
             note("assembly")
             assembly_step(items, put("assembly", "step", "assembly.step"), name=plan.spec.name)
+
+
+def _rod_items(plan) -> list:
+    """Every bought round part of the mechanism as a placed solid (one solid per size, reused)."""
+    from .step import AssemblyItem, tube_solid
+
+    mech = plan.mechanism
+    if mech is None:
+        return []
+    made: dict[tuple[float, float, float], object] = {}
+    items = []
+    for r in mech.rods:
+        key = (round(r.diameter, 6), round(r.bore, 6), round(r.length, 6))
+        if key not in made:
+            made[key] = tube_solid(r.diameter, r.bore, r.length)
+        items.append(AssemblyItem(r.name, made[key], r.x, r.y, r.z0, 0.0))
+    return items
+
+
+def _fused_compounds(plan, options: BuildOptions, put, note, items) -> list:
+    """FDM: the gears of each compound shaft fused into one part with a hub across the layer gap (STEP and STL)."""
+    from .step import fuse_placed, write_step, write_stl
+
+    mech = plan.mechanism
+    out: list = []
+    for j in (mech.joins if mech else ()):
+        if j.method != "fused" or not j.file:
+            continue
+        note(f"solid {j.file}")
+        members = [it for it in items if it.name in j.gears]
+        gears = [plan.gear(n) for n in j.gears]
+        shaft = plan.shafts[gears[0].shaft]
+        low = min(gears, key=lambda g: g.z)
+        hub_d = min(min(g.gear.root_diameter for g in gears) - 2 * max(g.gear.module for g in gears),
+                    2.5 * low.bore + 2.0)
+        solid = fuse_placed(members, shaft.x, shaft.y, low.z + plan.spec.thickness,
+                            max(g.z for g in gears) - (low.z + plan.spec.thickness), hub_d,
+                            low.bore + plan.fabrication.bore_clearance, plan.tolerance)
+        if "step" in options.formats:
+            write_step(solid, put(j.file, "step", f"{j.file}.step"), names=[j.file])
+        if "stl" in options.formats:
+            write_stl(solid, put(j.file, "stl", f"{j.file}.stl"), options.stl_tolerance, options.stl_angle)
+    return out

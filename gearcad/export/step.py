@@ -54,6 +54,8 @@ __all__ = [
     "assembly_step",
     "helical_solid",
     "HELICAL_VOLUME_TOLERANCE",
+    "fuse_placed",
+    "tube_solid",
 ]
 
 VOLUME_TOLERANCE = 1e-3  # relative: the solid's volume must match area x thickness this closely
@@ -563,6 +565,48 @@ def assembly_step(items: Sequence[AssemblyItem | tuple], path: str | os.PathLike
     with kernel_quiet():
         _, doc = toCAF(assy, False)
     return _write_caf(doc, path)
+
+
+def tube_solid(diameter: float, bore: float, length: float) -> Any:
+    """An exact cylinder (``bore`` 0) or tube along +z from z = 0, mm: shafts, pipes, spacers, pillars, screws."""
+    from OCP.BRepAlgoAPI import BRepAlgoAPI_Cut
+    from OCP.BRepPrimAPI import BRepPrimAPI_MakeCylinder
+
+    if not (diameter > bore >= 0 and length > 0):
+        raise InputError(f"a tube needs diameter > bore >= 0 and length > 0 mm, got {diameter!r}, {bore!r}, {length!r}")
+    with kernel_quiet():
+        shape = BRepPrimAPI_MakeCylinder(diameter / 2, length).Shape()
+        if bore > 0:
+            shape = BRepAlgoAPI_Cut(shape, BRepPrimAPI_MakeCylinder(bore / 2, length).Shape()).Shape()
+    return shape
+
+
+def fuse_placed(items: Sequence["AssemblyItem"], x: float, y: float, hub_z: float, hub_length: float, hub_diameter: float,
+                hole: float, tolerance: float) -> Any:
+    """One solid of placed parts (a compound pair) and a hub (``hub_diameter`` with a ``hole`` bore, mm) between them.
+
+    The result sits in the part's own frame: the axis at (0, 0), the lowest face at z = 0.
+    """
+    from OCP.BRepAlgoAPI import BRepAlgoAPI_Fuse
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_Transform
+    from OCP.gp import gp_Ax1, gp_Dir, gp_Pnt, gp_Trsf, gp_Vec
+
+    low = min(it.z for it in items)
+    shapes = []
+    for it in items:
+        turn, move = gp_Trsf(), gp_Trsf()
+        turn.SetRotation(gp_Ax1(gp_Pnt(0, 0, 0), gp_Dir(0, 0, 1)), math.radians(it.rotation_deg))
+        move.SetTranslation(gp_Vec(0.0, 0.0, float(it.z - low)))
+        shapes.append(BRepBuilderAPI_Transform(_shape(it.solid), move.Multiplied(turn), True).Shape())
+    if hub_length > 1e-9:
+        move = gp_Trsf()
+        move.SetTranslation(gp_Vec(0.0, 0.0, float(hub_z - low)))
+        shapes.append(BRepBuilderAPI_Transform(tube_solid(hub_diameter, hole, hub_length), move, True).Shape())
+    with kernel_quiet():
+        fused = shapes[0]
+        for other in shapes[1:]:
+            fused = BRepAlgoAPI_Fuse(fused, other).Shape()
+    return fused
 
 
 # -- STL -------------------------------------------------------------------------------------
