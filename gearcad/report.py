@@ -185,5 +185,19 @@ def report_markdown(data: Mapping[str, Any]) -> str:
         lines.append(f"- {g['name']}: " + ", ".join(f"`{p}`" for p in g["files"].values() if p))
     if data.get("assembly"):
         lines.append(f"- assembly: `{data['assembly']}`")
+    lines += _sheet_lines(data.get("sheets", ()))
     lines += ["", "## Cautions", ""] + [f"- {c}" for c in data["cautions"]]
     return "\n".join(lines) + "\n"
+
+
+def _sheet_lines(sheets) -> list[str]:
+    """The nested cut sheets: one row per sheet with its parts and the area they use."""
+    if not sheets:
+        return []
+    lines = ["", "## Cut sheets", "",
+             f"Every flat part nested on stock sheets, at least {sheets[0]['spacing_mm']:g} mm apart and from the "
+             "edges; each sheet has a DXF and an SVG of its own name. Cut in file order: marking, holes, outlines.", ""]
+    lines += _table(["sheet", "material", "thickness", "size (mm)", "parts", "part area mm²", "used"],
+                    [[s["name"], s["material"], f"{s['thickness_mm']:g} mm", f"{s['width_mm']:g} × {s['height_mm']:g}",
+                      ", ".join(s["parts"]), f"{s['part_area_mm2']:.0f}", f"{s['used_percent']:.1f} %"] for s in sheets])
+    return lines

@@ -7,7 +7,10 @@ written negated: the drawing is not mirrored and no transform is needed (some
 laser programs ignore transforms).  Each contour is one closed ``<path>`` of
 line (``L``) and arc (``A``) commands made from the contour's bulges; round
 holes are ``<circle>`` elements; both are stroke-only with a hairline stroke.
-Labels are ``<text>`` in their own group.  The same input gives the same bytes.
+Labels are ``<text>`` in their own group, anchored at the left end of their
+baseline.  Laser order: the marking group comes first, then the inner cuts,
+then the outer contours, so a cutter that follows the file's order engraves
+and cuts the holes before it cuts the part free.  The same input gives the same bytes.
 
 Bulge ``b`` of a segment with chord length ``c``: included angle
 ``theta = 4 atan(b)``, radius ``r = c / (2 sin(|theta| / 2))``; the arc is the
@@ -27,7 +30,7 @@ import numpy as np
 
 from ..errors import InputError
 from .atomic import atomic_write
-from ..drawing import CutDrawing, Label
+from ..drawing import CutDrawing, Label, drawing_extents
 
 __all__ = ["DEFAULT_COLOURS", "HAIRLINE", "CAP_HEIGHT_PER_EM", "build_svg", "write_svg", "bulge_radius"]
 
@@ -55,44 +58,8 @@ def bulge_radius(chord: float, bulge: float) -> float:
     return chord / (2.0 * math.sin(2.0 * math.atan(abs(bulge))))
 
 
-def _arc_centre(p0: np.ndarray, p1: np.ndarray, bulge: float) -> np.ndarray:
-    """Centre of the bulge arc from ``p0`` to ``p1``: ``m + perp(c) (1 - b^2) / (4 b)``."""
-    chord = p1 - p0
-    perp = np.array((-chord[1], chord[0]))
-    return (p0 + p1) / 2 + perp * (1 - bulge * bulge) / (4 * bulge)
-
-
-def _arc_extremes(p0: np.ndarray, p1: np.ndarray, bulge: float) -> list[np.ndarray]:
-    """Points where the arc reaches its extreme x or y (for the page size)."""
-    centre = _arc_centre(p0, p1, bulge)
-    radius = float(np.hypot(*(p0 - centre)))
-    start = math.atan2(p0[1] - centre[1], p0[0] - centre[0])
-    sweep = 4 * math.atan(bulge)
-    lo, hi = (start, start + sweep) if sweep > 0 else (start + sweep, start)
-    found = []
-    for k in range(math.ceil(lo / (math.pi / 2)), math.floor(hi / (math.pi / 2)) + 1):
-        a = k * math.pi / 2
-        found.append(centre + radius * np.array((math.cos(a), math.sin(a))))
-    return found
-
-
-def _contour_points(contour: np.ndarray) -> list[np.ndarray]:
-    xy = contour[:, :2]
-    points = list(xy)
-    for i, bulge in enumerate(contour[:, 2]):
-        if bulge:
-            points.extend(_arc_extremes(xy[i], xy[(i + 1) % len(xy)], float(bulge)))
-    return points
-
-
 def _bounds(drawing: CutDrawing) -> tuple[float, float, float, float]:
-    points: list[np.ndarray] = []
-    for contour in drawing.outer + drawing.inner:
-        points.extend(_contour_points(contour))
-    for x, y, d in drawing.circles:
-        points.extend((np.array((x - d / 2, y - d / 2)), np.array((x + d / 2, y + d / 2))))
-    arr = np.array(points)
-    return float(arr[:, 0].min()), float(arr[:, 1].min()), float(arr[:, 0].max()), float(arr[:, 1].max())
+    return drawing_extents(drawing)
 
 
 def _segment(p1: np.ndarray, chord: float, bulge: float) -> str:
@@ -136,7 +103,7 @@ def _label_group(labels: tuple[Label, ...], colour: str) -> list[str]:
     if not labels:
         return []
     head = (f'<g id="marking" fill={quoteattr(colour)} stroke="none" font-family="sans-serif" '
-            'text-anchor="middle" dominant-baseline="central">')
+            'text-anchor="start">')
     return [head, *(f"  {_text(label)}" for label in labels), "</g>"]
 
 
@@ -189,9 +156,9 @@ def build_svg(drawing: CutDrawing, *, margin: float = 1.0, stroke_width: float =
         '<?xml version="1.0" encoding="UTF-8"?>',
         f'<svg xmlns="http://www.w3.org/2000/svg" version="1.1" width="{_num(width)}mm" '
         f'height="{_num(height)}mm" viewBox={quoteattr(view)}>',
-        *_group("cut-outer", col["outer"], stroke_width, outer),
-        *_group("cut-inner", col["inner"], stroke_width, inner),
         *_label_group(drawing.labels, col["marking"]),
+        *_group("cut-inner", col["inner"], stroke_width, inner),
+        *_group("cut-outer", col["outer"], stroke_width, outer),
         "</svg>",
     ]
     return "\n".join(lines) + "\n"
