@@ -9,7 +9,7 @@ from pathlib import Path
 from ._format import print_json
 from ._load import add_load_options, load_from_args
 
-__all__ = ["add_parser", "run", "add_output_options", "build_and_write"]
+__all__ = ["add_parser", "run", "add_output_options", "build_and_write", "parse_sheet"]
 
 DESCRIPTION = """\
 Build a train from its train file (TOML; see README): the checks of every mesh, the
@@ -27,7 +27,8 @@ def add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--dxf-mode", choices=("arcs", "segments", "splines"), default="arcs",
                    help="DXF contours as tangent arcs (default), straight segments, or SPLINE entities")
     p.add_argument("--dxf-version", choices=("R2010", "R2000", "R2013", "R2018", "R12"), default="R2010",
-                   help="DXF version (default R2010; R12 for old controllers, carries no units)")
+                   help="DXF version (default R2010; R12 for old controllers: no SPLINE, no unit variable of "
+                        "its own, marked as millimetres in the ways R12 allows)")
     p.add_argument("--dxf-layers", default="", metavar="SPEC",
                    help="rename DXF layers for your cutter: role=NAME[:COLOUR],... with roles outer, inner, marking "
                         "(defaults CUT_OUTER:5, CUT_INNER:6, MARKING:3; colours are AutoCAD colour indices 1-255)")
@@ -38,6 +39,10 @@ def add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--stl-angle", type=float, default=15.0, metavar="DEG",
                    help="STL angular tolerance, degrees (default 15; the chord tolerance governs accuracy)")
     p.add_argument("--no-assembly", action="store_true", help="skip the assembly STEP")
+    p.add_argument("--sheet", metavar="WxH",
+                   help="stock sheet for the nested cut sheets, width x height in mm, e.g. 600x400 "
+                        "(default: the fabrication profile's sheet)")
+    p.add_argument("--no-sheets", action="store_true", help="skip the nested cut sheets")
     p.add_argument("--json", action="store_true", help="print report.json's content on stdout instead of the summary")
     add_load_options(p)
 
@@ -65,7 +70,28 @@ def _options(args: argparse.Namespace, extra_files=()):
                         stl_tolerance=in_range(args.stl_tolerance, "--stl-tolerance", 1e-3, 1.0, "mm"),
                         stl_angle=in_range(args.stl_angle, "--stl-angle", 0.5, 45.0, "degrees"),
                         assembly=not args.no_assembly, extra_files=tuple(extra_files),
-                        dxf_layers=_layer_spec(args.dxf_layers))
+                        dxf_layers=_layer_spec(args.dxf_layers), sheets=not getattr(args, "no_sheets", False),
+                        sheet_size=parse_sheet(getattr(args, "sheet", None)))
+
+
+def parse_sheet(text: str | None) -> tuple[float, float] | None:
+    """``600x400`` -> (600.0, 400.0) mm; None stays None."""
+    import math
+
+    from ..errors import InputError
+    from ..geometry.nest import MAX_SHEET_SIDE, MIN_SHEET_SIDE
+
+    if text is None:
+        return None
+    width, sep, height = text.strip().lower().replace("×", "x").partition("x")
+    try:
+        size = (float(width), float(height)) if sep else None
+    except ValueError:
+        size = None
+    if size is None or not all(math.isfinite(v) and MIN_SHEET_SIDE <= v <= MAX_SHEET_SIDE for v in size):
+        raise InputError(f"--sheet must read WIDTHxHEIGHT in mm, each from {MIN_SHEET_SIDE:g} to "
+                         f"{MAX_SHEET_SIDE:g} (e.g. 600x400), got {text!r}")
+    return size
 
 
 def _layer_spec(text: str) -> tuple[tuple[str, str, int], ...]:

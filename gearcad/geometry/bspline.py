@@ -10,6 +10,11 @@ directions, so neighbouring curves meet tangentially.  The knots are refined
 the tolerance of the true curve, measured both ways (true points to the spline
 and spline points to the true curve).
 
+Each fitted spline is then put in Bezier form: every inner knot is inserted
+until it is triple (Boehm's knot insertion; the curve is unchanged), so a
+reader that turns splines into cubic Bezier segments (as SVG-based importers
+do) needs no knot arithmetic of its own and gets the curve exactly.
+
 Neighbouring curves are joined into one spline: their knot vectors are laid
 end to end with a knot of multiplicity 3 at each joint, so the joint is a
 control point on the curve.  Straight curves stay straight lines.  A loop
@@ -32,7 +37,8 @@ from .arcfit import STRAIGHT_KINDS, SampledCurve, smooth_pieces
 from .generate import Curve
 from .shape import Loop
 
-__all__ = ["SplinePiece", "LinePiece", "basis_matrix", "evaluate", "fit_curve", "loop_pieces", "DEGREE"]
+__all__ = ["SplinePiece", "LinePiece", "basis_matrix", "evaluate", "fit_curve", "insert_knot", "bezier_form",
+           "loop_pieces", "DEGREE"]
 
 DEGREE = 3
 _FIT_MARGIN = 0.8  # the fit aims at 80 % of the tolerance
@@ -234,6 +240,31 @@ def _refined_breaks(breaks: np.ndarray, u: np.ndarray, per_point: np.ndarray, li
     return np.sort(np.concatenate((breaks, mids)))
 
 
+# -- Bezier form ---------------------------------------------------------------------
+
+def insert_knot(piece: SplinePiece, t: float) -> SplinePiece:
+    """The same curve with knot ``t`` inserted once (Boehm, 1980; de Boor 1978, chapter XI).
+
+    With ``k`` the span holding ``t``, control points ``k - p + 1 .. k`` become
+    ``(1 - a_j) P(j-1) + a_j P(j)`` with ``a_j = (t - t_j) / (t_(j+p) - t_j)``.
+    """
+    c, knots, p = piece.control, piece.knots, DEGREE
+    k = int(np.searchsorted(knots, t, side="right") - 1)
+    j = np.arange(k - p + 1, k + 1)
+    a = ((t - knots[j]) / (knots[j + p] - knots[j]))[:, None]
+    blended = (1.0 - a) * c[j - 1] + a * c[j]
+    control = np.concatenate((c[:k - p + 1], blended, c[k:]))
+    return SplinePiece(control, np.insert(knots, k + 1, t), piece.closed)
+
+
+def bezier_form(piece: SplinePiece) -> SplinePiece:
+    """The same curve with every inner knot triple: a chain of cubic Bezier segments in B-spline form."""
+    for value in np.unique(piece.knots)[1:-1]:
+        while np.count_nonzero(piece.knots == value) < DEGREE:
+            piece = insert_knot(piece, float(value))
+    return piece
+
+
 # -- a loop -------------------------------------------------------------------------
 
 def _check_tolerance(tolerance: float) -> float:
@@ -251,7 +282,7 @@ def _curve_items(curve: Curve, tolerance: float) -> list[LinePiece | SplinePiece
         if piece.kind in STRAIGHT_KINDS:
             items.append(LinePiece(piece.points[0].copy(), piece.points[-1].copy()))
         else:
-            items.append(fit_curve(piece, tolerance))
+            items.append(bezier_form(fit_curve(piece, tolerance)))
     return items
 
 

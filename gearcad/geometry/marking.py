@@ -1,9 +1,10 @@
 """Where a part's marking text goes: inside the part, clear of every hole and cut.
 
 Pure (numpy and shapely).  A line of text is taken as the box a wide sans-serif
-face needs: each character advances :data:`WIDE_ADVANCE` cap heights, glyphs
-reach :data:`ASCENT` cap heights above the baseline (ascenders stand above the
-capitals) and :data:`DESCENT` below it (descenders).  The box must lie inside
+face needs: each character advances :data:`WIDE_ADVANCE` cap heights (the
+capitals and the wide letters of :data:`WIDE_LETTERS` :data:`WIDER_ADVANCE`),
+glyphs reach :data:`ASCENT` cap heights above the baseline (ascenders stand
+above the capitals) and :data:`DESCENT` below it (descenders).  The box must lie inside
 the part's material shrunk by :data:`MARKING_MARGIN` from the outer contour and
 from every hole, so a reader that draws the text in a wider face than gearcad
 assumed still keeps the engraving off the cut lines.
@@ -22,15 +23,19 @@ import numpy as np
 
 from .shape import Part
 
-__all__ = ["TextPlace", "WIDE_ADVANCE", "ASCENT", "DESCENT", "MARKING_MARGIN", "MIN_TEXT_HEIGHT",
+__all__ = ["TextPlace", "WIDE_ADVANCE", "WIDER_ADVANCE", "WIDE_LETTERS", "text_advance", "ASCENT", "DESCENT", "MARKING_MARGIN", "MIN_TEXT_HEIGHT",
            "text_box", "material_region", "place_text"]
 
-# Advance per character of a wide sans-serif face, in cap heights: DejaVu Sans, a wide face,
-# averages about 0.85 over lower-case letters and digits, its widest capitals reach 1.36
-# (common practice: size text for one cap height per character).
+# Advance per character of a wide sans-serif face, in cap heights (common practice: size
+# text for one cap height per character, half as much again for capitals and m, w; a bold
+# wide face such as DejaVu Sans Bold stays within both, the test measures it).
 WIDE_ADVANCE = 1.0
-ASCENT = 1.1  # top of the tallest glyph (ascenders, accents of capitals excluded), cap heights; common practice
-DESCENT = 0.35  # bottom of descenders below the baseline, cap heights; common practice
+WIDER_ADVANCE = 1.6
+WIDE_LETTERS = frozenset("mwMW@%")
+# Top of the tallest glyph and bottom of descenders, in cap heights, with room for an SVG
+# reader whose face has taller capitals per font size than assumed (common practice).
+ASCENT = 1.2
+DESCENT = 0.4
 MARKING_MARGIN = 0.5  # mm of material kept between the text box and every cut; common practice
 MIN_TEXT_HEIGHT = 0.5  # mm: smaller engraving is not legible (common practice)
 _SHRINK_STEP = 0.85  # each try at a smaller height scales it by this
@@ -55,9 +60,14 @@ class TextPlace:
     height: float
 
 
+def text_advance(text: str) -> float:
+    """Width of ``text`` in a wide face, in cap heights."""
+    return sum(WIDER_ADVANCE if c in WIDE_LETTERS or c.isupper() else WIDE_ADVANCE for c in text)
+
+
 def text_box(text: str, x: float, y: float, height: float) -> tuple[float, float, float, float]:
     """The box ``(x0, y0, x1, y1)`` (mm) a wide face needs for ``text`` anchored at ``(x, y)``."""
-    return (x, y - DESCENT * height, x + len(text) * WIDE_ADVANCE * height, y + ASCENT * height)
+    return (x, y - DESCENT * height, x + text_advance(text) * height, y + ASCENT * height)
 
 
 def material_region(part: Part, margin: float = MARKING_MARGIN):

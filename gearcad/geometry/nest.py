@@ -186,8 +186,8 @@ def nest_parts(items: list[NestItem] | tuple[NestItem, ...], width: float, heigh
         box = _orientation(points, item.turns, room)
         if box is None:
             need = min(_boxes(points, _angles(item.turns)), key=lambda b: (b[3] - b[1]) * (b[4] - b[2]))
-            message = (f"part {item.name!r} needs {need[3] - need[1]:.1f} x {need[4] - need[2]:.1f} mm "
-                       f"(with {spacing:g} mm spacing at the edges) and does not fit a {width:g} x {height:g} mm sheet")
+            message = (f"part {item.name!r} ({need[3] - need[1]:.1f} x {need[4] - need[2]:.1f} mm) does not fit a "
+                       f"{width:g} x {height:g} mm sheet with {spacing:g} mm kept clear at its edges")
             if strict:
                 raise InputError(message + "; give a larger sheet with --sheet WxH")
             left_out.append(item.name)
