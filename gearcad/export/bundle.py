@@ -111,7 +111,8 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
                 warnings += write_dxf(drawing, put(stem, "dxf", f"{stem}.dxf"), version=options.dxf_version,
                                       layers=_layers(options))
             if "svg" in options.formats:
-                write_svg(sheet_drawing(sheet, parts, "arcs", options.dxf_tolerance, arcs), put(stem, "svg", f"{stem}.svg"))
+                write_svg(sheet_drawing(sheet, parts, "arcs", options.dxf_tolerance, arcs), put(stem, "svg", f"{stem}.svg"),
+                          page=(0.0, 0.0, sheet.width, sheet.height))
         warnings += [f"part {name} is larger than the {group.nesting.sheets[0].width if group.nesting.sheets else 0:g} mm "
                      "sheet of the fabrication profile and is on no cut sheet (give --sheet WxH)"
                      for name in group.nesting.left_out]

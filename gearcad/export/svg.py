@@ -125,7 +125,8 @@ def _check(drawing: CutDrawing, margin: float, stroke_width: float) -> None:
 
 
 def build_svg(drawing: CutDrawing, *, margin: float = 1.0, stroke_width: float = HAIRLINE,
-              colours: Mapping[str, str] | None = None) -> str:
+              colours: Mapping[str, str] | None = None,
+              page: tuple[float, float, float, float] | None = None) -> str:
     """The SVG document of ``drawing`` as text.
 
     Parameters
@@ -138,6 +139,9 @@ def build_svg(drawing: CutDrawing, *, margin: float = 1.0, stroke_width: float =
         Stroke width of cut lines, mm.
     colours : mapping, optional
         Role (``"outer"``, ``"inner"``, ``"marking"``) to an SVG colour.
+    page : (x0, y0, x1, y1), optional
+        The page in drawing coordinates, mm (a nested sheet: the stock sheet);
+        default the drawing's extents with ``margin`` round them.
 
     Returns
     -------
@@ -146,7 +150,13 @@ def build_svg(drawing: CutDrawing, *, margin: float = 1.0, stroke_width: float =
     """
     _check(drawing, margin, stroke_width)
     col = _colours(colours)
-    x0, y0, x1, y1 = _bounds(drawing)
+    if page is None:
+        x0, y0, x1, y1 = _bounds(drawing)
+    else:
+        x0, y0, x1, y1 = (float(v) for v in page)
+        margin = 0.0
+        if not (all(math.isfinite(v) for v in (x0, y0, x1, y1)) and x1 > x0 and y1 > y0):
+            raise InputError(f"SVG page must be (x0, y0, x1, y1) with x1 > x0 and y1 > y0 in mm, got {page!r}")
     width, height = x1 - x0 + 2 * margin, y1 - y0 + 2 * margin
     view = f"{_num(x0 - margin)} {_num(-y1 - margin)} {_num(width)} {_num(height)}"
     outer = [f'<path d="{_path_data(c)}"/>' for c in drawing.outer]
@@ -165,7 +175,8 @@ def build_svg(drawing: CutDrawing, *, margin: float = 1.0, stroke_width: float =
 
 
 def write_svg(drawing: CutDrawing, path: str | os.PathLike[str], *, margin: float = 1.0,
-              stroke_width: float = HAIRLINE, colours: Mapping[str, str] | None = None) -> Path:
+              stroke_width: float = HAIRLINE, colours: Mapping[str, str] | None = None,
+              page: tuple[float, float, float, float] | None = None) -> Path:
     """Write the SVG of ``drawing`` atomically; see :func:`build_svg` for the parameters.
 
     Returns
@@ -178,5 +189,5 @@ def write_svg(drawing: CutDrawing, path: str | os.PathLike[str], *, margin: floa
     ExportError
         The file could not be written.
     """
-    data = build_svg(drawing, margin=margin, stroke_width=stroke_width, colours=colours).encode("utf-8")
+    data = build_svg(drawing, margin=margin, stroke_width=stroke_width, colours=colours, page=page).encode("utf-8")
     return atomic_write(path, lambda tmp: tmp.write_bytes(data))

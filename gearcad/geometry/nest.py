@@ -1,17 +1,20 @@
 """Nesting flat parts on sheets of stock: where each part goes, turned as the process allows.
 
 Pure (numpy).  Each part is taken by the rectangle that holds its outer contour
-in the orientation chosen for it; the rectangles are packed in shelves (rows),
-tallest first, each placed on the first shelf of the first sheet with room
-(first-fit decreasing height), a new shelf or a new sheet opened when none has.
-Neighbouring rectangles, and the rectangles and the sheet's edges, are kept
-``spacing`` apart, so the parts themselves are at least that far apart.
+in an orientation it may take.  The rectangles are packed by the maximal-rectangles
+method (Jylanki, "A thousand ways to pack the bin", 2010): the free room of a
+sheet is kept as the list of all maximal empty rectangles; the largest part
+comes first and goes where it leaves the shortest leftover side (best short
+side fit), on the first sheet with room, a new sheet when none has.  Every
+rectangle is grown by ``spacing`` on its right and upper side and the sheet's
+usable room starts ``spacing`` in from its lower-left edges, so the parts are
+at least ``spacing`` apart and from every edge of the sheet.
 
 Turning: a part marked ``free`` (a gear: its outline looks the same every
-tooth, and the material has no grain that matters for it) is tried at every
-15 degrees for its smallest rectangle; ``quarter`` parts (plates, carriers) at
-0 and 90 degrees; ``none`` parts keep their drawn orientation.  Lengths in mm,
-angles in radians.
+tooth, and the material has no grain that matters for it) may take 0 and 90
+degrees and the turn (in 15 degree steps) with the smallest rectangle;
+``quarter`` parts (plates, carriers) 0 and 90 degrees; ``none`` parts keep
+their drawn orientation.  Lengths in mm, angles in radians.
 """
 
 from __future__ import annotations
@@ -102,15 +105,7 @@ def turned_part(part: Part, angle: float) -> Part:
     return Part(part.name, loop(part.outer), tuple(loop(h) for h in part.holes), circles, part.label, part.symmetry)
 
 
-def _angles(turns: str) -> np.ndarray:
-    if turns == "free":
-        return np.arange(0.0, math.pi, _FREE_STEP)
-    if turns == "quarter":
-        return np.array([0.0, math.pi / 2])
-    return np.array([0.0])
-
-
-def _boxes(points: np.ndarray, angles: np.ndarray) -> list[tuple[float, float, float, float, float]]:
+def _boxes(points: np.ndarray, angles) -> list[tuple[float, float, float, float, float]]:
     """(angle, x0, y0, x1, y1) of the outline's bounding box in each orientation."""
     found = []
     for a in angles:
@@ -121,28 +116,61 @@ def _boxes(points: np.ndarray, angles: np.ndarray) -> list[tuple[float, float, f
     return found
 
 
-def _orientation(points: np.ndarray, turns: str, room: tuple[float, float]):
-    """The orientation that fits ``room`` with the smallest height (then area), or None."""
-    fitting = [b for b in _boxes(points, _angles(turns)) if b[3] - b[1] <= room[0] and b[4] - b[2] <= room[1]]
-    if not fitting:
-        return None
-    # heights within 0.1 mm count as equal, so a gear keeps its drawn orientation unless turning gains
-    return min(fitting, key=lambda b: (round(b[4] - b[2], 1), round((b[3] - b[1]) * (b[4] - b[2])), b[0]))
-
-
-@dataclass
-class _Shelf:
-    y: float
-    height: float
-    x: float  # next free x
+def _orientations(points: np.ndarray, turns: str) -> list[tuple[float, float, float, float, float]]:
+    """The boxes of the orientations a part may take (see the module docstring)."""
+    if turns == "none":
+        return _boxes(points, [0.0])
+    boxes = _boxes(points, [0.0, math.pi / 2])
+    if turns == "free":
+        area = [(b[3] - b[1]) * (b[4] - b[2]) for b in _boxes(points, np.arange(0.0, math.pi / 2, _FREE_STEP))]
+        best = float(np.arange(0.0, math.pi / 2, _FREE_STEP)[int(np.argmin(area))])
+        if min(area) < 0.99 * area[0]:  # turning gains more than 1 % of the rectangle
+            boxes += _boxes(points, [best, best + math.pi / 2])
+    return boxes
 
 
 @dataclass
 class _Open:
-    shelves: list[_Shelf]
-    top: float  # next free y
+    free: list[tuple[float, float, float, float]]  # maximal empty rectangles (x, y, w, h)
     placements: list[Placement]
     area: float
+
+
+def _best_spot(free, w: float, h: float) -> tuple[float, float, int] | None:
+    """(short leftover side, long leftover side, index) of the best free rectangle for w x h, or None."""
+    best = None
+    for k, (_, _, fw, fh) in enumerate(free):
+        if w <= fw + 1e-9 and h <= fh + 1e-9:
+            lw, lh = fw - w, fh - h
+            score = (min(lw, lh), max(lw, lh), k)
+            if best is None or score < best:
+                best = score
+    return best
+
+
+def _occupy(free, x: float, y: float, w: float, h: float) -> list[tuple[float, float, float, float]]:
+    """The maximal free rectangles left once the rectangle (x, y, w, h) is taken."""
+    out = []
+    for fx, fy, fw, fh in free:
+        if x >= fx + fw - 1e-9 or x + w <= fx + 1e-9 or y >= fy + fh - 1e-9 or y + h <= fy + 1e-9:
+            out.append((fx, fy, fw, fh))
+            continue
+        if x > fx:
+            out.append((fx, fy, x - fx, fh))
+        if x + w < fx + fw:
+            out.append((x + w, fy, fx + fw - x - w, fh))
+        if y > fy:
+            out.append((fx, fy, fw, y - fy))
+        if y + h < fy + fh:
+            out.append((fx, y + h, fw, fy + fh - y - h))
+    out = [r for r in out if r[2] > 1e-9 and r[3] > 1e-9]
+    return [r for i, r in enumerate(out)
+            if not any(j != i and _contains(o, r) and (o != r or j < i) for j, o in enumerate(out))]
+
+
+def _contains(outer, inner) -> bool:
+    return (inner[0] >= outer[0] - 1e-9 and inner[1] >= outer[1] - 1e-9
+            and inner[0] + inner[2] <= outer[0] + outer[2] + 1e-9 and inner[1] + inner[3] <= outer[1] + outer[3] + 1e-9)
 
 
 def _check_size(width: float, height: float, spacing: float) -> None:
@@ -155,7 +183,7 @@ def _check_size(width: float, height: float, spacing: float) -> None:
 
 def nest_parts(items: list[NestItem] | tuple[NestItem, ...], width: float, height: float, spacing: float,
                strict: bool = True) -> Nesting:
-    """Lay ``items`` on as few ``width`` x ``height`` sheets as the shelf packing needs.
+    """Lay ``items`` on as few ``width`` x ``height`` sheets as the packing needs.
 
     Parameters
     ----------
@@ -182,49 +210,45 @@ def nest_parts(items: list[NestItem] | tuple[NestItem, ...], width: float, heigh
     room = (width - 2 * spacing, height - 2 * spacing)
     sized, left_out = [], []
     for item in items:
-        points = item.part.outer.points()
-        box = _orientation(points, item.turns, room)
-        if box is None:
-            need = min(_boxes(points, _angles(item.turns)), key=lambda b: (b[3] - b[1]) * (b[4] - b[2]))
+        boxes = _orientations(item.part.outer.points(), item.turns)
+        fitting = [b for b in boxes if b[3] - b[1] <= room[0] + 1e-9 and b[4] - b[2] <= room[1] + 1e-9]
+        if not fitting:
+            need = min(boxes, key=lambda b: (b[3] - b[1]) * (b[4] - b[2]))
             message = (f"part {item.name!r} ({need[3] - need[1]:.1f} x {need[4] - need[2]:.1f} mm) does not fit a "
                        f"{width:g} x {height:g} mm sheet with {spacing:g} mm kept clear at its edges")
             if strict:
                 raise InputError(message + "; give a larger sheet with --sheet WxH")
             left_out.append(item.name)
             continue
-        sized.append((item, box))
-    sized.sort(key=lambda ib: (-(ib[1][4] - ib[1][2]), -(ib[1][3] - ib[1][1]), ib[0].name))
+        sized.append((item, fitting))
+    # largest first: by the rectangle's area, then its longer side, then name (a stable order)
+    sized.sort(key=lambda it: (-min((b[3] - b[1]) * (b[4] - b[2]) for b in it[1]),
+                               -min(max(b[3] - b[1], b[4] - b[2]) for b in it[1]), it[0].name))
     sheets: list[_Open] = []
-    for item, (angle, x0, y0, x1, y1) in sized:
-        w, h = x1 - x0, y1 - y0
-        sheet, shelf = _find_room(sheets, w, h, width, height, spacing)
-        if sheet is None:
-            sheet = _Open([], spacing, [], 0.0)
-            sheets.append(sheet)
-        if shelf is None:
-            shelf = _Shelf(sheet.top, h, spacing)
-            sheet.shelves.append(shelf)
-            sheet.top += h + spacing
-        sheet.placements.append(Placement(item.name, angle, shelf.x - x0, shelf.y - y0))
-        sheet.area += item.part.area()
-        shelf.x += w + spacing
+    for item, boxes in sized:
+        for sheet in sheets + [None]:
+            if sheet is None:
+                sheet = _Open([(spacing, spacing, width - spacing, height - spacing)], [], 0.0)
+                sheets.append(sheet)
+            choice = None
+            for box in boxes:
+                w, h = box[3] - box[1] + spacing, box[4] - box[2] + spacing
+                spot = _best_spot(sheet.free, w, h)
+                if spot is not None and (choice is None or spot[:2] < choice[0][:2]):
+                    choice = (spot, box, w, h)
+            if choice is None:
+                continue
+            (_, _, k), (angle, x0, y0, _, _), w, h = choice
+            fx, fy = sheet.free[k][0], sheet.free[k][1]
+            sheet.placements.append(Placement(item.name, angle, fx - x0, fy - y0))
+            sheet.area += item.part.area()
+            sheet.free = _occupy(sheet.free, fx, fy, w, h)
+            break
     done = tuple(Sheet(float(width), float(height), tuple(s.placements), s.area) for s in sheets)
     return Nesting(done, tuple(left_out))
-
-
-def _find_room(sheets: list[_Open], w: float, h: float, width: float, height: float, spacing: float):
-    """The first (sheet, shelf) with room for a ``w`` x ``h`` box; shelf None: open one on that sheet."""
-    for sheet in sheets:
-        for shelf in sheet.shelves:
-            if h <= shelf.height + 1e-9 and shelf.x + w <= width - spacing + 1e-9:
-                return sheet, shelf
-        if sheet.top + h <= height - spacing + 1e-9:
-            return sheet, None
-    return None, None
 
 
 def placed_points(points: np.ndarray, placement: Placement) -> np.ndarray:
     """Points (N, 2, mm) of a part's own coordinates moved to their place on the sheet."""
     c, s = math.cos(placement.rotation), math.sin(placement.rotation)
     return points @ np.array([[c, -s], [s, c]]).T + (placement.dx, placement.dy)
-
