@@ -89,6 +89,8 @@ class SheetGroup:
     thickness: float
     nesting: Nesting
     spacing: float
+    width: float  # sheet size, mm
+    height: float
 
     @property
     def slug(self) -> str:
@@ -120,7 +122,7 @@ def plan_sheets(plan, size: tuple[float, float] | None = None) -> tuple[SheetGro
     for fp in flat_parts(plan):
         groups.setdefault((fp.material, fp.thickness), []).append(NestItem(fp.name, fp.part, fp.turns))
     return tuple(SheetGroup(material, thickness, nest_parts(items, width, height, spacing, strict=size is not None),
-                            spacing)
+                            spacing, float(width), float(height))
                  for (material, thickness), items in groups.items())
 
 

@@ -228,3 +228,20 @@ def test_bad_sheet_sizes_are_refused(tmp_path, capsys, text):
     code = main(["build", str(tmp_path / "t.toml"), "--out", str(tmp_path / "out"), f"--sheet={text}"])
     assert code == 2 and not (tmp_path / "out").exists()
     assert "--sheet" in capsys.readouterr().err
+
+
+def test_parts_larger_than_the_profiles_sheet_are_left_off_with_a_warning(tmp_path):
+    shipped = resources.files("gearcad.profile_data").joinpath("fabrication", "laser-3mm-acrylic.toml")
+    text = shipped.read_text(encoding="utf-8").replace("value = 600.0", "value = 120.0").replace(
+        "value = 400.0", "value = 100.0")
+    (tmp_path / "small-sheet.toml").write_text(text, encoding="utf-8")
+    train = demo_text().replace('fabrication = "laser-3mm-acrylic"', f'fabrication = "{tmp_path / "small-sheet.toml"}"')
+    assert str(tmp_path) in train
+    (tmp_path / "t.toml").write_text(train, encoding="utf-8")
+    out = tmp_path / "out"
+    assert main(["build", str(tmp_path / "t.toml"), "--out", str(out), "--formats", "dxf"]) in (0, 1)
+    report = json.loads((out / "report.json").read_text())
+    on_sheets = {p for s in report["sheets"] for p in s["parts"]}
+    assert {"back-plate", "front-plate"}.isdisjoint(on_sheets)
+    assert {g["name"] for g in report["gears"]} <= on_sheets
+    assert any("back-plate" in w and "120 x 100 mm" in w for w in report["warnings"])

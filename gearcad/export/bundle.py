@@ -113,8 +113,8 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
             if "svg" in options.formats:
                 write_svg(sheet_drawing(sheet, parts, "arcs", options.dxf_tolerance, arcs), put(stem, "svg", f"{stem}.svg"),
                           page=(0.0, 0.0, sheet.width, sheet.height))
-        warnings += [f"part {name} is larger than the {group.nesting.sheets[0].width if group.nesting.sheets else 0:g} mm "
-                     "sheet of the fabrication profile and is on no cut sheet (give --sheet WxH)"
+        warnings += [f"part {name} is larger than the fabrication profile's {group.width:g} x {group.height:g} mm "
+                     "sheet and is on no cut sheet (give a larger one with --sheet WxH)"
                      for name in group.nesting.left_out]
     if "step" in options.formats or "stl" in options.formats:
         _write_solids(plan, folder, options, put, note)
