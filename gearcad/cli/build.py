@@ -14,7 +14,8 @@ __all__ = ["add_parser", "run", "add_output_options", "build_and_write", "parse_
 DESCRIPTION = """\
 Build a train from its train file (TOML; see README): the checks of every mesh, the
 shaft layout and plates, and the files: DXF and SVG outlines (kerf applied for laser
-cutting), STEP and STL solids, an assembly, report.md, report.json and preview.png.
+cutting), nested cut sheets per material and thickness, STEP and STL solids, an
+assembly, report.md, report.json and preview.png.
 Exit 0: no check failed; 1: a check failed (files are still written); 2: bad input."""
 
 
@@ -25,7 +26,8 @@ def add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--formats", default="dxf,svg,step,stl", metavar="LIST",
                    help="which files per part, from dxf,svg,step,stl (default: all)")
     p.add_argument("--dxf-mode", choices=("arcs", "segments", "splines"), default="arcs",
-                   help="DXF contours as tangent arcs (default), straight segments, or SPLINE entities")
+                   help="DXF contours as tangent arcs (default), straight segments, or cubic B-splines "
+                        "(SPLINE with control points and knots; straight edges stay LINE; SVG keeps arcs)")
     p.add_argument("--dxf-version", choices=("R2010", "R2000", "R2013", "R2018", "R12"), default="R2010",
                    help="DXF version (default R2010; R12 for old controllers: no SPLINE, no unit variable of "
                         "its own, marked as millimetres in the ways R12 allows)")
