@@ -222,7 +222,8 @@ def fit_curve(curve: Curve, tolerance: float) -> SplinePiece:
         knots = _clamped_knots(breaks)
         piece = SplinePiece(_least_squares(true_pts, u, knots, t0, t1), knots)
         worst, per_point = _deviation(true_pts, piece)
-        if worst <= limit:
+        forward = (piece.control[1] - piece.control[0]) @ t0 > 0 and (piece.control[-1] - piece.control[-2]) @ t1 > 0
+        if worst <= limit and forward:  # within the tolerance, leaving and arriving along the curve
             return piece
         if len(breaks) - 1 >= _MAX_SPANS:
             raise GeometryError(f"cannot fit a B-spline within {tolerance:g} mm to a {curve.kind} curve "
@@ -231,7 +232,10 @@ def fit_curve(curve: Curve, tolerance: float) -> SplinePiece:
 
 
 def _refined_breaks(breaks: np.ndarray, u: np.ndarray, per_point: np.ndarray, limit: float, worst: float) -> np.ndarray:
-    """Halve every span holding a true point off by more than the limit (all spans if none is found)."""
+    """Halve every span holding a true point off by more than the limit (all spans if none is found).
+
+    An end leg pointing backwards has no point off the limit: then every span is halved too.
+    """
     span = np.clip(np.searchsorted(breaks, u, side="right") - 1, 0, len(breaks) - 2)
     bad = np.unique(span[per_point > limit])
     if bad.size == 0:  # the spline strays between true points: refine everywhere
