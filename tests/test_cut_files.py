@@ -336,3 +336,40 @@ def test_svg_page_holds_the_whole_drawing(tmp_path):
     vx, vy, vw, vh = (float(v) for v in root.get("viewBox").split())
     assert (vx, -(vy + vh), vx + vw, -vy) == pytest.approx((-1.0, -1.0, 81.0, 51.0), abs=1e-6)
     assert math.isclose(float(root.get("width")[:-2]), vw)
+
+
+SUMMING = """name = "sum-planetary"
+module = 1.0
+thickness = 3.0
+target = "127/200"
+[summing]
+differential = "planetary"
+sun = 15
+planet = 21
+ring = 57
+planets = 3
+[[stage]]
+driver = 29
+driven = { teeth = 15, shift = 0.23 }
+idler = 30
+[[stage]]
+driver = 22
+driven = 75
+idler = 30
+"""
+
+
+def test_every_part_of_a_summing_train_is_marked_inside_its_material():
+    from gearcad.geometry.marking import material_region
+    from gearcad.plan import plan_train
+    from gearcad.sheets import flat_parts
+    from gearcad.trainfile import parse_train
+
+    plan = plan_train(parse_train(SUMMING))
+    parts = flat_parts(plan)
+    assert any("carrier" in fp.name for fp in parts) and any(fp.name.startswith("ring") for fp in parts)
+    for fp in parts:
+        drawing = part_drawing(fp.part, "arcs", 1e-3, fp.label_at, fp.label_height)
+        (label,) = drawing.labels
+        check_inside(wide_box(label.text, label.x, label.y, cap_height=label.height),
+                     material_region(fp.part, 0.0), fp.name)
