@@ -117,7 +117,7 @@ def _colours(colours: Mapping[str, str] | None) -> dict[str, str]:
 
 def _check(drawing: CutDrawing, margin: float, stroke_width: float) -> None:
     if drawing.outer_splines or drawing.inner_splines:
-        raise InputError("SVG takes contours as bulge polylines; spline fit points are for DXF only")
+        raise InputError("SVG takes contours as bulge polylines (lines and arcs); B-spline contours are for DXF only")
     if not (math.isfinite(margin) and margin >= 0):
         raise InputError(f"SVG margin must be 0 mm or more, got {margin!r}")
     if not (math.isfinite(stroke_width) and stroke_width > 0):
