@@ -1,4 +1,4 @@
-"""The neutral form of a cut file: contours as ``x, y, bulge`` rows, circles, labels (mm).
+"""The neutral form of a cut file: contours as ``x, y, bulge`` rows or B-splines, circles, labels (mm).
 
 Pure data with validation; the DXF and SVG writers consume it, the planning code
 (``gearcad.drawings``) produces it from a plan.
@@ -12,8 +12,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from .errors import InputError
+from .geometry.bspline import DEGREE, LinePiece, SplinePiece
 
-__all__ = ["Label", "CutDrawing", "polyline_contour", "MIN_SEGMENT"]
+__all__ = ["Label", "CutDrawing", "polyline_contour", "MIN_SEGMENT", "LinePiece", "SplinePiece", "arc_extremes",
+           "drawing_extents", "moved_drawing", "merged_drawing"]
 
 MIN_SEGMENT = 1e-9  # mm: shorter segments count as a repeated vertex
 
@@ -27,7 +29,8 @@ class Label:
     text : str
         The text, one line.
     x, y : float
-        Centre of the text (middle of its height and width), mm.
+        Left end of the text's baseline, mm (the insert point of a left-aligned
+        text, so a reader that ignores alignment still places it right).
     height : float
         Capital height, mm.
     """
@@ -76,13 +79,28 @@ def _contour(data: object, what: str) -> np.ndarray:
     return _frozen(arr)
 
 
-def _fit_points(data: object, what: str) -> np.ndarray:
-    """An (N, 2) read-only copy of spline fit points, checked."""
-    arr = np.array(data, dtype=float)
-    if arr.ndim != 2 or arr.shape[1] != 2 or len(arr) < 3:
-        raise InputError(f"{what}: expected (N, 2) fit points with N >= 3, got shape {arr.shape}")
-    _check_vertices(arr, what)
-    return _frozen(arr)
+def _spline_contour(data: object, what: str) -> tuple[LinePiece | SplinePiece, ...]:
+    """A chain of lines and B-splines, checked: finite, consistent knots, each piece ending where the next starts."""
+    pieces = tuple(data)  # type: ignore[arg-type]
+    if not pieces or not all(isinstance(p, (LinePiece, SplinePiece)) for p in pieces):
+        raise InputError(f"{what}: expected a non-empty chain of LinePiece and SplinePiece")
+    for k, piece in enumerate(pieces):
+        if isinstance(piece, SplinePiece):
+            control, knots = np.asarray(piece.control), np.asarray(piece.knots)
+            if control.ndim != 2 or control.shape[1] != 2 or len(control) <= DEGREE:
+                raise InputError(f"{what}, piece {k}: a cubic spline needs (N, 2) control points with N >= 4")
+            if knots.shape != (len(control) + DEGREE + 1,) or np.any(np.diff(knots) < 0):
+                raise InputError(f"{what}, piece {k}: knots must be non-decreasing, N + 4 of them")
+            if not (np.isfinite(control).all() and np.isfinite(knots).all()):
+                raise InputError(f"{what}, piece {k}: control points and knots must be finite numbers")
+        elif not (np.isfinite(piece.start).all() and np.isfinite(piece.end).all()):
+            raise InputError(f"{what}, piece {k}: line ends must be finite numbers (mm)")
+    ends = [np.asarray(p.end) for p in pieces]
+    starts = [np.asarray(p.start) for p in pieces[1:] + pieces[:1]]
+    gaps = [float(np.hypot(*(a - b))) for a, b in zip(ends, starts)]
+    if max(gaps) > 1e-6:
+        raise InputError(f"{what}: pieces do not join (gap {max(gaps):.3g} mm); the chain must be closed")
+    return pieces
 
 
 def _circle(data: object, k: int) -> tuple[float, float, float]:
@@ -110,9 +128,10 @@ class CutDrawing:
         Inner contours (holes that are not plain circles), same form.
     circles : tuple of (x, y, diameter)
         Round holes, mm.
-    outer_splines, inner_splines : tuple of numpy.ndarray
-        Contours given as (N, 2) spline fit points instead (first point not
-        repeated), for the SPLINE mode; R2000 and later only.
+    outer_splines, inner_splines : tuple of tuple
+        Contours given as closed chains of :class:`LinePiece` and
+        :class:`SplinePiece` (cubic B-splines: control points and knots) instead,
+        for the spline mode; R2000 and later only.
     labels : tuple of Label
         Marking texts.
     """
@@ -120,8 +139,8 @@ class CutDrawing:
     outer: tuple[np.ndarray, ...] = ()
     inner: tuple[np.ndarray, ...] = ()
     circles: tuple[tuple[float, float, float], ...] = ()
-    outer_splines: tuple[np.ndarray, ...] = ()
-    inner_splines: tuple[np.ndarray, ...] = ()
+    outer_splines: tuple[tuple[LinePiece | SplinePiece, ...], ...] = ()
+    inner_splines: tuple[tuple[LinePiece | SplinePiece, ...], ...] = ()
     labels: tuple[Label, ...] = ()
 
     def __post_init__(self) -> None:
@@ -129,8 +148,8 @@ class CutDrawing:
         put(self, "outer", tuple(_contour(c, f"outer contour {k}") for k, c in enumerate(self.outer)))
         put(self, "inner", tuple(_contour(c, f"inner contour {k}") for k, c in enumerate(self.inner)))
         put(self, "circles", tuple(_circle(c, k) for k, c in enumerate(self.circles)))
-        put(self, "outer_splines", tuple(_fit_points(c, f"outer spline {k}") for k, c in enumerate(self.outer_splines)))
-        put(self, "inner_splines", tuple(_fit_points(c, f"inner spline {k}") for k, c in enumerate(self.inner_splines)))
+        put(self, "outer_splines", tuple(_spline_contour(c, f"outer spline {k}") for k, c in enumerate(self.outer_splines)))
+        put(self, "inner_splines", tuple(_spline_contour(c, f"inner spline {k}") for k, c in enumerate(self.inner_splines)))
         put(self, "labels", tuple(self.labels))
         if not (self.outer or self.inner or self.circles or self.outer_splines or self.inner_splines):
             raise InputError("a cut drawing needs at least one contour or circle")
@@ -153,3 +172,90 @@ def polyline_contour(points: np.ndarray) -> np.ndarray:
     return np.column_stack((pts, np.zeros(len(pts))))
 
 
+
+
+def _arc_centre(p0: np.ndarray, p1: np.ndarray, bulge: float) -> np.ndarray:
+    """Centre of the bulge arc from ``p0`` to ``p1``: ``m + perp(c) (1 - b^2) / (4 b)``."""
+    chord = p1 - p0
+    perp = np.array((-chord[1], chord[0]))
+    return (p0 + p1) / 2 + perp * (1 - bulge * bulge) / (4 * bulge)
+
+
+def arc_extremes(p0: np.ndarray, p1: np.ndarray, bulge: float) -> list[np.ndarray]:
+    """Points where the bulge arc from ``p0`` to ``p1`` (mm) reaches an extreme x or y, mm."""
+    centre = _arc_centre(p0, p1, bulge)
+    radius = float(np.hypot(*(p0 - centre)))
+    start = math.atan2(p0[1] - centre[1], p0[0] - centre[0])
+    sweep = 4 * math.atan(bulge)
+    lo, hi = (start, start + sweep) if sweep > 0 else (start + sweep, start)
+    found = []
+    for k in range(math.ceil(lo / (math.pi / 2)), math.floor(hi / (math.pi / 2)) + 1):
+        a = k * math.pi / 2
+        found.append(centre + radius * np.array((math.cos(a), math.sin(a))))
+    return found
+
+
+def _contour_points(contour: np.ndarray) -> np.ndarray:
+    xy = contour[:, :2]
+    points = [xy]
+    for i in np.flatnonzero(contour[:, 2]):
+        found = arc_extremes(xy[i], xy[(i + 1) % len(xy)], float(contour[i, 2]))
+        if found:
+            points.append(np.array(found))
+    return np.concatenate(points)
+
+
+def _spline_points(pieces: tuple[LinePiece | SplinePiece, ...]) -> np.ndarray:
+    """Points of a spline contour dense enough for its bounding box (64 per knot span)."""
+    from .geometry.bspline import evaluate
+
+    points = []
+    for piece in pieces:
+        if isinstance(piece, LinePiece):
+            points.append(np.array([piece.start, piece.end], dtype=float))
+        else:
+            breaks = np.unique(piece.knots)
+            f = np.linspace(0.0, 1.0, 65)
+            u = (breaks[:-1, None] + f[None, :] * np.diff(breaks)[:, None]).ravel()
+            points.append(evaluate(piece, u))
+    return np.concatenate(points)
+
+
+def drawing_extents(drawing: CutDrawing) -> tuple[float, float, float, float]:
+    """The bounding box ``(x0, y0, x1, y1)`` of the cut geometry (contours, circles, splines), mm.
+
+    Exact for lines, arcs and circles (arcs by their extreme points); splines by
+    64 points per knot span.  Labels lie inside their parts and are not counted.
+    """
+    points = [_contour_points(c) for c in drawing.outer + drawing.inner]
+    points += [_spline_points(c) for c in drawing.outer_splines + drawing.inner_splines]
+    points += [np.array([(x - d / 2, y - d / 2), (x + d / 2, y + d / 2)]) for x, y, d in drawing.circles]
+    arr = np.concatenate(points)
+    low, high = arr.min(axis=0), arr.max(axis=0)
+    return float(low[0]), float(low[1]), float(high[0]), float(high[1])
+
+
+def moved_drawing(drawing: CutDrawing, dx: float, dy: float) -> CutDrawing:
+    """``drawing`` moved by ``(dx, dy)`` mm (bulges, knots and text heights unchanged)."""
+    shift = np.array([dx, dy, 0.0])
+    offset = np.array([dx, dy])
+
+    def pieces(chain):
+        return tuple(LinePiece(p.start + offset, p.end + offset) if isinstance(p, LinePiece)
+                     else SplinePiece(p.control + offset, p.knots, p.closed) for p in chain)
+
+    return CutDrawing(outer=tuple(c + shift for c in drawing.outer), inner=tuple(c + shift for c in drawing.inner),
+                      circles=tuple((x + dx, y + dy, d) for x, y, d in drawing.circles),
+                      outer_splines=tuple(pieces(c) for c in drawing.outer_splines),
+                      inner_splines=tuple(pieces(c) for c in drawing.inner_splines),
+                      labels=tuple(Label(t.text, t.x + dx, t.y + dy, t.height) for t in drawing.labels))
+
+
+def merged_drawing(drawings: list[CutDrawing] | tuple[CutDrawing, ...]) -> CutDrawing:
+    """One drawing holding every contour, circle and label of ``drawings`` (a nested sheet)."""
+    return CutDrawing(outer=tuple(c for d in drawings for c in d.outer),
+                      inner=tuple(c for d in drawings for c in d.inner),
+                      circles=tuple(c for d in drawings for c in d.circles),
+                      outer_splines=tuple(c for d in drawings for c in d.outer_splines),
+                      inner_splines=tuple(c for d in drawings for c in d.inner_splines),
+                      labels=tuple(t for d in drawings for t in d.labels))

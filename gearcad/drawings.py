@@ -2,8 +2,10 @@
 
 Pure: arcs are fitted here (``geometry.arcfit``) so that the writers only write.
 Modes: ``arcs`` (tangent arcs within the tolerance; what laser and CNC software
-read best), ``segments`` (the polyline), ``splines`` (fit points for SPLINE entities).
+read best), ``segments`` (the polyline), ``splines`` (cubic B-splines with control
+points and knots, straight edges as lines: ``geometry.bspline``).
 Gear drawings are centred on the gear's own axis; plate drawings use plate coordinates.
+The marking text is placed inside the part, clear of every cut (``geometry.marking``).
 """
 
 from __future__ import annotations
@@ -13,9 +15,11 @@ import numpy as np
 from .drawing import CutDrawing, Label, polyline_contour
 from .errors import InputError
 from .geometry.arcfit import fit_loop
+from .geometry.bspline import loop_pieces
+from .geometry.marking import place_text
 from .geometry.shape import Loop, Part
 
-__all__ = ["part_drawing", "plate_scene", "Scene", "DRAWING_MODES"]
+__all__ = ["part_drawing", "plate_scene", "Scene", "DRAWING_MODES", "DEFAULT_LABEL_HEIGHT"]
 
 DRAWING_MODES = ("arcs", "segments", "splines")
 
@@ -47,12 +51,26 @@ def _contour(loop: Loop, mode: str, tolerance: float, copies: int = 1) -> np.nda
     return polyline_contour(loop.points())
 
 
-def _label(part: Part, at: tuple[float, float], height: float) -> tuple[Label, ...]:
-    return (Label(part.label, at[0], at[1], height),) if part.label else ()
+DEFAULT_LABEL_HEIGHT = 2.5  # mm: largest cap height of a part's marking (common practice)
+
+
+def _label(part: Part, at: tuple[float, float] | None, height: float) -> tuple[Label, ...]:
+    """The marking inside the part (the largest up to ``height`` that fits, nearest ``at``).
+
+    When the whole label does not fit, its first word (the part's name) alone; none if not even that fits.
+    """
+    if not part.label:
+        return ()
+    for text in dict.fromkeys((part.label, part.label.split()[0])):
+        place = place_text(part, text, height, at)
+        if place is not None:
+            return (Label(text, place.x, place.y, place.height),)
+    return ()
 
 
 def part_drawing(part: Part, mode: str = "arcs", tolerance: float = 1e-3,
-                 label_at: tuple[float, float] = (0.0, 0.0), label_height: float = 2.0) -> CutDrawing:
+                 label_at: tuple[float, float] | None = None,
+                 label_height: float = DEFAULT_LABEL_HEIGHT) -> CutDrawing:
     """The cut drawing of one part.
 
     Parameters
@@ -63,13 +81,19 @@ def part_drawing(part: Part, mode: str = "arcs", tolerance: float = 1e-3,
         ``arcs``, ``segments`` or ``splines``.
     tolerance : float
         Arc-fitting tolerance, mm.
-    label_at, label_height : position (mm) and height (mm) of the marking text.
+    label_at : (float, float), optional
+        Where the middle of the marking text should go if it fits there, mm
+        (default: the middle of the part's bounding box).
+    label_height : float
+        Largest cap height of the marking text, mm; smaller text is used where
+        it does not fit, none where not even 0.5 mm fits.
     """
     if mode not in DRAWING_MODES:
         raise InputError(f"drawing mode must be one of {', '.join(DRAWING_MODES)}, got {mode!r}")
     labels = _label(part, label_at, label_height)
     if mode == "splines":
-        return CutDrawing(outer_splines=(part.outer.points(),), inner_splines=tuple(h.points() for h in part.holes),
+        return CutDrawing(outer_splines=(loop_pieces(part.outer, tolerance, part.symmetry),),
+                          inner_splines=tuple(loop_pieces(h, tolerance) for h in part.holes),
                           circles=part.circles, labels=labels)
     return CutDrawing(outer=(_contour(part.outer, mode, tolerance, part.symmetry),),
                       inner=tuple(_contour(h, mode, tolerance) for h in part.holes), circles=part.circles, labels=labels)

@@ -238,7 +238,9 @@ class Fabrication:
     ``bore_clearance``: added to shaft diameters; ``tool_radius``: the cutter's
     radius (CNC), which the root fillet must not be tighter than; ``layer_gap``,
     ``gear_clearance``, ``plate_margin``, ``plate_corner_radius``,
-    ``spacer_hole``: layout and plate figures.
+    ``spacer_hole``: layout and plate figures; ``sheet_width``, ``sheet_height``:
+    the stock sheet (or print bed) the nested cut sheets are laid out for
+    (optional in a profile, default 600 x 400 mm).
     """
 
     name: str
@@ -257,6 +259,8 @@ class Fabrication:
     note: str = ""
     sources: Mapping[str, str] = field(default_factory=dict, compare=False)
     material_profile: str = ""
+    sheet_width: float = 600.0  # mm; common practice (a common laser bed and stock sheet)
+    sheet_height: float = 400.0  # mm; common practice
 
 
 _FABRICATION_KEYS = {
@@ -269,6 +273,8 @@ _FABRICATION_KEYS = {
     "plate_margin": ValueSpec("mm", 1.0, 100.0),
     "plate_corner_radius": ValueSpec("mm", 0.0, 50.0),
     "spacer_hole": ValueSpec("mm", 1.0, 30.0),
+    "sheet_width": ValueSpec("mm", 10.0, 10000.0, required=False),
+    "sheet_height": ValueSpec("mm", 10.0, 10000.0, required=False),
 }
 
 

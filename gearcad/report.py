@@ -294,6 +294,7 @@ def report_markdown(data: Mapping[str, Any]) -> str:
     assembly = data.get("assembly") or {}
     if assembly.get("file"):
         lines.append(f"- assembly: `{assembly['file']}`")
+    lines += _sheet_lines(data.get("sheets", ()))
     lines += ["", "## Cautions", ""] + [f"- {c}" for c in data["cautions"]]
     return "\n".join(lines) + "\n"
 
@@ -355,3 +356,20 @@ def _shaft_thrusts(plan) -> dict[str, Any]:
     from .meshes.helical import shaft_axial_forces
 
     return {"shaft_axial_forces": shaft_axial_forces(loads)}
+
+
+def _sheet_lines(sheets) -> list[str]:
+    """The nested cut sheets: one row per sheet with its parts and the area they use."""
+    if not sheets:
+        return []
+    lines = ["", "## Cut sheets", "",
+             f"Every flat part nested on stock sheets, at least {sheets[0]['spacing_mm']:g} mm apart and from the "
+             "edges; each sheet's files carry its name. Cut in file order: marking, holes, outlines.", ""]
+    lines += _table(["sheet", "material", "thickness", "size (mm)", "parts", "part area mm²", "used"],
+                    [[s["name"], s["material"], f"{s['thickness_mm']:g} mm", f"{s['width_mm']:g} × {s['height_mm']:g}",
+                      ", ".join(s["parts"]), f"{s['part_area_mm2']:.0f}", f"{s['used_percent']:.1f} %"] for s in sheets])
+    parts = sum(s["part_area_mm2"] for s in sheets)
+    stock = sum(s["width_mm"] * s["height_mm"] for s in sheets)
+    lines += ["", f"{len(sheets)} sheet{'s' * (len(sheets) != 1)}: parts take {parts:.0f} of {stock:.0f} mm² "
+                  f"({100 * parts / stock:.1f} %)."]
+    return lines

@@ -160,9 +160,12 @@ def test_gear_reconstructed_from_svg_has_tip_and_root_radius():
 
 
 def test_refusals():
-    fit = np.array([(0, 0), (1, 0), (0, 1)], dtype=float)
+    from gearcad.drawing import SplinePiece
+
+    control = np.array([(0, 0), (1, 0), (1, 1), (0, 0)], dtype=float)
+    piece = SplinePiece(control, np.array([0, 0, 0, 0, 1, 1, 1, 1], dtype=float), closed=True)
     with pytest.raises(InputError, match="spline"):
-        build_svg(CutDrawing(outer_splines=(fit,)))
+        build_svg(CutDrawing(outer_splines=((piece,),)))
     with pytest.raises(InputError):
         build_svg(CutDrawing(outer=(ELL,)), colours={"engrave": "red"})
     with pytest.raises(InputError):

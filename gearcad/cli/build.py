@@ -9,12 +9,13 @@ from pathlib import Path
 from ._format import print_json
 from ._load import add_load_options, load_from_args
 
-__all__ = ["add_parser", "run", "add_output_options", "build_and_write"]
+__all__ = ["add_parser", "run", "add_output_options", "build_and_write", "parse_sheet"]
 
 DESCRIPTION = """\
 Build a train from its train file (TOML; see README): the checks of every mesh, the
 shaft layout and plates, and the files: DXF and SVG outlines (kerf applied for laser
-cutting), STEP and STL solids, an assembly, report.md, report.json and preview.png.
+cutting), nested cut sheets per material and thickness, STEP and STL solids, an
+assembly, report.md, report.json and preview.png.
 Exit 0: no check failed; 1: a check failed (files are still written); 2: bad input."""
 
 
@@ -25,9 +26,11 @@ def add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--formats", default="dxf,svg,step,stl", metavar="LIST",
                    help="which files per part, from dxf,svg,step,stl (default: all)")
     p.add_argument("--dxf-mode", choices=("arcs", "segments", "splines"), default="arcs",
-                   help="DXF contours as tangent arcs (default), straight segments, or SPLINE entities")
+                   help="DXF contours as tangent arcs (default), straight segments, or cubic B-splines "
+                        "(SPLINE with control points and knots; straight edges stay LINE; SVG keeps arcs)")
     p.add_argument("--dxf-version", choices=("R2010", "R2000", "R2013", "R2018", "R12"), default="R2010",
-                   help="DXF version (default R2010; R12 for old controllers, carries no units)")
+                   help="DXF version (default R2010; R12 for old controllers: no SPLINE, no unit variable of "
+                        "its own, marked as millimetres in the ways R12 allows)")
     p.add_argument("--dxf-layers", default="", metavar="SPEC",
                    help="rename DXF layers for your cutter: role=NAME[:COLOUR],... with roles outer, inner, marking "
                         "(defaults CUT_OUTER:5, CUT_INNER:6, MARKING:3; colours are AutoCAD colour indices 1-255)")
@@ -41,6 +44,10 @@ def add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--laminations", type=int, default=0, metavar="N",
                    help="helical gears: also write N laminations per gear (DXF/SVG), each the section turned by its "
                         "share of the twist, to stack from sheets of face width / N (2 to 200)")
+    p.add_argument("--sheet", metavar="WxH",
+                   help="stock sheet for the nested cut sheets, width x height in mm, e.g. 600x400 "
+                        "(default: the fabrication profile's sheet)")
+    p.add_argument("--no-sheets", action="store_true", help="skip the nested cut sheets")
     p.add_argument("--json", action="store_true", help="print report.json's content on stdout instead of the summary")
     add_load_options(p)
 
@@ -68,7 +75,9 @@ def _options(args: argparse.Namespace, extra_files=()):
                         stl_tolerance=in_range(args.stl_tolerance, "--stl-tolerance", 1e-3, 1.0, "mm"),
                         stl_angle=in_range(args.stl_angle, "--stl-angle", 0.5, 45.0, "degrees"),
                         assembly=not args.no_assembly, extra_files=tuple(extra_files),
-                        dxf_layers=_layer_spec(args.dxf_layers), laminations=_laminations(args))
+                        dxf_layers=_layer_spec(args.dxf_layers), laminations=_laminations(args),
+                        sheets=not getattr(args, "no_sheets", False),
+                        sheet_size=parse_sheet(getattr(args, "sheet", None)))
 
 
 def _laminations(args: argparse.Namespace) -> int:
@@ -79,6 +88,26 @@ def _laminations(args: argparse.Namespace) -> int:
     if n and not 2 <= n <= MAX_LAMINATIONS:
         raise InputError(f"--laminations must be from 2 to {MAX_LAMINATIONS}, got {n}")
     return n
+
+
+def parse_sheet(text: str | None) -> tuple[float, float] | None:
+    """``600x400`` -> (600.0, 400.0) mm; None stays None."""
+    import math
+
+    from ..errors import InputError
+    from ..geometry.nest import MAX_SHEET_SIDE, MIN_SHEET_SIDE
+
+    if text is None:
+        return None
+    width, sep, height = text.strip().lower().replace("×", "x").partition("x")
+    try:
+        size = (float(width), float(height)) if sep else None
+    except ValueError:
+        size = None
+    if size is None or not all(math.isfinite(v) and MIN_SHEET_SIDE <= v <= MAX_SHEET_SIDE for v in size):
+        raise InputError(f"--sheet must read WIDTHxHEIGHT in mm, each from {MIN_SHEET_SIDE:g} to "
+                         f"{MAX_SHEET_SIDE:g} (e.g. 600x400), got {text!r}")
+    return size
 
 
 def _layer_spec(text: str) -> tuple[tuple[str, str, int], ...]:

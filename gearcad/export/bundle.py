@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Callable
 
-from ..errors import ExportError
+from ..errors import ExportError, InputError
 from ..jsonable import jsonable
 from .atomic import atomic_write
 
@@ -38,6 +38,8 @@ class BuildOptions:
     extra_files: tuple[tuple[str, str], ...] = field(default=())  # (name, text) written as they are
     dxf_layers: tuple[tuple[str, str, int], ...] = ()  # (role, layer name, colour) remappings
     laminations: int = 0  # helical gears: also write this many turned laminations per gear (DXF, SVG)
+    sheets: bool = True  # nested cut sheets (DXF/SVG as the formats ask)
+    sheet_size: tuple[float, float] | None = None  # mm; None: the fabrication profile's sheet
 
 
 def prepare_folder(folder: Path, force: bool) -> list[str]:
@@ -62,24 +64,19 @@ def prepare_folder(folder: Path, force: bool) -> list[str]:
     return []
 
 
-def _label_height(plan, gear) -> tuple[tuple[float, float], float]:
-    if gear.label_at is not None:
-        return gear.label_at, 2.0
-    root = gear.gear.root_diameter / 2
-    hole = gear.bore / 2
-    rim = max(root - hole, 0.5)
-    height = min(2.5, 0.3 * rim, 2.6 * root / max(len(gear.part.label), 1))
-    return (0.0, -(hole + root) / 2), max(height, 0.3)
-
-
 def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(), force: bool = False,
                progress: Callable[[str], None] | None = None) -> dict[str, dict[str, str]]:
     """Write the plan's files; returns ``{part: {kind: relative path}}`` (also the report's ``files``)."""
     from ..drawings import part_drawing, plate_scene
     from ..report import report_data, report_markdown
-    from .dxf import write_dxf
+    from ..sheets import plan_sheets, sheet_drawing, sheet_name, sheets_summary, flat_parts
+    from .dxf import DXF_VERSIONS, write_dxf
     from .svg import write_svg
 
+    if options.dxf_mode == "splines" and "dxf" in options.formats and not DXF_VERSIONS[options.dxf_version].splines:
+        raise InputError(f"--dxf-mode splines needs DXF R2000 or later; {options.dxf_version} has no SPLINE entity")
+    cut_files = {"dxf", "svg"} & set(options.formats)
+    groups = plan_sheets(plan, options.sheet_size) if options.sheets and cut_files else ()
     folder = Path(folder)
     old = prepare_folder(folder, force)
     note = progress or (lambda _msg: None)
@@ -92,38 +89,46 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
         return folder / name
 
     warnings: list[str] = []
-    for g in plan.gears:
-        at, height = _label_height(plan, g)
-        drawing = part_drawing(g.cut_part, options.dxf_mode, options.dxf_tolerance, at, height)
-        if "dxf" in options.formats:
-            note(f"DXF {g.name}")
-            warnings += write_dxf(drawing, put(g.name, "dxf", f"{g.name}.dxf"), version=options.dxf_version,
-                                  layers=_layers(options))
-        if "svg" in options.formats:
-            if options.dxf_mode == "splines":  # SVG takes arcs, not spline fit points
-                drawing = part_drawing(g.cut_part, "arcs", options.dxf_tolerance, at, height)
-            write_svg(drawing, put(g.name, "svg", f"{g.name}.svg"))
-        if options.laminations and hasattr(g.gear, "hand"):
+    parts = {fp.name: fp for fp in flat_parts(plan)}
+    if options.laminations:
+        for g in plan.gears:
+            if not hasattr(g.gear, "hand"):
+                continue
             for lam in _laminations(plan, g, options.laminations):
                 if "dxf" in options.formats:
                     note(f"DXF {lam.name}")
-                    drawing = part_drawing(lam, options.dxf_mode, options.dxf_tolerance, at, height)
-                    warnings += write_dxf(drawing, put(lam.name, "dxf", f"{lam.name}.dxf"), version=options.dxf_version,
+                    warnings += write_dxf(part_drawing(lam, options.dxf_mode, options.dxf_tolerance),
+                                          put(lam.name, "dxf", f"{lam.name}.dxf"), version=options.dxf_version,
                                           layers=_layers(options))
-                if "svg" in options.formats:  # SVG takes arcs, not spline fit points
-                    mode = "arcs" if options.dxf_mode == "splines" else options.dxf_mode
-                    write_svg(part_drawing(lam, mode, options.dxf_tolerance, at, height),
-                              put(lam.name, "svg", f"{lam.name}.svg"))
-    margin = plan.fabrication.plate_margin
-    for p in plan.plates:
-        drawing = part_drawing(p.cut_part, options.dxf_mode, options.dxf_tolerance, (plan.layout.width / 2, margin / 2),
-                               min(3.0, margin / 3))
+                if "svg" in options.formats:  # SVG always takes arcs
+                    write_svg(part_drawing(lam, "arcs", options.dxf_tolerance), put(lam.name, "svg", f"{lam.name}.svg"))
+    arcs: dict[str, object] = {}  # SVG always takes arcs, whatever the DXF mode
+    dxf_drawings: dict[str, object] = {}
+    for fp in parts.values():
+        if "svg" in options.formats or options.dxf_mode == "arcs":
+            arcs[fp.name] = part_drawing(fp.part, "arcs", options.dxf_tolerance, fp.label_at, fp.label_height)
+        dxf_drawings[fp.name] = arcs[fp.name] if options.dxf_mode == "arcs" else part_drawing(
+            fp.part, options.dxf_mode, options.dxf_tolerance, fp.label_at, fp.label_height)
         if "dxf" in options.formats:
-            note(f"DXF {p.name}")
-            warnings += write_dxf(drawing, put(p.name, "dxf", f"{p.name}.dxf"), version=options.dxf_version,
-                                  layers=_layers(options))
+            note(f"DXF {fp.name}")
+            warnings += write_dxf(dxf_drawings[fp.name], put(fp.name, "dxf", f"{fp.name}.dxf"),
+                                  version=options.dxf_version, layers=_layers(options))
         if "svg" in options.formats:
-            write_svg(drawing, put(p.name, "svg", f"{p.name}.svg"))
+            write_svg(arcs[fp.name], put(fp.name, "svg", f"{fp.name}.svg"))
+    for group in groups:
+        for k, sheet in enumerate(group.nesting.sheets, start=1):
+            stem = sheet_name(group, k)
+            note(f"sheet {stem}")
+            if "dxf" in options.formats:
+                drawing = sheet_drawing(sheet, parts, options.dxf_mode, options.dxf_tolerance, dxf_drawings)
+                warnings += write_dxf(drawing, put(stem, "dxf", f"{stem}.dxf"), version=options.dxf_version,
+                                      layers=_layers(options))
+            if "svg" in options.formats:
+                write_svg(sheet_drawing(sheet, parts, "arcs", options.dxf_tolerance, arcs), put(stem, "svg", f"{stem}.svg"),
+                          page=(0.0, 0.0, sheet.width, sheet.height))
+        warnings += [f"part {name} is larger than the fabrication profile's {group.width:g} x {group.height:g} mm "
+                     "sheet and is on no cut sheet (give a larger one with --sheet WxH)"
+                     for name in group.nesting.left_out]
     if "step" in options.formats or "stl" in options.formats:
         _write_solids(plan, folder, options, put, note)
     if options.preview:
@@ -135,6 +140,8 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
         atomic_write(put(name, "toml", name), lambda tmp, text=text: tmp.write_text(text, encoding="utf-8"))
     data = report_data(plan, files)
     data["warnings"] = sorted(set(warnings))
+    if groups:
+        data["sheets"] = sheets_summary(groups)
     if data.get("parts"):
         text = parts_csv(data["parts"])
         atomic_write(put("parts", "csv", "parts.csv"), lambda tmp: tmp.write_text(text, encoding="utf-8"))

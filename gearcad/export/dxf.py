@@ -6,10 +6,26 @@ so every contour is one closed polyline whose segments are straight or circular
 The writer only writes: contours arrive already fitted (see
 :class:`CutDrawing`), the writer never computes gear geometry.
 
+In the spline mode contours are cubic B-splines (``SPLINE`` with control
+points and knots, fitted in :mod:`gearcad.geometry.bspline`) and straight
+edges are ``LINE`` entities.
+
+Laser order: entities are written marking first, then inner cuts (holes), then
+outer contours, so a cutter that follows the file's order never cuts a part
+free before its holes.  ``$EXTMIN``/``$EXTMAX`` hold the bounding box of the
+cut geometry.
+
 Versions: R2010 by default (closed LWPOLYLINE, ``$INSUNITS`` = 4 mm,
-``$MEASUREMENT`` = 1 metric).  R12 for old controllers has no LWPOLYLINE, no
-SPLINE and no units: contours become closed 2D POLYLINEs with bulges and the
-writer reports that the file carries no units.
+``$MEASUREMENT`` = 1 metric).  R12 for old controllers has no LWPOLYLINE and no
+SPLINE: contours become closed 2D POLYLINEs with bulges.  R12 defines no
+drawing-unit variable; the file says millimetres in the ways R12 has:
+``$LUNITS`` = 2 (decimal, not the inch-based engineering or architectural
+formats), ``$LIMMIN``/``$LIMMAX`` round the drawing, and the later
+``$INSUNITS`` = 4 and ``$MEASUREMENT`` = 1 written into the header too: header
+variables are read by name, R12 readers skip the ones they do not know, and
+importers that look for them (whatever the file's version) take millimetres
+instead of their inch default.  The writer still warns that an R12 reader may
+have to be told the unit.
 
 Output is deterministic: the same input gives byte-identical files.  ezdxf's
 option ``write_fixed_meta_data_for_testing`` is switched on while a document is
@@ -20,6 +36,7 @@ numbered in creation order.  Lengths in mm.
 
 from __future__ import annotations
 
+import io
 import os
 from collections.abc import Iterator, Mapping
 from contextlib import contextmanager
@@ -30,8 +47,8 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from ..errors import InputError
-from ..drawing import CutDrawing, Label, MIN_SEGMENT, polyline_contour
+from ..errors import ExportError, InputError
+from ..drawing import CutDrawing, Label, MIN_SEGMENT, drawing_extents, polyline_contour
 from .atomic import atomic_write
 
 if TYPE_CHECKING:
@@ -51,7 +68,8 @@ __all__ = [
     "dxf_warnings",
 ]
 
-R12_NO_UNITS = "DXF R12 carries no drawing units: the reading program must be told the file is in millimetres"
+R12_NO_UNITS = ("DXF R12 defines no drawing-unit setting (the file is marked as millimetres in the ways R12 allows): "
+                "check that the reading program takes it as millimetres")
 
 
 # -- layers --------------------------------------------------------------------------
@@ -123,7 +141,7 @@ class _Version:
     """How one DXF version is written."""
 
     code: str
-    units: bool  # carries $INSUNITS / $MEASUREMENT
+    units: bool  # defines $INSUNITS / $MEASUREMENT
     lwpolyline: bool  # has LWPOLYLINE (else POLYLINE)
     splines: bool  # has SPLINE
 
@@ -169,10 +187,12 @@ def _new_document(version: _Version) -> "Drawing":
     from ezdxf.document import Drawing
 
     if not version.units:
-        return Drawing.new(version.code)  # R12 has no units to set (ezdxf.new would warn)
-    doc = ezdxf.new(version.code, units=4)  # 4: millimetres
-    doc.header["$INSUNITS"] = 4
-    doc.header["$MEASUREMENT"] = 1  # metric
+        doc = Drawing.new(version.code)  # ezdxf.new would warn that R12 has no units
+    else:
+        doc = ezdxf.new(version.code, units=4)  # 4: millimetres
+    doc.header["$INSUNITS"] = 4  # millimetres (R2000 on; R12 readers skip it)
+    doc.header["$MEASUREMENT"] = 1  # metric (R14 on; R12 readers skip it)
+    doc.header["$LUNITS"] = 2  # decimal linear units (R12's only unit-related setting)
     return doc
 
 
@@ -190,66 +210,59 @@ def _add_contour(msp, contour: np.ndarray, layer: str, version: _Version) -> Non
         msp.add_polyline2d(rows, format="xyb", close=True, dxfattribs={"layer": layer})
 
 
-def _add_spline(msp, fit: np.ndarray, layer: str) -> None:
-    """Fit points with the first repeated at the end, so every reader closes the curve."""
-    points = np.vstack((fit, fit[:1])).tolist()
-    msp.add_spline(points, dxfattribs={"layer": layer})
+def _add_spline_contour(msp, pieces, layer: str) -> None:
+    """Lines as LINE, B-splines as SPLINE with control points and knots (degree 3, planar, closed flag if whole)."""
+    from ..drawing import LinePiece
+
+    for piece in pieces:
+        attribs = {"layer": layer}
+        if isinstance(piece, LinePiece):
+            msp.add_line(tuple(piece.start), tuple(piece.end), dxfattribs=attribs)
+            continue
+        spline = msp.add_spline(dxfattribs={**attribs, "degree": 3})
+        spline.control_points = piece.control.tolist()
+        spline.knots = piece.knots.tolist()
+        spline.dxf.flags = spline.PLANAR | (spline.CLOSED if piece.closed else 0)
 
 
 def _add_label(msp, label: Label, layer: str) -> None:
-    from ezdxf.enums import TextEntityAlignment
-
-    text = msp.add_text(label.text, height=label.height, dxfattribs={"layer": layer})
-    text.set_placement((label.x, label.y), align=TextEntityAlignment.MIDDLE_CENTER)
-
-
-def _extents(drawing: CutDrawing) -> tuple[tuple[float, float], tuple[float, float]] | None:
-    """Bounding box of the cut geometry, mm: contour vertices widened by each arc's sagitta, circles, fit points.
-
-    Conservative (an arc's bulge never reaches further from its chord than its
-    sagitta), and far cheaper than ezdxf's entity-by-entity bounding box.
-    """
-    lows, highs = [], []
-    for contour in drawing.outer + drawing.inner:
-        xy, b = contour[:, :2], np.abs(contour[:, 2])
-        chord = np.linalg.norm(np.roll(xy, -1, axis=0) - xy, axis=1)
-        reach = float((chord * b / 2).max()) if len(b) else 0.0  # sagitta = chord * bulge / 2
-        lows.append(xy.min(axis=0) - reach)
-        highs.append(xy.max(axis=0) + reach)
-    for x, y, d in drawing.circles:
-        lows.append(np.array([x - d / 2, y - d / 2]))
-        highs.append(np.array([x + d / 2, y + d / 2]))
-    for fit in drawing.outer_splines + drawing.inner_splines:
-        lows.append(fit.min(axis=0))
-        highs.append(fit.max(axis=0))
-    if not lows:
-        return None
-    low, high = np.min(lows, axis=0), np.max(highs, axis=0)
-    return (float(low[0]), float(low[1])), (float(high[0]), float(high[1]))
+    """Left-aligned on the baseline: the insert point alone places it (no alignment point)."""
+    msp.add_text(label.text, height=label.height, dxfattribs={"layer": layer, "insert": (label.x, label.y)})
 
 
 def _set_extents(doc: "Drawing", drawing: CutDrawing) -> None:
-    box = _extents(drawing)
-    if box is not None:
-        doc.header["$EXTMIN"] = (*box[0], 0.0)
-        doc.header["$EXTMAX"] = (*box[1], 0.0)
+    """$EXTMIN/$EXTMAX and the drawing limits $LIMMIN/$LIMMAX from the cut geometry.
+
+    ezdxf copies the model space's own extents and limits into the header when it
+    saves, so both are set.
+    """
+    x0, y0, x1, y1 = drawing_extents(drawing)
+    msp = doc.modelspace()
+    for target in (doc.header, None):
+        if target is None:
+            msp.dxf.extmin, msp.dxf.extmax = (x0, y0, 0.0), (x1, y1, 0.0)
+            msp.dxf.limmin, msp.dxf.limmax = (x0, y0), (x1, y1)
+        else:
+            target["$EXTMIN"], target["$EXTMAX"] = (x0, y0, 0.0), (x1, y1, 0.0)
+            target["$LIMMIN"], target["$LIMMAX"] = (x0, y0), (x1, y1)
 
 
 def _fill(doc: "Drawing", drawing: CutDrawing, layers: Mapping[str, Layer], version: _Version) -> None:
+    """Entities in laser order: marking, inner cuts, outer contours."""
     msp = doc.modelspace()
     outer, inner, marking = layers["outer"].name, layers["inner"].name, layers["marking"].name
-    for contour in drawing.outer:
-        _add_contour(msp, contour, outer, version)
-    for contour in drawing.inner:
-        _add_contour(msp, contour, inner, version)
-    for x, y, d in drawing.circles:
-        msp.add_circle((x, y), d / 2, dxfattribs={"layer": inner})
-    for fit in drawing.outer_splines:
-        _add_spline(msp, fit, outer)
-    for fit in drawing.inner_splines:
-        _add_spline(msp, fit, inner)
     for label in drawing.labels:
         _add_label(msp, label, marking)
+    for contour in drawing.inner:
+        _add_contour(msp, contour, inner, version)
+    for pieces in drawing.inner_splines:
+        _add_spline_contour(msp, pieces, inner)
+    for x, y, d in drawing.circles:
+        msp.add_circle((x, y), d / 2, dxfattribs={"layer": inner})
+    for contour in drawing.outer:
+        _add_contour(msp, contour, outer, version)
+    for pieces in drawing.outer_splines:
+        _add_spline_contour(msp, pieces, outer)
 
 
 def build_dxf(drawing: CutDrawing, *, version: str = "R2010",
@@ -284,6 +297,17 @@ def build_dxf(drawing: CutDrawing, *, version: str = "R2010",
         _fill(doc, drawing, resolved, ver)
         _set_extents(doc, drawing)
     return doc
+
+
+_R12_UNIT_TAGS = "  9\n$INSUNITS\n 70\n4\n  9\n$MEASUREMENT\n 70\n1\n"  # millimetres; metric
+
+
+def _with_r12_units(text: str) -> str:
+    """An R12 file's text with ``$INSUNITS`` and ``$MEASUREMENT`` added before ``$LUNITS``."""
+    mark = "  9\n$LUNITS\n"
+    if mark not in text:
+        raise ExportError("DXF R12 header without $LUNITS: cannot mark the file as millimetres")
+    return text.replace(mark, _R12_UNIT_TAGS + mark, 1)
 
 
 def _register_classes_in_order(doc: "Drawing") -> None:
@@ -332,7 +356,13 @@ def write_dxf(source: "CutDrawing | Drawing", path: str | os.PathLike[str], *, v
     def save(tmp: Path) -> None:
         _register_classes_in_order(doc)
         with _fixed_metadata():
-            doc.saveas(tmp)
+            if doc.dxfversion > "AC1009":
+                doc.saveas(tmp)
+                return
+            stream = io.StringIO()
+            doc.write(stream)
+        text = _with_r12_units(stream.getvalue())
+        tmp.write_bytes(text.encode(doc.output_encoding, errors="dxfreplace"))
 
     atomic_write(path, save)
     name = _version_name(doc)

@@ -7,7 +7,10 @@ written negated: the drawing is not mirrored and no transform is needed (some
 laser programs ignore transforms).  Each contour is one closed ``<path>`` of
 line (``L``) and arc (``A``) commands made from the contour's bulges; round
 holes are ``<circle>`` elements; both are stroke-only with a hairline stroke.
-Labels are ``<text>`` in their own group.  The same input gives the same bytes.
+Labels are ``<text>`` in their own group, anchored at the left end of their
+baseline.  Laser order: the marking group comes first, then the inner cuts,
+then the outer contours, so a cutter that follows the file's order engraves
+and cuts the holes before it cuts the part free.  The same input gives the same bytes.
 
 Bulge ``b`` of a segment with chord length ``c``: included angle
 ``theta = 4 atan(b)``, radius ``r = c / (2 sin(|theta| / 2))``; the arc is the
@@ -27,7 +30,7 @@ import numpy as np
 
 from ..errors import InputError
 from .atomic import atomic_write
-from ..drawing import CutDrawing, Label
+from ..drawing import CutDrawing, Label, drawing_extents
 
 __all__ = ["DEFAULT_COLOURS", "HAIRLINE", "CAP_HEIGHT_PER_EM", "build_svg", "write_svg", "bulge_radius"]
 
@@ -55,44 +58,8 @@ def bulge_radius(chord: float, bulge: float) -> float:
     return chord / (2.0 * math.sin(2.0 * math.atan(abs(bulge))))
 
 
-def _arc_centre(p0: np.ndarray, p1: np.ndarray, bulge: float) -> np.ndarray:
-    """Centre of the bulge arc from ``p0`` to ``p1``: ``m + perp(c) (1 - b^2) / (4 b)``."""
-    chord = p1 - p0
-    perp = np.array((-chord[1], chord[0]))
-    return (p0 + p1) / 2 + perp * (1 - bulge * bulge) / (4 * bulge)
-
-
-def _arc_extremes(p0: np.ndarray, p1: np.ndarray, bulge: float) -> list[np.ndarray]:
-    """Points where the arc reaches its extreme x or y (for the page size)."""
-    centre = _arc_centre(p0, p1, bulge)
-    radius = float(np.hypot(*(p0 - centre)))
-    start = math.atan2(p0[1] - centre[1], p0[0] - centre[0])
-    sweep = 4 * math.atan(bulge)
-    lo, hi = (start, start + sweep) if sweep > 0 else (start + sweep, start)
-    found = []
-    for k in range(math.ceil(lo / (math.pi / 2)), math.floor(hi / (math.pi / 2)) + 1):
-        a = k * math.pi / 2
-        found.append(centre + radius * np.array((math.cos(a), math.sin(a))))
-    return found
-
-
-def _contour_points(contour: np.ndarray) -> list[np.ndarray]:
-    xy = contour[:, :2]
-    points = list(xy)
-    for i, bulge in enumerate(contour[:, 2]):
-        if bulge:
-            points.extend(_arc_extremes(xy[i], xy[(i + 1) % len(xy)], float(bulge)))
-    return points
-
-
 def _bounds(drawing: CutDrawing) -> tuple[float, float, float, float]:
-    points: list[np.ndarray] = []
-    for contour in drawing.outer + drawing.inner:
-        points.extend(_contour_points(contour))
-    for x, y, d in drawing.circles:
-        points.extend((np.array((x - d / 2, y - d / 2)), np.array((x + d / 2, y + d / 2))))
-    arr = np.array(points)
-    return float(arr[:, 0].min()), float(arr[:, 1].min()), float(arr[:, 0].max()), float(arr[:, 1].max())
+    return drawing_extents(drawing)
 
 
 def _segment(p1: np.ndarray, chord: float, bulge: float) -> str:
@@ -136,7 +103,7 @@ def _label_group(labels: tuple[Label, ...], colour: str) -> list[str]:
     if not labels:
         return []
     head = (f'<g id="marking" fill={quoteattr(colour)} stroke="none" font-family="sans-serif" '
-            'text-anchor="middle" dominant-baseline="central">')
+            'text-anchor="start">')
     return [head, *(f"  {_text(label)}" for label in labels), "</g>"]
 
 
@@ -150,7 +117,7 @@ def _colours(colours: Mapping[str, str] | None) -> dict[str, str]:
 
 def _check(drawing: CutDrawing, margin: float, stroke_width: float) -> None:
     if drawing.outer_splines or drawing.inner_splines:
-        raise InputError("SVG takes contours as bulge polylines; spline fit points are for DXF only")
+        raise InputError("SVG takes contours as bulge polylines (lines and arcs); B-spline contours are for DXF only")
     if not (math.isfinite(margin) and margin >= 0):
         raise InputError(f"SVG margin must be 0 mm or more, got {margin!r}")
     if not (math.isfinite(stroke_width) and stroke_width > 0):
@@ -158,7 +125,8 @@ def _check(drawing: CutDrawing, margin: float, stroke_width: float) -> None:
 
 
 def build_svg(drawing: CutDrawing, *, margin: float = 1.0, stroke_width: float = HAIRLINE,
-              colours: Mapping[str, str] | None = None) -> str:
+              colours: Mapping[str, str] | None = None,
+              page: tuple[float, float, float, float] | None = None) -> str:
     """The SVG document of ``drawing`` as text.
 
     Parameters
@@ -171,6 +139,9 @@ def build_svg(drawing: CutDrawing, *, margin: float = 1.0, stroke_width: float =
         Stroke width of cut lines, mm.
     colours : mapping, optional
         Role (``"outer"``, ``"inner"``, ``"marking"``) to an SVG colour.
+    page : (x0, y0, x1, y1), optional
+        The page in drawing coordinates, mm (a nested sheet: the stock sheet);
+        default the drawing's extents with ``margin`` round them.
 
     Returns
     -------
@@ -179,7 +150,13 @@ def build_svg(drawing: CutDrawing, *, margin: float = 1.0, stroke_width: float =
     """
     _check(drawing, margin, stroke_width)
     col = _colours(colours)
-    x0, y0, x1, y1 = _bounds(drawing)
+    if page is None:
+        x0, y0, x1, y1 = _bounds(drawing)
+    else:
+        x0, y0, x1, y1 = (float(v) for v in page)
+        margin = 0.0
+        if not (all(math.isfinite(v) for v in (x0, y0, x1, y1)) and x1 > x0 and y1 > y0):
+            raise InputError(f"SVG page must be (x0, y0, x1, y1) with x1 > x0 and y1 > y0 in mm, got {page!r}")
     width, height = x1 - x0 + 2 * margin, y1 - y0 + 2 * margin
     view = f"{_num(x0 - margin)} {_num(-y1 - margin)} {_num(width)} {_num(height)}"
     outer = [f'<path d="{_path_data(c)}"/>' for c in drawing.outer]
@@ -189,16 +166,17 @@ def build_svg(drawing: CutDrawing, *, margin: float = 1.0, stroke_width: float =
         '<?xml version="1.0" encoding="UTF-8"?>',
         f'<svg xmlns="http://www.w3.org/2000/svg" version="1.1" width="{_num(width)}mm" '
         f'height="{_num(height)}mm" viewBox={quoteattr(view)}>',
-        *_group("cut-outer", col["outer"], stroke_width, outer),
-        *_group("cut-inner", col["inner"], stroke_width, inner),
         *_label_group(drawing.labels, col["marking"]),
+        *_group("cut-inner", col["inner"], stroke_width, inner),
+        *_group("cut-outer", col["outer"], stroke_width, outer),
         "</svg>",
     ]
     return "\n".join(lines) + "\n"
 
 
 def write_svg(drawing: CutDrawing, path: str | os.PathLike[str], *, margin: float = 1.0,
-              stroke_width: float = HAIRLINE, colours: Mapping[str, str] | None = None) -> Path:
+              stroke_width: float = HAIRLINE, colours: Mapping[str, str] | None = None,
+              page: tuple[float, float, float, float] | None = None) -> Path:
     """Write the SVG of ``drawing`` atomically; see :func:`build_svg` for the parameters.
 
     Returns
@@ -211,5 +189,5 @@ def write_svg(drawing: CutDrawing, path: str | os.PathLike[str], *, margin: floa
     ExportError
         The file could not be written.
     """
-    data = build_svg(drawing, margin=margin, stroke_width=stroke_width, colours=colours).encode("utf-8")
+    data = build_svg(drawing, margin=margin, stroke_width=stroke_width, colours=colours, page=page).encode("utf-8")
     return atomic_write(path, lambda tmp: tmp.write_bytes(data))
