@@ -1,8 +1,12 @@
-"""Write every file of a plan into an output folder, each under a temporary name first.
+"""Write every file of a plan into an output folder, built whole in a staging folder first.
 
 The folder is gearcad's when it holds the marker file ``.gearcad-output`` (which
 lists the files of the last build, so a rebuild removes what it no longer makes);
-a non-empty folder without it is refused unless ``force``.
+a non-empty folder without it is refused unless ``force``.  Every file is
+written into a hidden sibling folder that replaces the output folder only when
+the last file is written (:mod:`gearcad.export.staging`): a failure or an
+interrupt leaves the previous folder as it was, and two builds of one folder
+at the same time are kept apart by a lock (the later one is refused).
 """
 
 from __future__ import annotations
@@ -13,13 +17,12 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Callable
 
-from ..errors import ExportError
 from ..jsonable import jsonable
 from .atomic import atomic_write
+from .staging import MARKER, check_folder, owned_files, staged_folder
 
 __all__ = ["BuildOptions", "write_plan", "prepare_folder", "MARKER", "FORMATS"]
 
-MARKER = ".gearcad-output"
 FORMATS = ("dxf", "svg", "step", "stl")
 
 
@@ -40,25 +43,16 @@ class BuildOptions:
 
 
 def prepare_folder(folder: Path, force: bool) -> list[str]:
-    """Make ``folder`` ready; return the files the last build listed (to remove if not rewritten)."""
-    if folder.exists() and not folder.is_dir():
-        raise ExportError(f"output folder {str(folder)!r} is a file; choose a folder with --out")
-    marker = folder / MARKER
-    if folder.is_dir() and any(folder.iterdir()) and not marker.exists() and not force:
-        raise ExportError(f"output folder {str(folder)!r} is not empty and was not made by gearcad; "
-                          "choose another with --out or pass --force")
-    try:
-        folder.mkdir(parents=True, exist_ok=True)
-    except OSError as exc:
-        raise ExportError(f"cannot create output folder {str(folder)!r}: {exc.strerror or exc}") from None
-    if marker.exists():
-        try:
-            return [line for line in marker.read_text(encoding="utf-8").splitlines() if line and "/" not in line]
-        except OSError:
-            return []
-    # Claim the folder before the first file, so that a build cut short can be rebuilt in place.
-    atomic_write(marker, lambda tmp: tmp.write_text("", encoding="utf-8"))
-    return []
+    """Check that ``folder`` may be written (nothing is created); the files the last build listed.
+
+    Raises
+    ------
+    ExportError
+        The folder is a file, or a non-empty folder gearcad did not make (without ``force``).
+    """
+    folder = Path(folder)
+    check_folder(folder, force)
+    return owned_files(folder) if (folder / MARKER).exists() else []
 
 
 def _label_height(plan, gear) -> tuple[tuple[float, float], float]:
@@ -73,22 +67,30 @@ def _label_height(plan, gear) -> tuple[tuple[float, float], float]:
 
 def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(), force: bool = False,
                progress: Callable[[str], None] | None = None) -> dict[str, dict[str, str]]:
-    """Write the plan's files; returns ``{part: {kind: relative path}}`` (also the report's ``files``)."""
+    """Write the plan's files; returns ``{part: {kind: relative path}}`` (also the report's ``files``).
+
+    Every file goes into a staging folder that replaces ``folder`` whole at the end
+    (see :func:`gearcad.export.staging.staged_folder`); on any error ``folder`` is
+    left as it was.
+    """
+    note = progress or (lambda _msg: None)
+    with staged_folder(folder, force) as stage:
+        files: dict[str, dict[str, str]] = {}
+
+        def put(part: str, kind: str, name: str) -> Path:
+            files.setdefault(part, {})[kind] = name
+            return stage.file(name)
+
+        _write_all(plan, options, put, files, note)
+    return files
+
+
+def _write_all(plan, options: BuildOptions, put, files: dict[str, dict[str, str]], note) -> None:
+    """Write every file of ``plan`` to the paths ``put(part, kind, name)`` gives (which lists them in ``files``)."""
     from ..drawings import part_drawing, plate_scene
     from ..report import report_data, report_markdown
     from .dxf import write_dxf
     from .svg import write_svg
-
-    folder = Path(folder)
-    old = prepare_folder(folder, force)
-    note = progress or (lambda _msg: None)
-    files: dict[str, dict[str, str]] = {}
-    written: list[str] = []
-
-    def put(part: str, kind: str, name: str) -> Path:
-        files.setdefault(part, {})[kind] = name
-        written.append(name)
-        return folder / name
 
     warnings: list[str] = []
     for g in plan.gears:
@@ -113,7 +115,7 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
         if "svg" in options.formats:
             write_svg(drawing, put(p.name, "svg", f"{p.name}.svg"))
     if "step" in options.formats or "stl" in options.formats:
-        _write_solids(plan, folder, options, put, note)
+        _write_solids(plan, options, put, note)
     if options.preview:
         from .preview import write_preview
 
@@ -126,17 +128,13 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
     atomic_write(put("report", "json", "report.json"),
                  lambda tmp: tmp.write_text(json.dumps(jsonable(data), indent=2, ensure_ascii=False) + "\n", encoding="utf-8"))
     atomic_write(put("report", "md", "report.md"), lambda tmp: tmp.write_text(report_markdown(data), encoding="utf-8"))
-    for stale in set(old) - set(written):
-        (folder / stale).unlink(missing_ok=True)
-    atomic_write(folder / MARKER, lambda tmp: tmp.write_text("\n".join(sorted(written)) + "\n", encoding="utf-8"))
-    return files
 
 
 def _layers(options: BuildOptions) -> dict[str, tuple[str, int]] | None:
     return {role: (name, colour) for role, name, colour in options.dxf_layers} or None
 
 
-def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
+def _write_solids(plan, options: BuildOptions, put, note) -> None:
     from .step import AssemblyItem, build_solid, kernel_quiet, with_hub, write_step, write_stl
 
     thickness = plan.spec.thickness
