@@ -9,13 +9,13 @@ A profile can be named (``iso53-a``) or given as a path to a ``.toml`` file.
 from __future__ import annotations
 
 import math
-import tomllib
 from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
 from typing import Mapping
 
 from .errors import ProfileError
+from .inputfiles import MAX_INPUT_BYTES, decode_text, parse_toml, read_text_file
 
 __all__ = [
     "ToothSystem",
@@ -57,6 +57,11 @@ def profile_names(kind: str) -> list[str]:
 
 
 def _locate(kind: str, name: str):
+    label = {"materials": "material"}.get(kind, kind)
+    if not name or len(name) > 1024 or not name.isprintable():
+        shown = repr(name if len(name) <= 60 else name[:57] + "...")
+        raise ProfileError(f"{label} profile must be a profile name or a path to a .toml file of at most 1024 "
+                           f"printable characters, got {shown}")
     if name.endswith(".toml"):
         path = Path(name)
         if not path.is_file():
@@ -80,10 +85,12 @@ def read_profile(kind: str, name: str, numbers: Mapping[str, ValueSpec],
     wrong type or a value out of range.
     """
     path, shown = _locate(kind, name)
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except tomllib.TOMLDecodeError as exc:
-        raise ProfileError(f"{shown}: TOML syntax error: {exc}") from None
+    label = f"{ {'materials': 'material'}.get(kind, kind)} profile"
+    if isinstance(path, Path):
+        text = read_text_file(path, label, ProfileError)
+    else:  # a shipped profile inside the package
+        text = decode_text(path.read_bytes()[:MAX_INPUT_BYTES + 1], shown, ProfileError)
+    data = parse_toml(text, shown, ProfileError)
     known = set(numbers) | set(texts) | {"note", "standard"}
     for key in data:
         if key not in known:
@@ -228,7 +235,9 @@ class Fabrication:
     ``bore_clearance``: added to shaft diameters; ``tool_radius``: the cutter's
     radius (CNC), which the root fillet must not be tighter than; ``layer_gap``,
     ``gear_clearance``, ``plate_margin``, ``plate_corner_radius``,
-    ``spacer_hole``: layout and plate figures.
+    ``spacer_hole``: layout and plate figures; ``min_feature``: the thinnest
+    wall the process holds (optional, 0: not checked), which a gear's tip may not
+    be thinner than.
     """
 
     name: str
@@ -247,6 +256,7 @@ class Fabrication:
     note: str = ""
     sources: Mapping[str, str] = field(default_factory=dict, compare=False)
     material_profile: str = ""
+    min_feature: float = 0.0
 
 
 _FABRICATION_KEYS = {
@@ -259,6 +269,7 @@ _FABRICATION_KEYS = {
     "plate_margin": ValueSpec("mm", 1.0, 100.0),
     "plate_corner_radius": ValueSpec("mm", 0.0, 50.0),
     "spacer_hole": ValueSpec("mm", 1.0, 30.0),
+    "min_feature": ValueSpec("mm", 0.0, 5.0, required=False),
 }
 
 

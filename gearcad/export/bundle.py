@@ -113,6 +113,9 @@ def _write_all(plan, options: BuildOptions, put, files: dict[str, dict[str, str]
             warnings += write_dxf(drawing, put(p.name, "dxf", f"{p.name}.dxf"), version=options.dxf_version,
                                   layers=_layers(options))
         if "svg" in options.formats:
+            if options.dxf_mode == "splines":  # SVG takes arcs, not spline fit points
+                drawing = part_drawing(p.cut_part, "arcs", options.dxf_tolerance, (plan.layout.width / 2, margin / 2),
+                                       min(3.0, margin / 3))
             write_svg(drawing, put(p.name, "svg", f"{p.name}.svg"))
     if "step" in options.formats or "stl" in options.formats:
         _write_solids(plan, options, put, note)
