@@ -137,24 +137,49 @@ def _layers(options: BuildOptions) -> dict[str, tuple[str, int]] | None:
     return {role: (name, colour) for role, name, colour in options.dxf_layers} or None
 
 
+def _shape_key(part, hub=None, hub_length: float = 0.0) -> str:
+    """A digest of a flat part's loops and round holes (and its hub): equal keys, equal solids."""
+    import hashlib
+
+    import numpy as np
+
+    digest = hashlib.sha256()
+    for piece in (part, hub):
+        if piece is None:
+            continue
+        for loop in (piece.outer, *piece.holes):
+            digest.update(np.ascontiguousarray(loop.points(), dtype=float).tobytes())
+        digest.update(repr(tuple(piece.circles)).encode())
+    digest.update(repr(hub_length).encode())
+    return digest.hexdigest()
+
+
 def _write_solids(plan, options: BuildOptions, put, note) -> None:
+    """Per-part STEP and STL files and the assembly; a solid repeated in the plan (the planets of a set)
+    is built once and written once in the assembly, placed once per part."""
     from .step import AssemblyItem, build_solid, kernel_quiet, with_hub, write_step, write_stl
 
     thickness = plan.spec.thickness
     items = []
+    built_by_key: dict[str, object] = {}
+    part_of_key: dict[str, str] = {}
     with kernel_quiet():
         for g in plan.gears:
-            note(f"solid {g.name}")
-            built = build_solid(g.part, thickness, plan.tolerance)
-            if g.hub is not None:
-                built = with_hub(built, g.hub, thickness, g.hub_length, plan.tolerance)
-            solid = built.solid
+            key = _shape_key(g.part, g.hub, g.hub_length)
+            solid = built_by_key.get(key)
+            if solid is None:
+                note(f"solid {g.name}")
+                built = build_solid(g.part, thickness, plan.tolerance)
+                if g.hub is not None:
+                    built = with_hub(built, g.hub, thickness, g.hub_length, plan.tolerance)
+                solid = built_by_key[key] = built.solid
+                part_of_key[key] = g.name
             if "step" in options.formats:
                 write_step(solid, put(g.name, "step", f"{g.name}.step"), names=[g.name])
             if "stl" in options.formats:
                 write_stl(solid, put(g.name, "stl", f"{g.name}.stl"), options.stl_tolerance, options.stl_angle)
             shaft = plan.shafts[g.shaft]
-            items.append(AssemblyItem(g.name, solid, shaft.x, shaft.y, g.z, math.degrees(g.rotation)))
+            items.append(AssemblyItem(g.name, solid, shaft.x, shaft.y, g.z, math.degrees(g.rotation), part_of_key[key]))
         for p in plan.plates:
             note(f"solid {p.name}")
             solid = build_solid(p.part, thickness, plan.tolerance).solid
