@@ -256,7 +256,12 @@ def _check_solver(solver: SolverSpec, ctx: _Context) -> None:
         try:
             check()
         except InputError as exc:
-            raise ctx.error(str(exc), key, "solve") from None
+            text = str(exc)
+            if key == "min_teeth":  # the limits name their own value
+                key = next((k for k, start in (("max_teeth", "max teeth"), ("max_stage_ratio", "max stage ratio"),
+                                               ("exclude", "excluded"), ("exclude", "no tooth count"),
+                                               ("direction", "direction")) if text.startswith(start)), "min_teeth")
+            raise ctx.error(text, key, "solve") from None
     if solver.coaxial and solver.stages is not None and solver.stages not in (2, 4):
         raise ctx.error(f"a coaxial train has 2 or 4 stages, got {solver.stages}", "stages", "solve")
     if solver.coaxial and solver.direction == "opposite":
