@@ -45,7 +45,7 @@ from pathlib import Path
 
 from ..errors import ExportError
 
-__all__ = ["MARKER", "staged_folder", "folder_lock", "owned_files", "check_folder", "staging_prefix", "lock_path"]
+__all__ = ["MARKER", "Staging", "staged_folder", "folder_lock", "owned_files", "check_folder", "staging_prefix", "lock_path"]
 
 MARKER = ".gearcad-output"
 _RENAME_EXCHANGE = 2  # linux/fs.h
