@@ -10,6 +10,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
+
 from .geometry.gear import SpurGear
 from .geometry.generate import tooth_profile
 from .pair import GearPair
@@ -26,6 +28,10 @@ __all__ = [
     "SEVERITIES",
     "MIN_CONTACT_RATIO",
     "MIN_TIP_THICKNESS",
+    "process_findings",
+    "tool_reach",
+    "largest_tool",
+    "space_direction",
 ]
 
 SEVERITIES = ("ok", "warning", "failure")
@@ -229,3 +235,119 @@ def backlash_finding(backlash: float, operating_pressure_angle: float) -> Findin
     return Finding("backlash", "ok", backlash, 0.0,
                    f"circumferential backlash {backlash:.4f} mm on the working pitch circle "
                    f"({backlash * math.cos(operating_pressure_angle):.4f} mm normal)")
+
+# -- can the process make the part? ---------------------------------------------------------------
+
+def _clear(points: np.ndarray, direction: np.ndarray, bottom: float, radius: float) -> bool:
+    """Whether a disc of ``radius`` whose lowest point on the ray ``direction`` is at ``bottom`` misses ``points``."""
+    centre = direction * (bottom + radius)
+    return bool(np.min(np.hypot(*(points - centre).T)) >= radius * (1 - 1e-9))
+
+
+def space_direction(points: np.ndarray) -> np.ndarray:
+    """Unit vector along the centre line of one tooth space of a gear outline centred at the origin.
+
+    The space is the one holding the outline's point nearest the centre; a flat root
+    arc is split in its middle (the spaces of a generated gear are symmetric).
+    """
+    r = np.hypot(*points.T)
+    i = int(np.argmin(r))
+    n = len(points)
+    near = lambda k: abs(r[k % n] - r[i]) <= 1e-6 * max(r[i], 1.0)  # noqa: E731
+    first, last = i, i
+    while near(first - 1) and i - first < n:  # the run of root points around the deepest one
+        first -= 1
+    while near(last + 1) and last - i < n:
+        last += 1
+    angle = np.arctan2(points[:, 1], points[:, 0])
+    span = np.angle(np.exp(1j * (angle[last % n] - angle[first % n])))
+    middle = angle[first % n] + 0.5 * span
+    return np.array([math.cos(middle), math.sin(middle)])
+
+
+def tool_reach(points: np.ndarray, tool_radius: float) -> float:
+    """Lowest radius (mm) an end mill of ``tool_radius`` mm reaches in the tooth spaces of a gear outline.
+
+    The mill goes down the centre line of a space until it touches a flank
+    (bisection on the outline's points; the outline's chord error is the
+    accuracy).  Parameters: ``points`` (N, 2) outline of a gear centred at the
+    origin, mm.
+    """
+    direction = space_direction(points)
+    r = np.hypot(*points.T)
+    low, high = float(r.min()), float(r.max()) + 2 * tool_radius
+    if _clear(points, direction, low, tool_radius):
+        return low
+    for _ in range(60):
+        mid = 0.5 * (low + high)
+        low, high = (low, mid) if _clear(points, direction, mid, tool_radius) else (mid, high)
+    return high
+
+
+def largest_tool(points: np.ndarray, depth_radius: float) -> float:
+    """Radius (mm) of the largest end mill that reaches ``depth_radius`` mm on a space's centre line."""
+    direction = space_direction(points)
+    low, high = 0.0, float(np.hypot(*points.T).max())
+    for _ in range(60):
+        mid = 0.5 * (low + high)
+        low, high = (mid, high) if _clear(points, direction, depth_radius, mid) else (low, mid)
+    return low
+
+
+def process_findings(name: str, gear: SpurGear, outline: np.ndarray, process: str, tool_radius: float,
+                     min_feature: float) -> list[Finding]:
+    """Whether the fabrication process can make an external gear: failures name the reason.
+
+    - ``cnc``: the end mill (``tool_radius`` mm) must reach down each tooth space
+      to the form circle, where the cut involute begins; higher up it leaves part of
+      the working flank standing and the mate's tips strike it.
+    - every process: the tip must be at least ``min_feature`` mm thick, the thinnest
+      wall the process holds (a laser burns a thinner tip away, a printer cannot lay
+      a line narrower than its nozzle).
+
+    Parameters
+    ----------
+    name : str
+        The gear's name, for messages.
+    gear : SpurGear
+        The gear (its tip thickness and form circle), mm.
+    outline : numpy.ndarray
+        (N, 2) outline of the gear at the origin as it is drawn, mm.
+    process : str
+        ``laser``, ``fdm`` or ``cnc``.
+    tool_radius : float
+        Radius of the end mill, mm (0: none).
+    min_feature : float
+        Thinnest wall the process holds, mm (0: not checked).
+
+    Returns
+    -------
+    list of Finding
+    """
+    out: list[Finding] = []
+    if process == "cnc" and tool_radius > 0:
+        form = tooth_profile(gear, tolerance=1e-3).form_diameter / 2
+        reach = tool_reach(outline, tool_radius)
+        if reach > form + 1e-3:
+            biggest = 2 * largest_tool(outline, form)
+            where = ("cannot enter the tooth spaces at all" if reach >= gear.tip_diameter / 2 - 1e-6 else
+                     f"goes no deeper than diameter {2 * reach:.3f} mm in the tooth spaces")
+            out.append(Finding(f"tool reach {name}", "failure", 2 * reach, 2 * form,
+                               f"{name}: the {2 * tool_radius:g} mm end mill {where}, short of the form diameter "
+                               f"{2 * form:.3f} mm where the involute begins, so the flanks cannot be cut; use an "
+                               f"end mill of at most {biggest:.2f} mm or a larger module"))
+        else:
+            out.append(Finding(f"tool reach {name}", "ok", 2 * reach, 2 * form,
+                               f"{name}: the {2 * tool_radius:g} mm end mill reaches the whole involute flank "
+                               f"(down to diameter {2 * reach:.3f} mm)"))
+    if min_feature > 0:
+        tip = gear.tip_thickness
+        if tip < min_feature:
+            out.append(Finding(f"tip width {name}", "failure", tip, min_feature,
+                               f"{name}: the tip is {tip:.3f} mm thick, thinner than the {min_feature:g} mm the "
+                               f"{process} process holds; reduce the profile shift or shorten the tips"))
+        else:
+            out.append(Finding(f"tip width {name}", "ok", tip, min_feature,
+                               f"{name}: the tip ({tip:.3f} mm) is not thinner than the {min_feature:g} mm the "
+                               f"{process} process holds"))
+    return out

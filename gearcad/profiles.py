@@ -9,13 +9,13 @@ A profile can be named (``iso53-a``) or given as a path to a ``.toml`` file.
 from __future__ import annotations
 
 import math
-import tomllib
 from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
 from typing import Mapping
 
 from .errors import ProfileError
+from .inputfiles import MAX_INPUT_BYTES, decode_text, parse_toml, read_text_file
 
 __all__ = [
     "ToothSystem",
@@ -57,6 +57,11 @@ def profile_names(kind: str) -> list[str]:
 
 
 def _locate(kind: str, name: str):
+    label = {"materials": "material"}.get(kind, kind)
+    if not name or len(name) > 1024 or not name.isprintable():
+        shown = repr(name if len(name) <= 60 else name[:57] + "...")
+        raise ProfileError(f"{label} profile must be a profile name or a path to a .toml file of at most 1024 "
+                           f"printable characters, got {shown}")
     if name.endswith(".toml"):
         path = Path(name)
         if not path.is_file():
@@ -80,10 +85,12 @@ def read_profile(kind: str, name: str, numbers: Mapping[str, ValueSpec],
     wrong type or a value out of range.
     """
     path, shown = _locate(kind, name)
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except tomllib.TOMLDecodeError as exc:
-        raise ProfileError(f"{shown}: TOML syntax error: {exc}") from None
+    label = f"{ {'materials': 'material'}.get(kind, kind)} profile"
+    if isinstance(path, Path):
+        text = read_text_file(path, label, ProfileError)
+    else:  # a shipped profile inside the package
+        text = decode_text(path.read_bytes()[:MAX_INPUT_BYTES + 1], shown, ProfileError)
+    data = parse_toml(text, shown, ProfileError)
     known = set(numbers) | set(texts) | {"note", "standard"}
     for key in data:
         if key not in known:
@@ -240,7 +247,9 @@ class Fabrication:
     ``gear_clearance``, ``plate_margin``, ``plate_corner_radius``,
     ``spacer_hole``: layout and plate figures; ``sheet_width``, ``sheet_height``:
     the stock sheet (or print bed) the nested cut sheets are laid out for
-    (optional in a profile, default 600 x 400 mm).
+    (optional in a profile, default 600 x 400 mm); ``min_feature``: the thinnest
+    wall the process holds (optional, 0: not checked), which a gear's tip may not
+    be thinner than.
     """
 
     name: str
@@ -261,6 +270,7 @@ class Fabrication:
     material_profile: str = ""
     sheet_width: float = 600.0  # mm; common practice (a common laser bed and stock sheet)
     sheet_height: float = 400.0  # mm; common practice
+    min_feature: float = 0.0
 
 
 _FABRICATION_KEYS = {
@@ -275,6 +285,7 @@ _FABRICATION_KEYS = {
     "spacer_hole": ValueSpec("mm", 1.0, 30.0),
     "sheet_width": ValueSpec("mm", 10.0, 10000.0, required=False),
     "sheet_height": ValueSpec("mm", 10.0, 10000.0, required=False),
+    "min_feature": ValueSpec("mm", 0.0, 5.0, required=False),
 }
 
 

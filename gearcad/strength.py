@@ -21,7 +21,12 @@ The Lewis form factor is computed from the generated tooth outline itself (see
    vertex at the load point, symmetric about the centre line, inscribed in the
    tooth, touches the outline (the beam of uniform strength of the Lewis
    construction); for gears it touches the root fillets, for near-racks the
-   straight part of the flank.
+   straight part of the flank.  The section is sought from the root up to the
+   cutter's datum line (reference radius plus shift), and is the first such
+   touching point walking up: on a pointed or nearly pointed tooth the ratio
+   ``t² / (4 l)`` falls towards zero again near the tip, which is the tip's
+   strength (checked as tip thickness), not the tooth's as a beam (see
+   :func:`_critical_section`).
 3. The form factor on the module basis is ``Y = 2 x / (3 m)`` (with the
    diametral pitch ``P = 1/m`` this is the Lewis ``Y = 2 x P / 3``), and the
    Lewis stress is ``sigma = K_v W_t / (b m Y)``.  As in the textbook derivation
@@ -258,6 +263,47 @@ def _least_ratio(points: np.ndarray, load_radius: float) -> tuple[float, np.ndar
     return float(dense_ratio[k]), dense[k]
 
 
+def _flank_from_root(curves, limit: float) -> tuple[np.ndarray, list[str]]:
+    """The points of the upper flank (y > 0) within ``limit`` (mm) of the centre, in order from the root up."""
+    pieces, kinds = [], []
+    for curve in curves:
+        keep = (curve.points[:, 1] > 0) & (np.hypot(*curve.points.T) <= limit)
+        if keep.any():
+            pieces.append(curve.points[keep])
+            kinds += [curve.kind] * int(keep.sum())
+    if not pieces:
+        return np.empty((0, 2)), []
+    # the outline runs counter-clockwise: the upper flank from the tip down to the root; turn it round
+    return np.vstack(pieces)[::-1], kinds[::-1]
+
+
+def _datum_radius(gear: SpurGear) -> float:
+    """Radius of the cutter's datum line in the cut: the reference radius plus the shift, mm.
+
+    The tooth below it is what the cutter's tip generated (dedendum, fillet); the
+    Lewis section of every tooth in Shigley's table lies there, for the rack too
+    (0.46 m below the datum line, from the closed form in the tests).
+    """
+    return gear.reference_diameter / 2 + gear.shift * gear.module
+
+
+def _critical_section(points: np.ndarray, kinds: list[str], load_radius: float) -> tuple[float, np.ndarray, str]:
+    """The Lewis critical section: the least ``y² / (r_L - u)`` met walking up the flank from the root.
+
+    Up from the root the ratio falls through the fillet and rises again on the
+    flank: its first minimum is where Lewis's parabola touches the tooth.  On a
+    pointed or nearly pointed tooth the ratio falls once more towards the tip,
+    where it tends to zero at the load point itself; that is no section of the
+    tooth as a beam, so the walk stops at the first minimum wherever the tip is.
+    """
+    ratio = points[:, 1] ** 2 / (load_radius - points[:, 0])
+    rising = np.nonzero(np.diff(ratio) > 1e-12 * ratio[1:])[0]  # joins repeat a point: not a rise
+    k = int(rising[0]) if len(rising) else int(np.argmin(ratio))
+    lo, hi = max(k - 1, 0), min(k + 2, len(points))
+    value, where = _least_ratio(points[lo:hi], load_radius)
+    return value, where, kinds[k]
+
+
 def lewis_form_factor(gear: SpurGear, tolerance: float = _LEWIS_TOLERANCE) -> LewisResult:
     """Lewis form factor of ``gear`` from its generated outline (tip load; see module docstring).
 
@@ -278,17 +324,10 @@ def lewis_form_factor(gear: SpurGear, tolerance: float = _LEWIS_TOLERANCE) -> Le
     unit = _unit_module(gear)
     profile = tooth_profile(unit, tolerance)
     load_radius, phi = _load_point(unit)
-    best: tuple[float, np.ndarray, str] | None = None
-    for curve in profile.curves:
-        keep = (curve.points[:, 1] > 0) & (curve.points[:, 0] < load_radius)
-        if not keep.any():
-            continue
-        value, where = _least_ratio(curve.points[keep], load_radius)
-        if best is None or value < best[0]:
-            best = (value, where, curve.kind)
-    if best is None:
+    points, kinds = _flank_from_root(profile.curves, min(load_radius, _datum_radius(unit)))
+    if len(points) == 0:
         raise GeometryError(f"no part of the {gear.teeth}-tooth outline lies below the Lewis load point")
-    x, (u, y), kind = best
+    x, (u, y), kind = _critical_section(points, kinds, load_radius)
     m = gear.module
     form = 2.0 * x / 3.0
     return LewisResult(

@@ -19,19 +19,55 @@ A file without stages may carry a ``[solve]`` table instead (ratio, stages,
 min_teeth, max_teeth, max_stage_ratio, direction, hunting, coaxial, exclude):
 the ratio solver then picks the tooth counts.  Errors name the file, the line
 and the key.  :func:`parse_train` is pure; :func:`read_train` reads the file.
+
+Every table is checked before anything is planned or written: tables that
+contradict each other are refused (``[[stage]]`` beside ``[solve]`` or
+``[planetary]``, ``[solve]`` beside ``[planetary]`` or ``[summing]``, a top
+``coaxial`` or ``target`` that ``[solve]`` contradicts), ``[solve]`` is held to
+the same rules as the command line's solver options, and sizes are bounded
+(:data:`LIMITS`; the file itself by :mod:`gearcad.inputfiles`).
 """
 
 from __future__ import annotations
 
+import math
 import re
-import tomllib
 from pathlib import Path
 from typing import Any
 
 from .errors import InputError
+from .inputfiles import MAX_INPUT_BYTES, parse_toml, read_text_file
 from .trainspec import GearSpec, Hub, Keyway, PlanetarySpec, SolverSpec, StageSpec, SummingSpec, TrainSpec
 
-__all__ = ["parse_train", "read_train", "train_to_toml"]
+__all__ = ["parse_train", "read_train", "train_to_toml", "LIMITS", "MAX_FILE_STAGES", "MAX_TITLE_LENGTH"]
+
+#: Most ``[[stage]]`` tables of a train file (a compound train of 12 stages spans
+#: ratios beyond 10^9 at 6:1 a stage; the layout search grows with the count).
+MAX_FILE_STAGES = 12
+#: Longest title and ``target`` / ``ratio`` texts, characters.
+MAX_TITLE_LENGTH = 200
+MAX_EXCLUDE = 400
+#: Bounds of the numbers of a train file, mm (shift: a coefficient); the gear
+#: geometry adds its own (module 0.01 to 100 mm, shift -2 to 4, teeth 3 to 10000).
+LIMITS: dict[str, tuple[float, float]] = {
+    "module": (0.05, 50.0),
+    "thickness": (0.1, 500.0),
+    "bore": (0.1, 1000.0),
+    "flat": (0.01, 500.0),
+    "hub.diameter": (0.1, 2000.0),
+    "hub.length": (0.01, 1000.0),
+    "keyway.width": (0.01, 200.0),
+    "keyway.depth": (0.01, 200.0),
+    "tube": (0.1, 1000.0),
+    "axis_distance": (0.1, 10000.0),
+    "shift_limit": (0.0, 4.0),
+    "max_stage_ratio": (1.0, 1e6),
+    "shift": (-2.0, 4.0),
+    "pressure_angle": (10.0, 35.0),
+}
+#: Most teeth of one gear in a train file (the geometry allows more; the files of a
+#: bigger gear grow past what a cutter takes).
+MAX_FILE_TEETH = 2000
 
 TOP_KEYS = {"name", "title", "target", "module", "thickness", "tooth_system", "pressure_angle", "fabrication",
             "bore", "coaxial", "stage", "solve", "planetary", "summing", "join", "studs"}
@@ -85,33 +121,54 @@ def _number(data: dict, key: str, ctx: _Context, table: str = "", index: int = 0
         return default
     value = data[key]
     if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise ctx.error(f"must be a number, got {value!r}", prefix + key, table, index)
-    return float(value)
+        raise ctx.error(f"must be a number, got {_short(value)}", prefix + key, table, index)
+    number = float(value) if not isinstance(value, int) or abs(value) < 10 ** 300 else math.inf
+    bounds = LIMITS.get((prefix.rsplit(".", 2)[-2] + "." if prefix.count(".") >= 2 else "") + key) or LIMITS.get(key)
+    if not math.isfinite(number):
+        raise ctx.error(f"must be a finite number, got {_short(value)}", prefix + key, table, index)
+    if bounds is not None and not bounds[0] <= number <= bounds[1]:
+        low, high = bounds
+        unit = "" if key in ("shift", "shift_limit", "max_stage_ratio") else " degrees" if key == "pressure_angle" else " mm"
+        raise ctx.error(f"must be from {low:g} to {high:g}{unit}, got {_short(value)}", prefix + key, table, index)
+    return number
+
+
+def _short(value: Any) -> str:
+    """``repr(value)`` cut to 60 characters, so a message stays one readable line."""
+    text = repr(value)
+    return text if len(text) <= 60 else text[:57] + "..."
 
 
 def _text(data: dict, key: str, ctx: _Context, default: str | None = None, table: str = "") -> str | None:
     if key not in data:
         return default
     if not isinstance(data[key], str):
-        raise ctx.error(f"must be a text in quotes, got {data[key]!r}", key, table)
+        raise ctx.error(f"must be a text in quotes, got {_short(data[key])}", key, table)
+    if len(data[key]) > MAX_TITLE_LENGTH:
+        raise ctx.error(f"must be at most {MAX_TITLE_LENGTH} characters, got {len(data[key])}", key, table)
+    if any(not c.isprintable() for c in data[key]):
+        raise ctx.error(f"must be one line of printable characters, got {_short(data[key])}", key, table)
     return data[key]
 
 
 def _flag(data: dict, key: str, ctx: _Context, table: str = "") -> bool:
     value = data.get(key, False)
     if not isinstance(value, bool):
-        raise ctx.error(f"must be true or false, got {value!r}", key, table)
+        raise ctx.error(f"must be true or false, got {_short(value)}", key, table)
     return value
 
 
 def _gear(value: Any, key: str, ctx: _Context, index: int) -> GearSpec:
     if isinstance(value, bool) or not isinstance(value, (int, dict)):
-        raise ctx.error(f"must be a tooth count or a table {{ teeth = ... }}, got {value!r}", key, "stage", index)
+        raise ctx.error(f"must be a tooth count or a table {{ teeth = ... }}, got {_short(value)}", key, "stage", index)
     if isinstance(value, int):
         value = {"teeth": value}
     _check_keys(value, GEAR_KEYS, ctx, "stage", index, key + ".")
     if "teeth" not in value or isinstance(value["teeth"], bool) or not isinstance(value["teeth"], int):
-        raise ctx.error(f"teeth must be a whole number, got {value.get('teeth')!r}", key + ".teeth", "stage", index)
+        raise ctx.error(f"teeth must be a whole number, got {_short(value.get('teeth'))}", key + ".teeth", "stage", index)
+    if not 3 <= value["teeth"] <= MAX_FILE_TEETH:
+        raise ctx.error(f"tooth count must be from 3 to {MAX_FILE_TEETH}, got {_short(value['teeth'])}", key + ".teeth",
+                        "stage", index)
     hub = keyway = None
     if "hub" in value:
         h = value["hub"]
@@ -136,6 +193,8 @@ def _stages(data: dict, ctx: _Context) -> tuple[StageSpec, ...]:
     raw = data.get("stage", [])
     if not isinstance(raw, list) or not all(isinstance(s, dict) for s in raw):
         raise ctx.error("must be written as [[stage]] tables", "stage")
+    if len(raw) > MAX_FILE_STAGES:
+        raise ctx.error(f"at most {MAX_FILE_STAGES} [[stage]] tables are allowed, got {len(raw)}", "stage")
     stages = []
     for i, s in enumerate(raw):
         _check_keys(s, STAGE_KEYS, ctx, "stage", i)
@@ -171,18 +230,91 @@ def _solver(data: dict, ctx: _Context) -> SolverSpec | None:
     _check_keys(s, SOLVE_KEYS, ctx, "solve")
     if not isinstance(s.get("ratio"), str):
         raise ctx.error("ratio must be a text in quotes, e.g. \"127/20\"", "ratio", "solve")
+    _text(s, "ratio", ctx, table="solve")
     ints = {}
     for key in ("stages", "min_teeth", "max_teeth"):
         if key in s:
             if isinstance(s[key], bool) or not isinstance(s[key], int):
-                raise ctx.error(f"must be a whole number, got {s[key]!r}", key, "solve")
+                raise ctx.error(f"must be a whole number, got {_short(s[key])}", key, "solve")
             ints[key] = s[key]
     exclude = s.get("exclude", [])
     if not isinstance(exclude, list) or not all(isinstance(z, int) and not isinstance(z, bool) for z in exclude):
         raise ctx.error("must be a list of tooth counts, e.g. [13, 17]", "exclude", "solve")
-    return SolverSpec(ratio=s["ratio"], max_stage_ratio=_number(s, "max_stage_ratio", ctx, "solve"),
-                      direction=_text(s, "direction", ctx, table="solve"), hunting=_flag(s, "hunting", ctx, "solve"),
-                      coaxial=_flag(s, "coaxial", ctx, "solve"), exclude=tuple(exclude), **ints)
+    if len(exclude) > MAX_EXCLUDE:
+        raise ctx.error(f"must list at most {MAX_EXCLUDE} tooth counts, got {len(exclude)}", "exclude", "solve")
+    top_coaxial = _flag(data, "coaxial", ctx)
+    coaxial = _flag(s, "coaxial", ctx, "solve") if "coaxial" in s else top_coaxial
+    if "coaxial" in s and "coaxial" in data and coaxial != top_coaxial:
+        raise ctx.error(f"is {str(coaxial).lower()} but the top-level coaxial is {str(top_coaxial).lower()}; "
+                        "give it once", "coaxial", "solve")
+    solver = SolverSpec(ratio=s["ratio"], max_stage_ratio=_number(s, "max_stage_ratio", ctx, "solve"),
+                        direction=_text(s, "direction", ctx, table="solve"), hunting=_flag(s, "hunting", ctx, "solve"),
+                        coaxial=coaxial, exclude=tuple(exclude), **ints)
+    _check_solver(solver, ctx)
+    return solver
+
+
+def _check_solver(solver: SolverSpec, ctx: _Context) -> None:
+    """The command line's rules for the solver's options, applied to ``[solve]`` before any work."""
+    from .ratio.compound import check_stages
+    from .ratio.limits import DEFAULT_MAX_STAGE_RATIO, DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH, make_limits
+    from .ratio.target import parse_target
+
+    checks = (
+        ("ratio", lambda: parse_target(solver.ratio)),
+        ("stages", lambda: solver.stages is None or check_stages(solver.stages)),
+        ("min_teeth", lambda: make_limits(
+            solver.min_teeth if solver.min_teeth is not None else min(DEFAULT_MIN_TEETH, solver.max_teeth or DEFAULT_MIN_TEETH),
+            solver.max_teeth if solver.max_teeth is not None else max(DEFAULT_MAX_TEETH, solver.min_teeth or 0),
+            solver.max_stage_ratio or DEFAULT_MAX_STAGE_RATIO, solver.hunting, solver.exclude, None, solver.direction)),
+    )
+    for key, check in checks:
+        try:
+            check()
+        except InputError as exc:
+            text = str(exc)
+            if key == "min_teeth":  # the limits name their own value
+                key = next((k for k, start in (("max_teeth", "max teeth"), ("max_stage_ratio", "max stage ratio"),
+                                               ("exclude", "excluded"), ("exclude", "no tooth count"),
+                                               ("direction", "direction")) if text.startswith(start)), "min_teeth")
+            raise ctx.error(text, key, "solve") from None
+    if solver.coaxial and solver.stages is not None and solver.stages not in (2, 4):
+        raise ctx.error(f"a coaxial train has 2 or 4 stages, got {solver.stages}", "stages", "solve")
+    if solver.coaxial and solver.direction == "opposite":
+        raise ctx.error("'opposite' cannot be met by a coaxial train (its output turns the same way as its input)",
+                        "direction", "solve")
+
+
+def _contradictions(data: dict, ctx: _Context) -> None:
+    """Refuse tables that cannot stand together (one of them would be dropped without a word)."""
+    has = {key: key in data for key in ("stage", "solve", "planetary", "summing")}
+    if has["stage"] and has["solve"]:
+        raise ctx.error("[solve] finds the stages; a file gives either [[stage]] tables or a [solve] table, not both",
+                        "solve")
+    if has["stage"] and has["planetary"]:
+        raise ctx.error("a planetary train has no [[stage]] tables (its gears are sun, planet and ring); "
+                        "remove the [[stage]] tables or the [planetary] table", "planetary")
+    for other in ("planetary", "summing"):
+        if has["solve"] and has[other]:
+            raise ctx.error(f"[solve] finds compound trains; it cannot stand beside [{other}] "
+                            f"(use gearcad design --kind {other} to solve one)", "solve")
+    if has["planetary"] and data.get("coaxial") is True:
+        raise ctx.error("a planetary set is coaxial by its nature; leave out coaxial", "coaxial")
+
+
+def _check_target(spec: TrainSpec, ctx: _Context) -> None:
+    """The top-level ``target`` and ``[solve]``'s ratio must be one value when both are given."""
+    from .ratio.target import parse_target
+
+    if spec.target is None:
+        return
+    try:
+        target = parse_target(spec.target)
+    except InputError as exc:
+        raise ctx.error(str(exc), "target") from None
+    if spec.solver is not None and parse_target(spec.solver.ratio).approx != target.approx:
+        raise ctx.error(f"{spec.target!r} differs from [solve] ratio {spec.solver.ratio!r}; give the ratio once "
+                        "(in [solve])", "target")
 
 
 def _table(data: dict, name: str, allowed: set[str], ctx: _Context) -> dict | None:
@@ -247,18 +379,18 @@ def _summing(data: dict, ctx: _Context) -> SummingSpec | None:
 
 def parse_train(text: str, filename: str = "train file") -> TrainSpec:
     """Parse a train file's text; raise :class:`InputError` naming file, line and key."""
+    if len(text) > MAX_INPUT_BYTES:
+        raise InputError(f"{filename}: larger than the {MAX_INPUT_BYTES // 1024} kB allowed for a train file")
     ctx = _Context(text, filename)
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"{filename}: TOML syntax error: {exc}") from None
+    data = parse_toml(text, filename, InputError)
     _check_keys(data, TOP_KEYS, ctx)
+    _contradictions(data, ctx)
     for key in ("name", "module", "thickness"):
         if key not in data:
             raise ctx.error("missing (required)", key)
     name = _text(data, "name", ctx)
     try:
-        return TrainSpec(
+        spec = TrainSpec(
             name=name, title=_text(data, "title", ctx, ""), target=_text(data, "target", ctx),
             module=_number(data, "module", ctx, required=True), thickness=_number(data, "thickness", ctx, required=True),
             stages=_stages(data, ctx), tooth_system=_text(data, "tooth_system", ctx, "iso53-a"),
@@ -271,6 +403,8 @@ def parse_train(text: str, filename: str = "train file") -> TrainSpec:
             raise
         key = next((k for k in ("thickness", "module", "bore", "join", "name") if k in str(exc).split(" must")[0]), "name")
         raise ctx.error(str(exc), key) from None
+    _check_target(spec, ctx)
+    return spec
 
 
 def _studs(data: dict, ctx: _Context) -> tuple[str, ...]:
@@ -283,13 +417,7 @@ def _studs(data: dict, ctx: _Context) -> tuple[str, ...]:
 def read_train(path: str | Path) -> TrainSpec:
     """Read and parse a train file."""
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise InputError(f"train file {str(path)!r} does not exist") from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(f"train file {str(path)!r} cannot be read: {exc}") from None
-    return parse_train(text, str(path))
+    return parse_train(read_text_file(path, "train file", InputError), str(path))
 
 
 def _gear_toml(g: GearSpec) -> str:

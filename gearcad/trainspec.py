@@ -216,8 +216,9 @@ class TrainSpec:
     def __post_init__(self) -> None:
         if self.join is not None and self.join not in JOINS:
             raise InputError(f"join must be one of {', '.join(JOINS)}, got {self.join!r}")
-        if not self.name or any(c in self.name for c in '/\\:*?"<>|') or self.name.startswith("."):
-            raise InputError(f"train name must be a plain file name (no / \\ : * ? \" < > |), got {self.name!r}")
+        from .inputfiles import plain_file_name
+
+        plain_file_name(self.name, "train name")
         if not (math.isfinite(self.thickness) and self.thickness > 0):
             raise InputError(f"face width (thickness) must be greater than 0 mm, got {self.thickness!r}")
         if not (math.isfinite(self.module) and self.module > 0):

@@ -40,13 +40,14 @@ def test_build_rates_every_mesh_with_the_torque_carried_along(tmp_path, capsys):
     train = tmp_path / "t.toml"
     train.write_text('name = "t"\nmodule = 1.5\nthickness = 3\nfabrication = "fdm-pla-0.4mm"\n'
                      "[[stage]]\ndriver = 15\ndriven = 45\n[[stage]]\ndriver = 20\ndriven = 40\n")
-    main(["build", str(train), "--out", str(tmp_path / "o"), "--formats", "dxf", "--torque", "0.1", "--speed", "300",
-          "--json"])
+    # a torque the gears carry: a build whose rating fails writes nothing (exit 1)
+    assert main(["build", str(train), "--out", str(tmp_path / "o"), "--formats", "dxf", "--torque", "0.02",
+                 "--speed", "300", "--json"]) == 0
     report = json.loads(capsys.readouterr().out)
     first, second = (m["rating"] for m in report["meshes"])
     assert first["gears"][0]["material"] == "pla"  # the fabrication profile's material
     # Shaft 1 turns 45/15 = 3 times slower and carries 3 times the torque (no losses).
-    assert second["torque"] == pytest.approx(0.1 * 3, rel=1e-12)
+    assert second["torque"] == pytest.approx(0.02 * 3, rel=1e-12)
     assert second["speed"] == pytest.approx(300 / 3, rel=1e-12)
     md = (tmp_path / "o" / "report.md").read_text()
     assert "Load rating (estimates for light duty)" in md

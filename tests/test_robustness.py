@@ -143,33 +143,32 @@ def test_the_same_train_gives_byte_identical_dxf_and_report(tmp_path):
 
 
 @pytest.mark.slow
-def test_an_interrupted_build_leaves_no_partial_file(tmp_path):
-    # SIGINT while the solids are being written: every file left is complete, no temporary name remains.
+def test_an_interrupted_build_leaves_nothing(tmp_path):
+    # SIGINT while the files are being written (into the staging folder beside the output folder):
+    # no output folder appears, no staging folder or lock file remains, and the build can run again.
     train = train_file(tmp_path, GOOD_TRAIN.replace("driven = 30", "driven = 90") +
                        "\n[[stage]]\ndriver = 20\ndriven = 95\n")
     out = tmp_path / "out"
     proc = subprocess.Popen([sys.executable, "-m", "gearcad", "build", train, "--out", str(out)],
                             stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
     deadline = time.monotonic() + 60
-    while time.monotonic() < deadline and not any(out.glob("*.dxf")):
+    while time.monotonic() < deadline and not any(tmp_path.glob(".out.gearcad-staging-*/*.dxf")):
         time.sleep(0.05)
     time.sleep(0.5)
     proc.send_signal(signal.SIGINT)
     _, err = proc.communicate(timeout=120)
     assert proc.returncode in (130, 0), err
-    leftovers = [p.name for p in out.iterdir() if ".tmp-" in p.name]
-    assert leftovers == []
     if proc.returncode == 130:
         assert "interrupted" in err and "Traceback" not in err
-        assert not (out / "report.json").exists() or (out / "report.json").stat().st_size > 0
-    import ezdxf
-
-    for dxf in out.glob("*.dxf"):  # every file that exists is whole: ezdxf reads it and its audit is clean
-        assert not ezdxf.readfile(dxf).audit().has_errors
-    # The folder is still gearcad's: the same build can run again in place.
+        assert not out.exists()
+    assert sorted(p.name for p in tmp_path.iterdir() if p.name.startswith(".out")) == []
     again = subprocess.run([sys.executable, "-m", "gearcad", "build", train, "--out", str(out), "--formats", "dxf"],
                            capture_output=True, text=True)
     assert again.returncode == 0, again.stderr
+    import ezdxf
+
+    for dxf in out.glob("*.dxf"):  # every file is whole: ezdxf reads it and its audit is clean
+        assert not ezdxf.readfile(dxf).audit().has_errors
 
 
 from fractions import Fraction  # noqa: E402

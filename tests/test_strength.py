@@ -360,3 +360,17 @@ def test_rate_pair_refuses_bad_values(pair20_40, acetal, args, word):
     # Input rules of the project: > 0 and finite, the message names the value.
     with pytest.raises(InputError, match=word):
         rate_pair(pair20_40, *args, acetal, acetal)
+
+
+@pytest.mark.parametrize("z, shift", [(12, 0.6), (12, 0.7), (12, 0.78), (20, 0.95), (20, 1.05)])
+def test_lewis_section_of_a_nearly_pointed_tooth_stays_at_the_root(b_rack, z, shift):
+    # A positive shift thickens the tooth at the root: its Lewis Y is at least the unshifted tooth's
+    # (Shigley Table 14-2, from memory, within the bands above), however thin the tip; the section lies
+    # below the cutter's datum line (reference radius + x m), not just under the tip as a bare minimum
+    # of t²/(4 l) would put it (Y near 0.01 to 0.1 for these teeth).
+    gear = SpurGear(z, 1.0, b_rack, shift=shift)
+    assert gear.tip_thickness < 0.25  # thinner than common practice's 0.25 m: nearly pointed
+    result = lewis_form_factor(gear)
+    assert result.form_factor >= SHIGLEY_Y[z] * (1 + band(z))
+    assert result.critical_radius <= gear.reference_diameter / 2 + shift + 1e-6
+    assert result.height > gear.module  # over a module below the load point, not just under the tip

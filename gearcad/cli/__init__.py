@@ -95,6 +95,6 @@ def main(argv: Sequence[str] | None = None) -> int:
 
 
 def _interrupted(command: str) -> int:
-    print(f"gearcad {command}: interrupted; every file written so far is complete, no partial file was left",
-          file=sys.stderr)
+    print(f"gearcad {command}: interrupted; nothing was put in place (output folders and files are replaced "
+          "only when complete)", file=sys.stderr)
     return 130

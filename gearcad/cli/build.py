@@ -9,14 +9,17 @@ from pathlib import Path
 from ._format import print_json
 from ._load import add_load_options, load_from_args
 
-__all__ = ["add_parser", "run", "add_output_options", "build_and_write", "parse_sheet"]
+__all__ = ["add_parser", "run", "add_output_options", "build_and_write", "failed_checks", "summary", "parse_sheet"]
 
 DESCRIPTION = """\
 Build a train from its train file (TOML; see README): the checks of every mesh, the
 shaft layout and plates, and the files: DXF and SVG outlines (kerf applied for laser
 cutting), nested cut sheets per material and thickness, STEP and STL solids, an
 assembly, report.md, report.json and preview.png.
-Exit 0: no check failed; 1: a check failed (files are still written); 2: bad input."""
+Every option and table is checked before the first file; the files are written into a
+staging folder beside the output folder and put in place whole at the end.
+Exit 0: built, no check failed; 1: a check failed (a mesh, or a part the fabrication
+process cannot make): reported, nothing written; 2: bad input, nothing written."""
 
 
 def add_output_options(p: argparse.ArgumentParser) -> None:
@@ -136,30 +139,50 @@ def _note(message: str) -> None:
 
 
 def build_and_write(spec, args: argparse.Namespace, extra_files=()) -> int:
-    """Plan ``spec``, write its files, print the summary (or JSON); the exit code."""
-    from ..export.bundle import write_plan
+    """Plan ``spec``, check it, write its files, print the summary (or JSON); the exit code.
+
+    Every option and the output folder are checked before the plan; a plan with a
+    failed check (a mesh, or a part the process cannot make) is reported and
+    nothing is written (exit 1).
+    """
+    from ..export.bundle import prepare_folder, write_plan
     from ..plan import plan_train
+    from ..report import report_data
 
     options = _options(args, extra_files)
     folder = Path(args.out) if args.out else Path("output") / spec.name
+    prepare_folder(folder, args.force)
     plan = plan_train(spec, tolerance=min(options.dxf_tolerance, 1e-3), load=load_from_args(args))
+    failures = failed_checks(plan)
+    if failures:
+        report = report_data(plan, {})
+        if args.json:
+            print_json(report)
+        else:
+            print(summary(report, folder, {}, written=False))
+        print(f"gearcad {args.command}: {len(failures)} check(s) failed; nothing was written", file=sys.stderr)
+        return 1
     files = write_plan(plan, folder, options, force=args.force, progress=_note)
     import json
 
     report = json.loads((folder / "report.json").read_text(encoding="utf-8"))
-    failed = any(f["severity"] == "failure" for m in report["meshes"] for f in m["findings"]) or \
-        any(f["severity"] == "failure" for f in report["findings"])
     if args.json:
         print_json(report)
     else:
         print(summary(report, folder, files))
     for warning in report.get("warnings", []):
         print(f"gearcad: note: {warning}", file=sys.stderr)
-    return 1 if failed else 0
+    return 0
 
 
-def summary(report: dict, folder: Path, files: dict) -> str:
-    """A short account of what was built and where."""
+def failed_checks(plan) -> list:
+    """The findings of ``plan`` whose severity is ``failure`` (meshes first, then the parts)."""
+    found = [f for m in plan.meshes for f in m.analysis.findings + m.findings]
+    return [f for f in found + list(plan.findings) if f.severity == "failure"]
+
+
+def summary(report: dict, folder: Path, files: dict, written: bool = True) -> str:
+    """A short account of what was built and where (or, ``written`` False, why nothing was)."""
     r = report["ratio"]
     lines = [f"{report['title'] or report['name']}: ratio {r['numerator']}/{r['denominator']} = {r['value']:.10g}"]
     if r["relative_error"] is not None:
@@ -180,9 +203,13 @@ def summary(report: dict, folder: Path, files: dict) -> str:
             lines.append(f"  {f['severity']}: {f['message']}")
     lay = report["layout"]
     count = sum(len(v) for v in files.values())
-    lines.append(f"  plate {lay['width']:.1f} x {lay['height']:.1f} mm; {count} files in {folder}/ (see report.md)")
-    lines.append("Caution: guard pinch points; strength figures are estimates for light duty; never laser-cut PVC or vinyl. "
-                 "See report.md.")
+    if written:
+        lines.append(f"  plate {lay['width']:.1f} x {lay['height']:.1f} mm; {count} files in {folder}/ (see report.md)")
+    else:
+        lines.append(f"  plate {lay['width']:.1f} x {lay['height']:.1f} mm; nothing written to {folder}/: "
+                     "a check failed (see above)")
+    lines.append("Caution: guard pinch points; strength figures are estimates for light duty; never laser-cut PVC or vinyl."
+                 + (" See report.md." if written else ""))
     return "\n".join(lines)
 
 

@@ -1,8 +1,12 @@
-"""Write every file of a plan into an output folder, each under a temporary name first.
+"""Write every file of a plan into an output folder, built whole in a staging folder first.
 
 The folder is gearcad's when it holds the marker file ``.gearcad-output`` (which
 lists the files of the last build, so a rebuild removes what it no longer makes);
-a non-empty folder without it is refused unless ``force``.
+a non-empty folder without it is refused unless ``force``.  Every file is
+written into a hidden sibling folder that replaces the output folder only when
+the last file is written (:mod:`gearcad.export.staging`): a failure or an
+interrupt leaves the previous folder as it was, and two builds of one folder
+at the same time are kept apart by a lock (the later one is refused).
 """
 
 from __future__ import annotations
@@ -13,13 +17,13 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Callable
 
-from ..errors import ExportError, InputError
+from ..errors import InputError
 from ..jsonable import jsonable
 from .atomic import atomic_write
+from .staging import MARKER, check_folder, owned_files, staged_folder
 
 __all__ = ["BuildOptions", "write_plan", "prepare_folder", "parts_csv", "MARKER", "FORMATS"]
 
-MARKER = ".gearcad-output"
 FORMATS = ("dxf", "svg", "step", "stl")
 
 
@@ -43,33 +47,43 @@ class BuildOptions:
 
 
 def prepare_folder(folder: Path, force: bool) -> list[str]:
-    """Make ``folder`` ready; return the files the last build listed (to remove if not rewritten)."""
-    if folder.exists() and not folder.is_dir():
-        raise ExportError(f"output folder {str(folder)!r} is a file; choose a folder with --out")
-    marker = folder / MARKER
-    if folder.is_dir() and any(folder.iterdir()) and not marker.exists() and not force:
-        raise ExportError(f"output folder {str(folder)!r} is not empty and was not made by gearcad; "
-                          "choose another with --out or pass --force")
-    try:
-        folder.mkdir(parents=True, exist_ok=True)
-    except OSError as exc:
-        raise ExportError(f"cannot create output folder {str(folder)!r}: {exc.strerror or exc}") from None
-    if marker.exists():
-        try:
-            return [line for line in marker.read_text(encoding="utf-8").splitlines() if line and "/" not in line]
-        except OSError:
-            return []
-    # Claim the folder before the first file, so that a build cut short can be rebuilt in place.
-    atomic_write(marker, lambda tmp: tmp.write_text("", encoding="utf-8"))
-    return []
+    """Check that ``folder`` may be written (nothing is created); the files the last build listed.
+
+    Raises
+    ------
+    ExportError
+        The folder is a file, or a non-empty folder gearcad did not make (without ``force``).
+    """
+    folder = Path(folder)
+    check_folder(folder, force)
+    return owned_files(folder) if (folder / MARKER).exists() else []
 
 
 def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(), force: bool = False,
                progress: Callable[[str], None] | None = None) -> dict[str, dict[str, str]]:
-    """Write the plan's files; returns ``{part: {kind: relative path}}`` (also the report's ``files``)."""
+    """Write the plan's files; returns ``{part: {kind: relative path}}`` (also the report's ``files``).
+
+    Every file goes into a staging folder that replaces ``folder`` whole at the end
+    (see :func:`gearcad.export.staging.staged_folder`); on any error ``folder`` is
+    left as it was.
+    """
+    note = progress or (lambda _msg: None)
+    with staged_folder(folder, force) as stage:
+        files: dict[str, dict[str, str]] = {}
+
+        def put(part: str, kind: str, name: str) -> Path:
+            files.setdefault(part, {})[kind] = name
+            return stage.file(name)
+
+        _write_all(plan, options, put, files, note)
+    return files
+
+
+def _write_all(plan, options: BuildOptions, put, files: dict[str, dict[str, str]], note) -> None:
+    """Write every file of ``plan`` to the paths ``put(part, kind, name)`` gives (which lists them in ``files``)."""
     from ..drawings import part_drawing, plate_scene
     from ..report import report_data, report_markdown
-    from ..sheets import plan_sheets, sheet_drawing, sheet_name, sheets_summary, flat_parts
+    from ..sheets import flat_parts, plan_sheets, sheet_drawing, sheet_name, sheets_summary
     from .dxf import DXF_VERSIONS, write_dxf
     from .svg import write_svg
 
@@ -77,16 +91,6 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
         raise InputError(f"--dxf-mode splines needs DXF R2000 or later; {options.dxf_version} has no SPLINE entity")
     cut_files = {"dxf", "svg"} & set(options.formats)
     groups = plan_sheets(plan, options.sheet_size) if options.sheets and cut_files else ()
-    folder = Path(folder)
-    old = prepare_folder(folder, force)
-    note = progress or (lambda _msg: None)
-    files: dict[str, dict[str, str]] = {}
-    written: list[str] = []
-
-    def put(part: str, kind: str, name: str) -> Path:
-        files.setdefault(part, {})[kind] = name
-        written.append(name)
-        return folder / name
 
     warnings: list[str] = []
     parts = {fp.name: fp for fp in flat_parts(plan)}
@@ -130,7 +134,7 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
                      "sheet and is on no cut sheet (give a larger one with --sheet WxH)"
                      for name in group.nesting.left_out]
     if "step" in options.formats or "stl" in options.formats:
-        _write_solids(plan, folder, options, put, note)
+        _write_solids(plan, options, put, note)
     if options.preview:
         from .preview import write_preview
 
@@ -148,10 +152,6 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
     atomic_write(put("report", "json", "report.json"),
                  lambda tmp: tmp.write_text(json.dumps(jsonable(data), indent=2, ensure_ascii=False) + "\n", encoding="utf-8"))
     atomic_write(put("report", "md", "report.md"), lambda tmp: tmp.write_text(report_markdown(data), encoding="utf-8"))
-    for stale in set(old) - set(written):
-        (folder / stale).unlink(missing_ok=True)
-    atomic_write(folder / MARKER, lambda tmp: tmp.write_text("\n".join(sorted(written)) + "\n", encoding="utf-8"))
-    return files
 
 
 def parts_csv(parts: list[dict]) -> str:
@@ -205,24 +205,51 @@ def _gear_build(plan, g, thickness: float):
                          gap=gap, gap_diameter=g.gear.root_diameter, twist_holes=_is_ring(g))
 
 
-def _write_solids(plan, folder: Path, options: BuildOptions, put, note) -> None:
+def _shape_key(part, hub=None, hub_length: float = 0.0) -> str:
+    """A digest of a flat part's loops and round holes (and its hub): equal keys, equal solids."""
+    import hashlib
+
+    import numpy as np
+
+    digest = hashlib.sha256()
+    for piece in (part, hub):
+        if piece is None:
+            continue
+        for loop in (piece.outer, *piece.holes):
+            digest.update(np.ascontiguousarray(loop.points(), dtype=float).tobytes())
+        digest.update(repr(tuple(piece.circles)).encode())
+    digest.update(repr(hub_length).encode())
+    return digest.hexdigest()
+
+
+def _write_solids(plan, options: BuildOptions, put, note) -> None:
+    """Per-part STEP and STL files and the assembly; a solid repeated in the plan (the planets of a set)
+    is built once and written once in the assembly, placed once per part."""
     from .step import AssemblyItem, build_solid, kernel_quiet, with_hub, write_step, write_stl
 
     thickness = plan.spec.thickness
     items = []
+    built_by_key: dict[str, object] = {}
+    part_of_key: dict[str, str] = {}
     with kernel_quiet():
         for g in plan.gears:
-            note(f"solid {g.name}")
-            built = _gear_build(plan, g, thickness)
-            if g.hub is not None:
-                built = with_hub(built, g.hub, thickness, g.hub_length, plan.tolerance)
-            solid = built.solid
+            key = _shape_key(g.part, g.hub, g.hub_length)
+            if hasattr(g.gear, "hand"):  # a helical gear's solid also depends on its hand, helix and halves
+                key += repr((g.gear.hand, g.gear.helix_angle, _helix_style(plan, g)))
+            solid = built_by_key.get(key)
+            if solid is None:
+                note(f"solid {g.name}")
+                built = _gear_build(plan, g, thickness)
+                if g.hub is not None:
+                    built = with_hub(built, g.hub, thickness, g.hub_length, plan.tolerance)
+                solid = built_by_key[key] = built.solid
+                part_of_key[key] = g.name
             if "step" in options.formats:
                 write_step(solid, put(g.name, "step", f"{g.name}.step"), names=[g.name])
             if "stl" in options.formats:
                 write_stl(solid, put(g.name, "stl", f"{g.name}.stl"), options.stl_tolerance, options.stl_angle)
             shaft = plan.shafts[g.shaft]
-            items.append(AssemblyItem(g.name, solid, shaft.x, shaft.y, g.z, math.degrees(g.rotation)))
+            items.append(AssemblyItem(g.name, solid, shaft.x, shaft.y, g.z, math.degrees(g.rotation), part_of_key[key]))
         for p in plan.plates:
             note(f"solid {p.name}")
             solid = build_solid(p.part, thickness, plan.tolerance).solid

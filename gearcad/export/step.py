@@ -31,6 +31,7 @@ import numpy as np
 
 from ..errors import ExportError, GeometryError, InputError
 from .atomic import atomic_path
+from .step_compact import share_geometry
 
 if TYPE_CHECKING:
     from OCP.Geom import Geom_BSplineCurve
@@ -56,6 +57,7 @@ __all__ = [
     "HELICAL_VOLUME_TOLERANCE",
     "fuse_placed",
     "tube_solid",
+    "assembly_document",
 ]
 
 VOLUME_TOLERANCE = 1e-3  # relative: the solid's volume must match area x thickness this closely
@@ -432,6 +434,9 @@ def _step_settings() -> None:
     Interface_Static.SetCVal_s("write.step.schema", "AP214IS")
     Interface_Static.SetCVal_s("write.step.unit", "MM")
     Interface_Static.SetCVal_s("xstep.cascade.unit", "MM")
+    # No trim curves (pcurves): every face is a plane, a cylinder or a linear extrusion, whose edges a
+    # reader rebuilds from the 3D curves; the pcurves more than doubled the file.
+    Interface_Static.SetIVal_s("write.surfacecurve.mode", 0)
 
 
 def _set_header(writer: Any, file_name: str) -> None:
@@ -456,8 +461,8 @@ def _write_caf(doc: Any, path: str | os.PathLike[str]) -> Path:
 
     target = Path(path)
     with atomic_path(target) as tmp, kernel_quiet():
-        _step_settings()
         writer = STEPCAFControl_Writer()
+        _step_settings()  # after the writer: making the first one sets the translator's defaults
         writer.SetNameMode(True)
         writer.SetColorMode(False)
         writer.SetLayerMode(False)
@@ -466,6 +471,7 @@ def _write_caf(doc: Any, path: str | os.PathLike[str]) -> Path:
         _set_header(writer, target.name)
         if writer.Write(str(tmp)) != IFSelect_ReturnStatus.IFSelect_RetDone:
             raise ExportError(f"cannot write {target}: the STEP writer failed")
+        tmp.write_text(share_geometry(tmp.read_text(encoding="latin-1")), encoding="latin-1")
     return target
 
 
@@ -517,7 +523,22 @@ def write_step(shapes: Any, path: str | os.PathLike[str], names: Sequence[str] |
 
 @dataclass(frozen=True)
 class AssemblyItem:
-    """One placed part of an assembly: name, solid, position (mm), turn about z (degrees)."""
+    """One placed part of an assembly: a solid turned about z, then moved.
+
+    Attributes
+    ----------
+    name : str
+        The instance's name (distinct in an assembly).
+    solid : OCP shape or cadquery object
+        The part's solid at its own origin.  Items that pass the very same shape
+        object share it: the file holds it once and places it once per item.
+    x, y, z : float
+        Where its origin goes, mm.
+    rotation_deg : float
+        Turn about the z axis, degrees, applied before the move.
+    part : str or None
+        The name of the shared part (the product); default the first item's name.
+    """
 
     name: str
     solid: Any
@@ -525,14 +546,73 @@ class AssemblyItem:
     y: float = 0.0
     z: float = 0.0
     rotation_deg: float = 0.0
+    part: str | None = None
+
+
+def _placement(item: AssemblyItem) -> Any:
+    """The kernel location of an item: turn about z, then move (mm, degrees)."""
+    from OCP.gp import gp_Ax1, gp_Dir, gp_Pnt, gp_Trsf, gp_Vec
+    from OCP.TopLoc import TopLoc_Location
+
+    turn, move = gp_Trsf(), gp_Trsf()
+    turn.SetRotation(gp_Ax1(gp_Pnt(0, 0, 0), gp_Dir(0, 0, 1)), math.radians(float(item.rotation_deg)))
+    move.SetTranslation(gp_Vec(float(item.x), float(item.y), float(item.z)))
+    return TopLoc_Location(move.Multiplied(turn))
+
+
+def assembly_document(items: Sequence[AssemblyItem | tuple], name: str = "assembly") -> Any:
+    """An XCAF document: one top assembly placing every item; shared solids held once.
+
+    Parameters
+    ----------
+    items : sequence of AssemblyItem or (name, solid, x, y, z, rotation_deg[, part])
+        The placements.  More kinds of part (shafts, pillars, spacers) join by
+        adding items; nothing else changes.
+    name : str
+        Name of the top assembly.
+
+    Returns
+    -------
+    OCP.TDocStd.TDocStd_Document
+
+    Raises
+    ------
+    InputError
+        No items, or repeated names.
+    """
+    from OCP.TCollection import TCollection_ExtendedString
+    from OCP.TDataStd import TDataStd_Name
+
+    parts = [it if isinstance(it, AssemblyItem) else AssemblyItem(*it) for it in items]
+    seen = [p.name for p in parts]
+    if not parts or len(set(seen)) != len(seen):
+        raise InputError(f"an assembly needs at least one part and distinct names, got {seen}")
+    doc, tool = _new_caf()
+    top = tool.NewShape()
+    TDataStd_Name.Set_s(top, TCollection_ExtendedString(str(name)))
+    prototypes: list[tuple[Any, Any]] = []  # (shape, label): one product per distinct solid
+    for p in parts:
+        shape = _shape(p.solid)
+        label = next((lab for proto, lab in prototypes if proto.IsSame(shape)), None)
+        if label is None:
+            label = tool.AddShape(shape, False)
+            TDataStd_Name.Set_s(label, TCollection_ExtendedString(str(p.part or p.name)))
+            prototypes.append((shape, label))
+        component = tool.AddComponent(top, label, _placement(p))
+        TDataStd_Name.Set_s(component, TCollection_ExtendedString(str(p.name)))
+    tool.UpdateAssemblies()
+    return doc
 
 
 def assembly_step(items: Sequence[AssemblyItem | tuple], path: str | os.PathLike[str], name: str = "assembly") -> Path:
     """Write an assembly of named, placed solids to a STEP AP214 file.
 
+    Solids shared by several items (the planets of a set, say) are written once
+    and placed once per item (see :func:`assembly_document`).
+
     Parameters
     ----------
-    items : sequence of AssemblyItem or (name, solid, x, y, z, rotation_deg)
+    items : sequence of AssemblyItem or (name, solid, x, y, z, rotation_deg[, part])
         Each solid is placed by a turn of ``rotation_deg`` degrees about the z
         axis, then moved by ``(x, y, z)`` mm.
     path : str or os.PathLike
@@ -551,19 +631,8 @@ def assembly_step(items: Sequence[AssemblyItem | tuple], path: str | os.PathLike
     ExportError
         The file could not be written.
     """
-    import cadquery as cq
-    from cadquery.occ_impl.assembly import toCAF
-
-    parts = [it if isinstance(it, AssemblyItem) else AssemblyItem(*it) for it in items]
-    seen = [p.name for p in parts]
-    if not parts or len(set(seen)) != len(seen):
-        raise InputError(f"an assembly needs at least one part and distinct names, got {seen}")
-    assy = cq.Assembly(name=name)
-    for p in parts:
-        loc = cq.Location(cq.Vector(p.x, p.y, p.z), cq.Vector(0, 0, 1), float(p.rotation_deg))
-        assy.add(cq.Shape.cast(_shape(p.solid)), name=p.name, loc=loc)
     with kernel_quiet():
-        _, doc = toCAF(assy, False)
+        doc = assembly_document(items, name)
     return _write_caf(doc, path)
 
 
