@@ -36,7 +36,9 @@ from ..validate import as_int
 from .candidates import FLOAT_MARGIN, ScanCandidates, SortedCandidates
 from .limits import MAX_STAGES, Limits, assign_stages
 from .products import Factorizer, multiset_count, smooth_mask
-from .target import Target
+from .reach import largest_stage_ratio
+from .split import Splitter
+from .target import Target, significant
 from .train import Train, exact_relative_error, make_train, output_direction
 
 __all__ = ["solve_compound", "stage_ratio_range", "check_stages", "needs_idler", "rank_key"]
@@ -105,6 +107,8 @@ class _Search:
         self.idler = needs_idler(self.k, self.limits)
         self.idler_floor = min(self.limits.teeth) if self.idler else 0
         self.smallest = min(self.limits.teeth)
+        largest = largest_stage_ratio(self.limits)
+        self.splitter = None if largest is None else Splitter(self.k, self.limits, self.shelf, self.idler, largest)
 
     # -- one ratio ---------------------------------------------------------
     def _idler_for(self, used: Counter) -> int | None:
@@ -116,26 +120,9 @@ class _Search:
         return self.shelf is None or all(self.shelf[z] >= n for z, n in used.items())
 
     def _best_for_pair(self, p: int, q: int, bound: float) -> tuple[int, tuple, int | None] | None:
-        drivers = self.factorizer.by_sum(p, self.k)
-        driven = self.factorizer.by_sum(q, self.k) if drivers else []
-        best = None
-        for sum_p, d in drivers:
-            if not driven or sum_p + driven[0][0] + self.idler_floor > bound:
-                break
-            for sum_q, n in driven:
-                if sum_p + sum_q + self.idler_floor > bound:
-                    break
-                used = Counter(d) + Counter(n)
-                if not self._fits_shelf(used):
-                    continue
-                stages = assign_stages(d, n, self.limits)
-                idler = self._idler_for(used) if self.idler else None
-                if stages is None or (self.idler and idler is None):
-                    continue
-                total = sum_p + sum_q + (idler or 0)
-                if best is None or (total, stages) < (best[0], best[1]):
-                    best, bound = (total, stages, idler), total
-        return best
+        if self.splitter is None:
+            return None
+        return self.splitter.best_for(p, q, bound)
 
     def _best_for_ratio(self, ps: np.ndarray, qs: np.ndarray) -> Train | None:
         k, a = self.k, self.smallest
@@ -313,6 +300,8 @@ def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, 
     span = stage_ratio_range(limits, k)
     if span is None:
         return []
+    if not span[0] <= target.approx <= span[1]:
+        return _beyond_reach(target, k, limits, count, span, progress, method)
     search = _Search(target, k, limits, count, progress)
     ratio_range = (float(span[0]), float(span[1]))
     teeth = limits.teeth
@@ -326,3 +315,18 @@ def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, 
         start_eps = reached
     search.run_sorted(SortedCandidates(teeth, k, target.value, ratio_range, exact), start_eps)
     return search.results()
+
+
+def _beyond_reach(target: Target, k: int, limits: Limits, count: int, span: tuple[Fraction, Fraction],
+                  progress: Progress | None, method: str) -> list[Train]:
+    """The best trains for a target outside ``span``: those nearest the end of the span it lies beyond.
+
+    Every train lies within ``span``, so against a target beyond its upper end
+    the error ``1 - r / T`` falls as the ratio ``r`` rises, exactly as against
+    the end itself: searching for the end ranks the trains in the same order
+    (ties alike), and the search stays as small as any within reach.
+    """
+    end = span[1] if target.approx > span[1] else span[0]
+    proxy = Target(significant(end, 17), end, float(end), end, end)
+    found = solve_compound(proxy, k, limits, count, progress=progress, method=method)
+    return sorted((make_train(t.stages, target, t.idler, t.shifts) for t in found), key=lambda t: rank_key(t, target))

@@ -8,7 +8,6 @@ from typing import Callable, Sequence
 
 from ..errors import InputError
 from ..validate import as_int, finite
-from .coaxial import solve_coaxial
 from .compound import check_stages, solve_compound
 from .convergents import Approximant, best_approximations
 from .limits import MAX_STAGES, TEETH_BOUNDS, Limits
@@ -37,6 +36,8 @@ class RatioQuery:
 
 def _one(query: RatioQuery, k: int, progress: Progress | None) -> list[Train]:
     if query.coaxial:
+        from .coaxial import solve_coaxial
+
         return solve_coaxial(query.target, k, query.limits, query.count, query.shift_limit)
     return solve_compound(query.target, k, query.limits, query.count, progress=progress)
 
