@@ -87,7 +87,7 @@ def _design_planetary(args: argparse.Namespace) -> int:
     from ..planetary import solve_planetary
     from ..ratio.target import parse_target
     from ..trainfile import train_to_toml
-    from .ratio import _planetary_query
+    from ._solver import planetary_query_from_args
 
     if args.stages is not None or args.coaxial or args.inventory is not None:
         from ..errors import InputError
@@ -95,7 +95,7 @@ def _design_planetary(args: argparse.Namespace) -> int:
         raise InputError("--stages, --coaxial and --inventory do not apply to --kind planetary")
     if args.count is None:
         args.count = 10  # candidates, best first: the first whose meshes pass every check is built
-    results = solve_planetary(_planetary_query(args, parse_target(args.target)))
+    results = solve_planetary(planetary_query_from_args(args, parse_target(args.target)))
     if not results:
         from ..errors import InputError
 
@@ -151,7 +151,7 @@ def _design_summing(args: argparse.Namespace) -> int:
     from ..trainfile import train_to_toml
     from ..trainspec import SummingSpec
     from ._summing import on_the_shelf
-    from .ratio import _limits
+    from ._solver import limits_from_args
 
     if args.stages is not None or args.coaxial or args.stepped or args.fixed or args.input_member:
         raise InputError("--stages, --coaxial, --stepped, --fixed and --input do not apply to --kind summing")
@@ -161,7 +161,7 @@ def _design_summing(args: argparse.Namespace) -> int:
         raise InputError(f"--planets must be from 1 to 24, got {planets!r}")
     system, fab = load_tooth_system(args.system), load_fabrication(args.profile)
     target = parse_target(args.target)
-    limits = _limits(args)
+    limits = limits_from_args(args)
     room = axle_room(SummingSpec("mean", planets=planets), args.module, args.bore, args.system, args.profile) \
         if kind == "mean" else 0.0
     min_axis = math.ceil(2 * room / args.module - 1e-9)

@@ -8,7 +8,7 @@ import time
 from typing import Any, Sequence
 
 from ._format import print_json, table
-from ._solver import add_solver_options, exclusions
+from ._solver import add_solver_options, limits_from_args, planetary_query_from_args, stage_counts_from_args
 
 __all__ = ["add_parser", "run"]
 
@@ -141,38 +141,20 @@ class _LazyProgress:
             self.bar.stop()
 
 
-def _limits(args: argparse.Namespace) -> Any:
-    from ..ratio.inventory import read_inventory
-    from ..ratio.limits import DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH, make_limits
+def _query(args: argparse.Namespace, target: Any, limits: Any, counts: tuple[int, ...]) -> Any:
+    from ..ratio.solve import RatioQuery, count_value
 
-    inventory = read_inventory(args.inventory) if args.inventory is not None else None
-    low = args.min_teeth if args.min_teeth is not None else (min(inventory.teeth) if inventory else DEFAULT_MIN_TEETH)
-    high = args.max_teeth if args.max_teeth is not None else (max(inventory.teeth) if inventory else DEFAULT_MAX_TEETH)
-    return make_limits(low, high, args.max_stage_ratio, args.hunting, exclusions(args.exclude), inventory,
-                       args.direction)
-
-
-def _query(args: argparse.Namespace, target: Any, limits: Any) -> Any:
-    from ..errors import InputError
-    from ..ratio.compound import check_stages
-    from ..ratio.solve import DEFAULT_STAGE_COUNTS, RatioQuery, count_value
-
-    if args.shift_limit is not None and not args.coaxial:
-        raise InputError("--shift-limit works only with --coaxial")
-    if args.stages is not None:
-        counts: tuple[int, ...] = (check_stages(args.stages),)
-    else:
-        counts = (2,) if args.coaxial else DEFAULT_STAGE_COUNTS
     default_count = 5 if args.stages is not None or args.tolerance is not None else 1
     count = count_value(args.count if args.count is not None else default_count)
     return RatioQuery(target, counts, limits, count, args.coaxial, args.shift_limit)
 
 
-def _train_json(train: Any) -> dict[str, Any]:
+def _train_json(train: Any, tolerance: float | None = None) -> dict[str, Any]:
+    within = tolerance is None or abs(train.relative_error) <= tolerance
     out = {"numerator": train.numerator, "denominator": train.denominator, "ratio": train.ratio,
            "relative_error": train.relative_error, "direction": train.direction,
            "stages": [{"driver": d, "driven": n} for d, n in train.stages], "idler": train.idler,
-           "total_teeth": train.total_teeth}
+           "total_teeth": train.total_teeth, "within_tolerance": within}
     if train.shifts is not None:
         out["shifts"] = [{"driver": a, "driven": b} for a, b in train.shifts]
     return out
@@ -221,13 +203,14 @@ def _print_fractions(args: argparse.Namespace, target: Any, limits: Any) -> int:
     return 0
 
 
-def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any]) -> int:
+def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any], reach: Any) -> int:
     from ..ratio.solve import binding_limits
 
     binding = binding_limits(query, args.tolerance) if trains else []
     if args.json:
         print_json({"target": {"expression": query.target.expression, "value": query.target.value}, "results": [],
-                    "best": _train_json(trains[0]) if trains else None, "binding": binding})
+                    "tolerance": args.tolerance, "reach": reach.as_json(),
+                    "best": _train_json(trains[0], args.tolerance) if trains else None, "binding": binding})
         return 1
     print(_heading(query.target, query.limits))
     if not trains:
@@ -245,8 +228,8 @@ def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any]) ->
 
 def run(args: argparse.Namespace) -> int:
     """Run ``gearcad ratio``; returns the exit code."""
-    from ..ratio.solve import solve_ratio, tolerance_value, within_tolerance
     from ..ratio.target import parse_target
+    from ..ratio.tolerance import tolerance_value
 
     if args.kind == "planetary":
         _refuse(args, _COMPOUND_ONLY + (("differential", "--differential"), ("separate_axes", "--separate-axes")), "planetary")
@@ -256,47 +239,59 @@ def run(args: argparse.Namespace) -> int:
 
         _refuse(args, (("stages", "--stages"), ("coaxial", "--coaxial"), ("fractions", "--fractions"),
                        ("fixed", "--fixed"), ("input_member", "--input"), ("stepped", "--stepped")), "summing")
-        return run_summing(args, _limits(args))
+        return run_summing(args, limits_from_args(args))
     _refuse(args, _PLANETARY_ONLY + (("differential", "--differential"), ("separate_axes", "--separate-axes")), "compound")
+    from ..ratio.reach import reach_note, reach_of
+
     target = parse_target(args.target)
-    limits = _limits(args)
-    if args.tolerance is not None:
-        tolerance_value(args.tolerance)
+    limits = limits_from_args(args)
+    tolerance = tolerance_value(args.tolerance) if args.tolerance is not None else None
+    counts = stage_counts_from_args(args)
+    reach = reach_of(limits, counts)
+    reachable = tuple(k for k in counts if reach_of(limits, (k,)).holds(target.approx))
     if args.fractions:
         return _print_fractions(args, target, limits)
-    query = _query(args, target, limits)
+    if not reachable:  # said at once: no search can reach it
+        note = reach_note(target.expression, target.value, limits, counts, coaxial=args.coaxial)
+        if args.json:
+            print_json({"target": {"expression": target.expression, "value": target.value}, "results": [],
+                        "tolerance": tolerance, "reach": reach.as_json(), "unreachable": note})
+        else:
+            print(note)
+        return 1
+    from ..ratio.solve import solve_ratio, within_tolerance
+
+    query = _query(args, target, limits, reachable)
     progress = _LazyProgress(enabled=not args.json and sys.stderr.isatty())
     try:
         trains = solve_ratio(query, progress)
     finally:
         progress.close()
-    shown = within_tolerance(trains, args.tolerance) if args.tolerance is not None else trains
+    shown = within_tolerance(trains, tolerance) if tolerance is not None else trains
     if not shown:
-        return _report_miss(args, query, trains)
+        return _report_miss(args, query, trains, reach)
+    left_out = [k for k in counts if k not in reachable]
     if args.json:
-        print_json({"target": {"expression": target.expression, "value": target.value},
-                    "results": [_train_json(t) for t in shown]})
+        out = {"target": {"expression": target.expression, "value": target.value},
+               "results": [_train_json(t, tolerance) for t in shown], "tolerance": tolerance, "reach": reach.as_json()}
+        if left_out:
+            out["stage_counts_beyond_reach"] = left_out
+        print_json(out)
         return 0
     print(_heading(target, limits))
+    if left_out:
+        print(f"left out: {_counts_text(left_out)} cannot reach {target.expression} "
+              f"(they reach {reach_of(limits, (max(left_out),)).describe()})")
     print(table(_rows(shown), _HEADER))
     return 0
 
 
+def _counts_text(counts: Sequence[int]) -> str:
+    words = " and ".join(str(k) for k in counts)
+    return f"{words} stage{'s' if counts != [1] else ''}"
+
+
 # --- planetary sets -----------------------------------------------------------------------------------------
-
-def _planetary_query(args: argparse.Namespace, target: Any) -> Any:
-    from ..planetary import NEIGHBOUR_MARGIN, make_arrangement, make_query
-    from ..profiles import load_tooth_system
-    from ..ratio.solve import count_value
-
-    system = load_tooth_system()
-    default_count = 5 if args.tolerance is not None else 1
-    count = count_value(args.count if args.count is not None else default_count)
-    margin = args.neighbour_margin if args.neighbour_margin is not None else NEIGHBOUR_MARGIN
-    return make_query(target, _limits(args), make_arrangement(args.fixed or "ring", args.input_member),
-                      args.planets, args.stepped, args.max_ring_teeth, args.shift_limit, margin, count,
-                      system.pressure_angle, system.addendum)
-
 
 def _planetary_json(result: Any) -> dict[str, Any]:
     import math
@@ -356,7 +351,7 @@ def _run_planetary(args: argparse.Namespace) -> int:
     target = parse_target(args.target)
     if args.tolerance is not None:
         tolerance_value(args.tolerance)
-    query = _planetary_query(args, target)
+    query = planetary_query_from_args(args, target)
     results = solve_planetary(query)
     shown = within_tolerance(results, args.tolerance) if args.tolerance is not None else results
     head = {"expression": target.expression, "value": target.value}

@@ -27,7 +27,7 @@ import math
 from collections import Counter
 from dataclasses import dataclass, field
 from fractions import Fraction
-from typing import Callable
+from typing import Callable, Iterator
 
 import numpy as np
 
@@ -46,6 +46,8 @@ __all__ = ["solve_compound", "stage_ratio_range", "check_stages", "needs_idler",
 #: Up to this many multisets of k tooth counts the sorted product set is built.
 SORTED_LIMIT = 3_000_000
 _SCAN_BUDGET = 200_000
+#: Float errors closer than this are ranked together exactly (float error of an error is ~1e-15).
+_CLUSTER = 1e-12
 Progress = Callable[[float], None]
 
 
@@ -183,8 +185,14 @@ class _Search:
         return (a, b)
 
     # -- one window --------------------------------------------------------
-    def _groups(self, p: np.ndarray, q: np.ndarray, eps: float) -> list[tuple[Fraction, int, int, np.ndarray]]:
-        """Unprocessed ratio groups of the window with float error <= eps, in exact order."""
+    def _groups(self, p: np.ndarray, q: np.ndarray, eps: float) -> Iterator[tuple[Fraction, int, int, np.ndarray]]:
+        """Unprocessed ratio groups of the window with float error <= eps, in exact order (lazily).
+
+        Groups are taken in float order, in runs split where two neighbouring float errors differ
+        by more than ``_CLUSTER`` (far above their rounding, ~1e-15, so no exact error crosses a
+        split); each run is ranked exactly before it is handed out, so only the groups the caller
+        consumes pay for rational arithmetic.
+        """
         g = np.gcd(p, q)
         keys, inverse = np.unique(np.stack([p // g, q // g], axis=1), axis=0, return_inverse=True)
         inverse = inverse.ravel()
@@ -193,15 +201,21 @@ class _Search:
         members = np.argsort(inverse, kind="stable")
         starts = np.searchsorted(inverse[members], np.arange(len(keys)))
         ends = np.append(starts[1:], len(members))
-        chosen = [i for i in np.argsort(float_err, kind="stable").tolist()
-                  if float_err[i] <= eps + FLOAT_MARGIN and (int(keys[i, 0]), int(keys[i, 1])) not in self.done_ratios]
-        groups = []
-        for i in chosen:
-            num, den = int(keys[i, 0]), int(keys[i, 1])
-            error = abs(exact_relative_error(num, den, self.target))
-            groups.append((error, num, den, members[starts[i]:ends[i]]))
-        groups.sort(key=lambda item: (item[0], Fraction(item[1], item[2])))
-        return groups
+        order = np.argsort(float_err, kind="stable")
+        order = order[float_err[order] <= eps + FLOAT_MARGIN]
+        errors = float_err[order]
+        splits = (np.flatnonzero(np.diff(errors) > _CLUSTER) + 1).tolist() + [len(order)]
+        at = 0
+        for stop in splits:
+            batch = []
+            for i in order[at:stop].tolist():
+                num, den = int(keys[i, 0]), int(keys[i, 1])
+                if (num, den) in self.done_ratios:
+                    continue
+                batch.append((abs(exact_relative_error(num, den, self.target)), num, den, members[starts[i]:ends[i]]))
+            batch.sort(key=lambda item: (item[0], Fraction(item[1], item[2])))
+            yield from batch
+            at = stop
 
     def _enough(self, next_error: Fraction) -> bool:
         if len(self.found) < self.count:
