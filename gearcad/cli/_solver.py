@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-__all__ = ["add_solver_options", "exclusions", "limits_from_args", "stage_counts_from_args", "planetary_query_from_args"]
+__all__ = ["add_solver_options", "add_planetary_options", "exclusions", "limits_from_args", "stage_counts_from_args", "planetary_query_from_args"]
 
 
 def add_solver_options(parser: argparse.ArgumentParser) -> None:
@@ -87,3 +87,30 @@ def planetary_query_from_args(args: argparse.Namespace, target: Any, count: int 
     return make_query(target, limits_from_args(args), make_arrangement(args.fixed or "ring", args.input_member),
                       args.planets, args.stepped, args.max_ring_teeth, args.shift_limit, margin, count,
                       system.pressure_angle, system.addendum)
+
+
+#: The defaults of gearcad.planetary, written out so that building the parser imports neither sympy nor numpy
+#: (tests/test_ratio_planetary_cli.py checks that they agree).
+MEMBERS = ("sun", "ring", "carrier")
+DEFAULT_PLANETS, MAX_PLANETS, DEFAULT_MAX_RING_TEETH, NEIGHBOUR_MARGIN = 3, 24, 200, 0.5
+
+
+def add_planetary_options(parser: argparse.ArgumentParser) -> None:
+    """Planetary options: --kind, --planets, --fixed, --input, --stepped, --max-ring-teeth, --neighbour-margin."""
+    parser.add_argument("--kind", choices=("compound", "planetary", "summing"), default="compound",
+                        help="a compound train (default), a planetary set, or a summing train (two paths and a "
+                             "differential: reaches fractions with primes above the largest tooth count)")
+    parser.add_argument("--planets", type=int, metavar="N",
+                        help=f"planetary: number of planets, 1 to {MAX_PLANETS} (default {DEFAULT_PLANETS}); summing: the "
+                             "differential's planets (planet pairs of --differential mean)")
+    parser.add_argument("--fixed", choices=MEMBERS, help="planetary: the member held still (default ring)")
+    parser.add_argument("--input", choices=MEMBERS, dest="input_member",
+                        help="planetary: the input member, turned by the drive (default: the first of sun, ring, "
+                             "carrier not fixed); the output is the third")
+    parser.add_argument("--stepped", action="store_true",
+                        help="planetary: stepped planets (one gear meshes the sun, another the ring)")
+    parser.add_argument("--max-ring-teeth", type=int, metavar="Z",
+                        help=f"planetary: most teeth of the ring (default {DEFAULT_MAX_RING_TEETH})")
+    parser.add_argument("--neighbour-margin", type=float, metavar="M",
+                        help=f"planetary: least clearance between adjacent planets' tips, modules (default "
+                             f"{NEIGHBOUR_MARGIN:g}, common practice)")

@@ -8,7 +8,7 @@ import time
 from typing import Any, Sequence
 
 from ._format import print_json, table
-from ._solver import add_solver_options, limits_from_args, planetary_query_from_args, stage_counts_from_args
+from ._solver import add_planetary_options, add_solver_options, limits_from_args, planetary_query_from_args, stage_counts_from_args
 
 __all__ = ["add_parser", "run"]
 
@@ -65,7 +65,7 @@ def add_parser(subparsers: Any) -> argparse.ArgumentParser:
     parser.add_argument("--fractions", action="store_true",
                         help="list the continued-fraction convergents and semiconvergents of the target and mark "
                              "those that a train of at most N stages realises exactly")
-    _add_planetary_options(parser)
+    add_planetary_options(parser)
     from ._summing import add_summing_options
 
     add_summing_options(parser)
@@ -73,30 +73,7 @@ def add_parser(subparsers: Any) -> argparse.ArgumentParser:
     return parser
 
 
-#: The defaults of gearcad.planetary, written out so that building the parser imports neither sympy nor numpy
-#: (tests/test_ratio_planetary_cli.py checks that they agree).
-MEMBERS = ("sun", "ring", "carrier")
-DEFAULT_PLANETS, MAX_PLANETS, DEFAULT_MAX_RING_TEETH, NEIGHBOUR_MARGIN = 3, 24, 200, 0.5
-
-
-def _add_planetary_options(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("--kind", choices=("compound", "planetary", "summing"), default="compound",
-                        help="a compound train (default), a planetary set, or a summing train (two paths and a "
-                             "differential: reaches fractions with primes above the largest tooth count)")
-    parser.add_argument("--planets", type=int, metavar="N",
-                        help=f"planetary: number of planets, 1 to {MAX_PLANETS} (default {DEFAULT_PLANETS}); summing: the "
-                             "differential's planets (planet pairs of --differential mean)")
-    parser.add_argument("--fixed", choices=MEMBERS, help="planetary: the member held still (default ring)")
-    parser.add_argument("--input", choices=MEMBERS, dest="input_member",
-                        help="planetary: the input member, turned by the drive (default: the first of sun, ring, "
-                             "carrier not fixed); the output is the third")
-    parser.add_argument("--stepped", action="store_true",
-                        help="planetary: stepped planets (one gear meshes the sun, another the ring)")
-    parser.add_argument("--max-ring-teeth", type=int, metavar="Z",
-                        help=f"planetary: most teeth of the ring (default {DEFAULT_MAX_RING_TEETH})")
-    parser.add_argument("--neighbour-margin", type=float, metavar="M",
-                        help=f"planetary: least clearance between adjacent planets' tips, modules (default "
-                             f"{NEIGHBOUR_MARGIN:g}, common practice)")
+from ._solver import DEFAULT_MAX_RING_TEETH, DEFAULT_PLANETS, MAX_PLANETS, MEMBERS, NEIGHBOUR_MARGIN  # noqa: E402,F401
 
 
 _PLANETARY_ONLY = (("planets", "--planets"), ("fixed", "--fixed"), ("input_member", "--input"),
