@@ -161,8 +161,13 @@ class TrainSpec:
     solver: SolverSpec | None = field(default=None, compare=False)
     planetary: PlanetarySpec | None = None
     summing: SummingSpec | None = None
+    target_tolerance: float | None = None
 
     def __post_init__(self) -> None:
+        if self.target_tolerance is not None and not (math.isfinite(self.target_tolerance)
+                                                      and 0 < self.target_tolerance < 1):
+            raise InputError(f"target_tolerance must be greater than 0 and less than 1 (a relative error), "
+                             f"got {self.target_tolerance!r}")
         if not self.name or any(c in self.name for c in '/\\:*?"<>|') or self.name.startswith("."):
             raise InputError(f"train name must be a plain file name (no / \\ : * ? \" < > |), got {self.name!r}")
         if not (math.isfinite(self.thickness) and self.thickness > 0):

@@ -194,7 +194,12 @@ class _Search:
         consumes pay for rational arithmetic.
         """
         g = np.gcd(p, q)
-        keys, inverse = np.unique(np.stack([p // g, q // g], axis=1), axis=0, return_inverse=True)
+        num, den = p // g, q // g
+        if len(num) and max(int(num.max()), int(den.max())) < 2 ** 31:  # one int64 key per ratio: a fast 1-D unique
+            packed, inverse = np.unique((num << 32) | den, return_inverse=True)
+            keys = np.stack([packed >> 32, packed & 0xFFFFFFFF], axis=1)
+        else:
+            keys, inverse = np.unique(np.stack([num, den], axis=1), axis=0, return_inverse=True)
         inverse = inverse.ravel()
         t = self.target.value
         float_err = np.abs((keys[:, 0] - t * keys[:, 1]) / (t * keys[:, 1]))

@@ -13,11 +13,13 @@ asked, what the limits reach and what would reach it.
 from __future__ import annotations
 
 import math
+from bisect import bisect_right
+from math import gcd
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Sequence
 
-from .limits import MAX_STAGES, TEETH_BOUNDS, Limits, stage_allowed
+from .limits import MAX_STAGES, TEETH_BOUNDS, Limits
 
 __all__ = ["Reach", "largest_stage_ratio", "reach_of", "reach_note", "needed_stage_ratio"]
 
@@ -63,19 +65,23 @@ def _ratio_text(value: Fraction) -> str:
 def largest_stage_ratio(limits: Limits) -> Fraction | None:
     """The largest driver/driven of one allowed stage (None when no stage is allowed).
 
-    For each driven count, the largest driver obeying the rules; at most
-    ``len(teeth)^2`` tests, usually far fewer.
+    For each driven count, the largest driver within ``R`` times it (by
+    bisection), stepping down past drivers that share a factor with it when
+    hunting is asked; integer arithmetic only.
     """
     teeth = limits.teeth
     shelf = limits.shelf()
+    r = limits.max_stage_ratio
     best: Fraction | None = None
     for driven in teeth:
-        for driver in reversed(teeth):
-            if best is not None and Fraction(driver, driven) <= best:
+        top = bisect_right(teeth, driven * r.numerator // r.denominator) - 1
+        for index in range(top, -1, -1):
+            driver = teeth[index]
+            if best is not None and driver * best.denominator <= best.numerator * driven:
                 break
             if driver == driven and shelf is not None and shelf[driver] < 2:
                 continue
-            if stage_allowed(driver, driven, limits):
+            if not limits.hunting or gcd(driver, driven) == 1:
                 best = Fraction(driver, driven)
                 break
     return best

@@ -16,6 +16,7 @@ from __future__ import annotations
 from bisect import bisect_left, bisect_right
 from collections import Counter
 from fractions import Fraction
+from math import gcd
 from typing import Sequence
 
 from .limits import Limits, stage_allowed
@@ -44,7 +45,13 @@ class _Splitter:
         """Driven counts a driver ``d`` may mesh with (ratio and hunting), ascending."""
         found = self.partners.get(d)
         if found is None:
-            found = self.partners[d] = [n for n in self.teeth if stage_allowed(d, n, self.limits)]
+            r = self.limits.max_stage_ratio  # d / R <= n <= d R, in integers
+            first = bisect_left(self.teeth, -(-d * r.denominator // r.numerator))
+            last = bisect_right(self.teeth, d * r.numerator // r.denominator)
+            found = list(self.teeth[first:last])
+            if self.limits.hunting:
+                found = [n for n in found if gcd(n, d) == 1]
+            self.partners[d] = found
         return found
 
     def idler_for(self, used: Counter) -> int | None:

@@ -127,6 +127,13 @@ def design(target: str, *, kind: str = "compound", module: float, tolerance: flo
     if kind != "summing" and (differential is not None):
         raise InputError("--differential applies only to --kind summing")
     limits = _limits(min_teeth, max_teeth, max_stage_ratio, hunting, exclude, inventory, direction)
+    chosen = _choose(common, limits, kind, stages, coaxial, inventory, shift_limit, planets, fixed, input, stepped,
+                     max_ring_teeth, neighbour_margin, differential, candidates)
+    return replace(chosen, spec=replace(chosen.spec, target_tolerance=common.tolerance))
+
+
+def _choose(common, limits, kind, stages, coaxial, inventory, shift_limit, planets, fixed, input, stepped,
+            max_ring_teeth, neighbour_margin, differential, candidates) -> Design:
     if kind == "planetary":
         if stages is not None or coaxial or inventory is not None:
             raise InputError("--stages, --coaxial and --inventory do not apply to --kind planetary")
