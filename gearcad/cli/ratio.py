@@ -320,21 +320,35 @@ def _planetary_heading(query: Any) -> str:
             f"ratio = output turns per input turn, from the kinematic model of the set")
 
 
+#: Rows of a planetary table further off than both this and ten times the best's error are left out
+#: (when the best itself is further off, only the sets as good as the best are shown).
+FAR_OFF = 0.01
+
+
 def _run_planetary(args: argparse.Namespace) -> int:
     from ..planetary import solve_planetary
-    from ..ratio.solve import tolerance_value, within_tolerance
+    from ..ratio.solve import within_tolerance
     from ..ratio.target import parse_target
+    from ..ratio.tolerance import DESIGN_TOLERANCE, tolerance_value
+    from ..trains.choose import planetary_alternatives
 
     target = parse_target(args.target)
     if args.tolerance is not None:
         tolerance_value(args.tolerance)
     query = planetary_query_from_args(args, target)
     results = solve_planetary(query)
+    if results:  # no padding: rows far worse than the best say nothing
+        best = abs(results[0].relative_error)
+        cut = max(FAR_OFF, 10 * best) if best <= FAR_OFF else best
+        results = [r for r in results if abs(r.relative_error) <= cut]
     shown = within_tolerance(results, args.tolerance) if args.tolerance is not None else results
     head = {"expression": target.expression, "value": target.value}
+    wanted = args.tolerance if args.tolerance is not None else DESIGN_TOLERANCE
+    hint = planetary_alternatives(query, wanted) if not results or abs(results[0].relative_error) > wanted else ""
     if not shown:
         if args.json:
-            print_json({"target": head, "results": [], "best": _planetary_json(results[0]) if results else None})
+            print_json({"target": head, "results": [], "best": _planetary_json(results[0]) if results else None,
+                        "alternatives": hint})
             return 1
         print(_planetary_heading(query))
         if not results:
@@ -342,10 +356,17 @@ def _run_planetary(args: argparse.Namespace) -> int:
         else:
             print(f"no set within tolerance {args.tolerance:g}; the best found:")
             print(table(_planetary_rows(results[:1]), _PLANETARY_HEADER))
+        if hint:
+            print(hint)
         return 1
     if args.json:
-        print_json({"target": head, "results": [_planetary_json(r) for r in shown]})
+        out = {"target": head, "results": [_planetary_json(r) for r in shown]}
+        if hint:
+            out["alternatives"] = hint
+        print_json(out)
         return 0
     print(_planetary_heading(query))
     print(table(_planetary_rows(shown), _PLANETARY_HEADER))
+    if hint:
+        print(hint)
     return 0

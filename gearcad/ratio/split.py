@@ -37,6 +37,7 @@ class _Splitter:
         self.s = largest_ratio
         self.best: tuple[int, tuple, int | None] | None = None
         self.bound = 0.0
+        self.collect: list[tuple[int, tuple, int | None]] | None = None
         self.powers = [(largest_ratio.numerator ** j, largest_ratio.denominator ** j, self.low ** j, self.high ** j)
                        for j in range(k + 1)]
         self.partners: dict[int, list[int]] = {}
@@ -82,6 +83,10 @@ class _Splitter:
             return
         total = spent + (idler or 0)
         key = tuple(stages)
+        if self.collect is not None:
+            if total <= self.bound:
+                self.collect.append((total, key, idler))
+            return
         if total <= self.bound and (self.best is None or (total, key) < (self.best[0], self.best[1])):
             self.best = (total, key, idler)
             self.bound = total
@@ -121,6 +126,16 @@ class Splitter(_Splitter):
         if self.possible(p, q, self.k, self.low, 0):
             self.walk(p, q, self.k, [], 0)
         return self.best
+
+    def every_for(self, p: int, q: int, bound: float) -> list[tuple[int, tuple, int | None]]:
+        """Every train of ``k`` stages with products ``p``, ``q`` and at most ``bound`` teeth, fewest first."""
+        self.best, self.bound, self.collect = None, bound, []
+        try:
+            if self.possible(p, q, self.k, self.low, 0):
+                self.walk(p, q, self.k, [], 0)
+            return sorted(self.collect)
+        finally:
+            self.collect = None
 
 
 def best_split(p: int, q: int, k: int, limits: Limits, bound: float, *, shelf: Counter | None = None,

@@ -7,8 +7,10 @@ line.  For each kind of train it
 2. runs the exact solver of that kind (best ratio first),
 3. keeps only candidates whose |relative error| is within ``tolerance``,
 4. builds each candidate's train description and plans it, keeping the first
-   whose meshes pass every check (planetary and summing trains; a compound
-   train's best is built as it is, its shifts chosen against undercut),
+   whose meshes pass every check (planetary and summing trains); among compound
+   trains of the best error (the same ratio), the first, fewest teeth first,
+   whose meshes pass without a warning (no thin tips, no undercut left after
+   the least shift), else the fewest teeth,
 
 and raises :class:`gearcad.errors.ToleranceError` when no candidate is within
 the tolerance: the message names the best found and what would reach the
@@ -24,7 +26,7 @@ from typing import Any, Sequence
 from ..errors import GearcadError, InputError, ToleranceError
 from ..ratio.tolerance import DESIGN_TOLERANCE, tolerance_value
 
-__all__ = ["Design", "design", "KINDS", "DESIGN_TOLERANCE"]
+__all__ = ["Design", "design", "KINDS", "DESIGN_TOLERANCE", "planetary_alternatives"]
 
 #: The kinds of train :func:`design` builds.
 KINDS = ("compound", "planetary", "summing")
@@ -206,7 +208,102 @@ def _compound(common: _Common, limits: Any, stages: int | None, coaxial: bool, s
     base = TrainSpec(name=common.name, module=common.module, thickness=common.thickness, stages=(),
                      target=common.target, tooth_system=common.system, fabrication=common.profile, bore=common.bore,
                      solver=solver, title=f"Train for {common.target}")
-    return Design(spec_with_stages(base, best), "compound", best.relative_error, common.tolerance, best)
+    chosen, spec = _cleanest(base, _equal_error_trains(trains, limits, target, coaxial), query)
+    return Design(spec, "compound", chosen.relative_error, common.tolerance, chosen)
+
+
+#: Trains of the best ratio planned to find one whose meshes pass without a warning, and how many teeth
+#: more than the fewest they may have.
+ALTERNATIVES, EXTRA_TEETH = 6, 40
+
+
+def _equal_error_trains(trains: Sequence[Any], limits: Any, target: Any, coaxial: bool) -> list[Any]:
+    """The best train, then other trains of exactly its error (same ratio, any stage count searched), fewest teeth first."""
+    from fractions import Fraction
+
+    from ..ratio.alternatives import same_ratio_trains
+
+    best = trains[0]
+    if coaxial:
+        return [best]
+    error = abs(Fraction(best.numerator, best.denominator) / target.approx - 1)
+    equal = [t for t in trains if abs(Fraction(t.numerator, t.denominator) / target.approx - 1) == error]
+    found = []
+    for train in equal:
+        found += same_ratio_trains(train.numerator, train.denominator, len(train.stages), limits, target,
+                                   ALTERNATIVES, EXTRA_TEETH)
+    found.sort(key=lambda t: (t.total_teeth, len(t.stages), t.stages))
+    ordered = [best] + [t for t in found if t.stages != best.stages]
+    return ordered[:ALTERNATIVES]
+
+
+def _mesh_severities(spec: Any) -> set[str]:
+    """Severities of the findings of every mesh of a compound train (pairs alone: no layout, no parts)."""
+    from ..checks import analyse_pair
+    from ..pair import make_pair
+    from ..profiles import load_fabrication, load_tooth_system
+
+    system, fab = load_tooth_system(spec.tooth_system), load_fabrication(spec.fabrication)
+    found = set()
+    for stage in spec.stages:
+        module = stage.module or spec.module
+        gears = [stage.driver, stage.idler, stage.driven] if stage.idler is not None else [stage.driver, stage.driven]
+        for a, b in zip(gears, gears[1:]):
+            pair = make_pair(a.teeth, b.teeth, module, system, shifts=(a.shift, b.shift), backlash=fab.backlash)
+            found |= {f.severity for f in analyse_pair(pair).findings}
+    return found
+
+
+def _cleanest(base: Any, trains: Sequence[Any], query: Any) -> tuple[Any, Any]:
+    """Among trains of equal error: the first whose meshes pass with no warning, else no failure, else the first.
+
+    The alternatives of the best ratio come first (fewest teeth first); when none is clean, the search
+    is repeated with larger least tooth counts (12, 14, 17, 20, 24, 28 teeth) while its best keeps the
+    same error, since small pinions are what thin tips and undercut come from.
+    """
+    from dataclasses import replace as copy
+    from fractions import Fraction
+
+    from ..design import spec_with_stages
+    from ..ratio.solve import solve_ratio
+
+    def error(train: Any) -> Fraction:
+        return abs(Fraction(train.numerator, train.denominator) / query.target.approx - 1)
+
+    first_passing = None
+
+    def judge(train: Any) -> Any:
+        nonlocal first_passing
+        try:
+            spec = spec_with_stages(base, train)
+            severities = _mesh_severities(spec)
+        except GearcadError:
+            return None
+        if not severities & {"warning", "failure"}:
+            return train, spec
+        if "failure" not in severities and first_passing is None:
+            first_passing = (train, spec)
+        return None
+
+    for train in trains:
+        if (chosen := judge(train)) is not None:
+            return chosen
+    wanted, limits = error(trains[0]), query.limits
+    if limits.inventory is None and not query.coaxial:
+        for least in (12, 14, 17, 20, 24, 28):
+            if least <= limits.min_teeth or least > limits.max_teeth:
+                continue
+            try:
+                narrower = copy(limits, min_teeth=least)
+                narrower.teeth  # noqa: B018 (an empty range raises below)
+                found = solve_ratio(copy(query, limits=narrower, count=1)) if narrower.teeth else []
+            except GearcadError:
+                break
+            if not found or error(found[0]) != wanted:
+                break  # larger pinions only do worse from here
+            if (chosen := judge(found[0])) is not None:
+                return chosen
+    return first_passing or (trains[0], spec_with_stages(base, trains[0]))
 
 
 # --- planetary sets -----------------------------------------------------------------------------------------
@@ -252,7 +349,26 @@ def _set_text(result: Any) -> str:
     return f"sun {s.sun}, planet {planet}, ring {s.ring}, {s.planets} planets"
 
 
+def planetary_alternatives(query: Any, tolerance: float) -> str:
+    """One line: the nearby planetary searches (stepped planets, 2 or 3 planets) whose best meets ``tolerance``.
+
+    Empty when none does.
+    """
+    ways = _alternative_sets(query, tolerance)
+    if not ways:
+        return ""
+    return (f"these reach {query.target.expression} within {tolerance:g}: " + "; or ".join(ways))
+
+
 def _planetary_ways(query: Any, tolerance: float) -> str:
+    """What would reach the target: nearby planetary searches, else other kinds."""
+    ways = _alternative_sets(query, tolerance)
+    if ways:
+        return "would reach it: " + "; or ".join(ways)
+    return "would reach it: a compound train (--kind compound) or a summing train (--kind summing), or wider limits"
+
+
+def _alternative_sets(query: Any, tolerance: float) -> list[str]:
     """Which nearby planetary searches (stepped planets, fewer planets) would meet the tolerance."""
     from ..planetary import solve_planetary
 
@@ -274,9 +390,7 @@ def _planetary_ways(query: Any, tolerance: float) -> str:
             ways.append(f"{label} ({_set_text(found[0])}, error {found[0].relative_error:+.2e})")
             if len(ways) == 2:
                 break
-    if ways:
-        return "would reach it: " + "; or ".join(ways)
-    return "would reach it: a compound train (--kind compound) or a summing train (--kind summing), or wider limits"
+    return ways
 
 
 def _planetary_spec(common: _Common, result: Any, scale: int, shift_limit: float | None) -> Any:
