@@ -8,10 +8,10 @@ counts, ``Q`` that of its driven ones.  The search
    better than anything inside it),
 2. groups the pairs by their reduced ratio ``p / q`` and ranks the groups by
    their exact error (rational arithmetic against the target),
-3. for each group in that order, splits ``P`` and ``Q`` into tooth counts
-   (fewest teeth first, pruned by the AM-GM bound ``sum >= k P^(1/k)``) and
-   pairs drivers with driven gears under the per-stage limits, hunting,
-   exclusions and the inventory,
+3. for each group in that order, splits ``P`` and ``Q`` into stages by a
+   depth-first search (:mod:`gearcad.ratio.split`: each stage obeys the
+   per-stage limits, hunting, exclusions and the inventory; branches are cut
+   by the reach of the stages left and the AM-GM bound ``sum >= k P^(1/k)``),
 4. widens ``eps`` and repeats until ``count`` trains are found whose errors
    are all within a window that has been searched completely.
 
@@ -19,12 +19,14 @@ So the first result is the global optimum (least |relative error|, ties to
 fewer total teeth, then smaller ratio, then the lexicographically first
 stages); the tests check this against an exhaustive enumeration.
 Results are one train per distinct ratio: the one with the fewest teeth.
+A target beyond the reach of ``k`` stages is searched at the reach's end
+(:func:`_beyond_reach`: same order of results, bounded work); the reach is
+:mod:`gearcad.ratio.reach`'s.
 """
 
 from __future__ import annotations
 
 import math
-from collections import Counter
 from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Callable, Iterator
@@ -34,8 +36,8 @@ import numpy as np
 from ..errors import InputError
 from ..validate import as_int
 from .candidates import FLOAT_MARGIN, ScanCandidates, SortedCandidates
-from .limits import MAX_STAGES, Limits, assign_stages
-from .products import Factorizer, multiset_count, smooth_mask
+from .limits import MAX_STAGES, Limits
+from .products import multiset_count, smooth_mask
 from .reach import largest_stage_ratio
 from .split import Splitter
 from .target import Target, significant
@@ -104,7 +106,6 @@ class _Search:
     done_ratios: set = field(default_factory=set)
 
     def __post_init__(self) -> None:
-        self.factorizer = Factorizer(self.limits.teeth)
         self.shelf = self.limits.shelf()
         self.idler = needs_idler(self.k, self.limits)
         self.idler_floor = min(self.limits.teeth) if self.idler else 0
@@ -113,14 +114,6 @@ class _Search:
         self.splitter = None if largest is None else Splitter(self.k, self.limits, self.shelf, self.idler, largest)
 
     # -- one ratio ---------------------------------------------------------
-    def _idler_for(self, used: Counter) -> int | None:
-        if self.shelf is None:
-            return self.smallest
-        return next((z for z in sorted(self.shelf) if self.shelf[z] > used[z]), None)
-
-    def _fits_shelf(self, used: Counter) -> bool:
-        return self.shelf is None or all(self.shelf[z] >= n for z, n in used.items())
-
     def _best_for_pair(self, p: int, q: int, bound: float) -> tuple[int, tuple, int | None] | None:
         if self.splitter is None:
             return None
