@@ -13,6 +13,7 @@ never loads the CAD kernel):
   :func:`make_set`, :func:`check_set`, :func:`solve_planetary`, :func:`solve_summing`, :class:`RingGear`,
   :func:`make_internal_pair`, :func:`analyse_internal_pair`, :class:`SummingSpec`, :func:`summing_train_spec`
 - load ratings: :func:`load_material`, :func:`rate_pair`, :func:`lewis_form_factor`
+- design: :func:`design` (solve, choose within tolerance, return the train description), :class:`Design`
 - errors: :class:`GearcadError` and its subclasses
 
 Lengths are in mm and angles in radians inside the API; files and reports use mm and degrees.
@@ -23,7 +24,7 @@ from __future__ import annotations
 import importlib
 from typing import Any
 
-from .errors import ExportError, GearcadError, GeometryError, InputError, ProfileError
+from .errors import ExportError, GearcadError, GeometryError, InputError, ProfileError, ToleranceError
 
 __version__ = "0.1.0"
 
@@ -67,9 +68,12 @@ _LAZY = {
     "load_material": "gearcad.materials",
     "rate_pair": "gearcad.strength",
     "lewis_form_factor": "gearcad.strength",
+    "design": "gearcad.trains.choose",
+    "Design": "gearcad.trains.choose",
 }
 
-__all__ = ["GearcadError", "InputError", "ProfileError", "GeometryError", "ExportError", "__version__", *_LAZY]
+__all__ = ["GearcadError", "InputError", "ProfileError", "GeometryError", "ExportError", "ToleranceError",
+           "__version__", *_LAZY]
 
 
 def __getattr__(name: str) -> Any:

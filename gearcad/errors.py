@@ -14,6 +14,7 @@ __all__ = [
     "ProfileError",
     "GeometryError",
     "ExportError",
+    "ToleranceError",
 ]
 
 
@@ -41,3 +42,16 @@ class GeometryError(GearcadError, ValueError):
 
 class ExportError(GearcadError, OSError):
     """A file could not be written."""
+
+
+class ToleranceError(GearcadError, ValueError):
+    """Nothing the limits allow meets the tolerance asked for (or the target lies beyond their reach).
+
+    Not a fault of the input: the command line prints the message (the best
+    found and what would reach the target) and exits with code 1, building
+    nothing.  ``best_error`` is the best relative error found (None if none).
+    """
+
+    def __init__(self, message: str, best_error: float | None = None) -> None:
+        super().__init__(message)
+        self.best_error = best_error

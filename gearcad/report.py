@@ -39,6 +39,13 @@ def ratio_data(plan: Plan) -> dict[str, Any]:
     return data
 
 
+def _target_findings(plan: Plan) -> tuple:
+    from .trains.target_check import target_findings
+
+    return target_findings(spec.target, getattr(spec, "target_tolerance", None), plan.ratio) \
+        if (spec := plan.spec).target else ()
+
+
 def train_kind(plan: Plan) -> tuple[str, str]:
     """The train's kind and how its ratio comes about, in words."""
     spec = plan.spec
@@ -111,7 +118,7 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
                         "process": plan.fabrication.process, "kerf": plan.fabrication.kerf,
                         "backlash": plan.fabrication.backlash, "bore_clearance": plan.fabrication.bore_clearance},
         "findings": [{"check": f.check, "severity": f.severity, "message": f.message, "value": f.value, "limit": f.limit}
-                     for f in plan.findings],
+                     for f in plan.findings + _target_findings(plan)],
         "tolerance": plan.tolerance,
         **_shaft_thrusts(plan),
         "cautions": list(CAUTIONS) + ([plan.fabrication.note] if plan.fabrication.note else []),

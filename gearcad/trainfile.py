@@ -5,6 +5,7 @@ Example (every key is documented in README.md)::
     name = "moon-phase"
     title = "Moon-phase indicator"
     target = "12/(29.530588853*24)"   # optional: the ratio the stages should reach
+    target_tolerance = 1e-3           # optional: largest relative error of the stages against target (default 1e-3)
     module = 1.5                      # mm
     thickness = 3.0                   # face width, mm
     tooth_system = "iso53-a"
@@ -69,8 +70,8 @@ LIMITS: dict[str, tuple[float, float]] = {
 #: bigger gear grow past what a cutter takes).
 MAX_FILE_TEETH = 2000
 
-TOP_KEYS = {"name", "title", "target", "module", "thickness", "tooth_system", "pressure_angle", "fabrication",
-            "bore", "coaxial", "stage", "solve", "planetary", "summing", "join", "studs"}
+TOP_KEYS = {"name", "title", "target", "target_tolerance", "module", "thickness", "tooth_system", "pressure_angle",
+            "fabrication", "bore", "coaxial", "stage", "solve", "planetary", "summing", "join", "studs"}
 PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit", "helix", "hand",
                   "herringbone", "gap"}
 SUMMING_KEYS = {"differential", "sun", "planet", "planets", "ring", "module", "tube", "axis_distance", "shift_limit"}
@@ -397,11 +398,12 @@ def parse_train(text: str, filename: str = "train file") -> TrainSpec:
             pressure_angle=_number(data, "pressure_angle", ctx), fabrication=_text(data, "fabrication", ctx, "laser-3mm-acrylic"),
             bore=_number(data, "bore", ctx, default=3.0), coaxial=_flag(data, "coaxial", ctx), solver=_solver(data, ctx),
             planetary=_planetary(data, ctx), summing=_summing(data, ctx), join=_text(data, "join", ctx),
-            studs=_studs(data, ctx))
+            studs=_studs(data, ctx), target_tolerance=_number(data, "target_tolerance", ctx))
     except InputError as exc:
         if str(exc).startswith(filename):
             raise
-        key = next((k for k in ("thickness", "module", "bore", "join", "name") if k in str(exc).split(" must")[0]), "name")
+        key = next((k for k in ("target_tolerance", "thickness", "module", "bore", "join", "name")
+                    if k in str(exc).split(" must")[0]), "name")
         raise ctx.error(str(exc), key) from None
     _check_target(spec, ctx)
     return spec
@@ -449,6 +451,8 @@ def train_to_toml(spec: TrainSpec) -> str:
         lines.append(f"title = {_quoted(spec.title)}")
     if spec.target:
         lines.append(f"target = {_quoted(spec.target)}")
+    if spec.target_tolerance is not None:
+        lines.append(f"target_tolerance = {spec.target_tolerance!r}")
     lines += [f"module = {spec.module!r}", f"thickness = {spec.thickness!r}", f"tooth_system = {_quoted(spec.tooth_system)}"]
     if spec.pressure_angle is not None:
         lines.append(f"pressure_angle = {spec.pressure_angle!r}")

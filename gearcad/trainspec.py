@@ -212,10 +212,15 @@ class TrainSpec:
     summing: SummingSpec | None = None
     join: str | None = None  # how compound pairs are joined: fused, pinned or flat (None: the process's default)
     studs: tuple[str, ...] = ()  # shafts to hold as fixed studs in one plate, their gears on a pipe (by shaft name)
+    target_tolerance: float | None = None
 
     def __post_init__(self) -> None:
         if self.join is not None and self.join not in JOINS:
             raise InputError(f"join must be one of {', '.join(JOINS)}, got {self.join!r}")
+        if self.target_tolerance is not None and not (math.isfinite(self.target_tolerance)
+                                                      and 0 < self.target_tolerance < 1):
+            raise InputError(f"target_tolerance must be greater than 0 and less than 1 (a relative error), "
+                             f"got {self.target_tolerance!r}")
         from .inputfiles import plain_file_name
 
         plain_file_name(self.name, "train name")

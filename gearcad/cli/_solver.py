@@ -3,8 +3,9 @@
 from __future__ import annotations
 
 import argparse
+from typing import Any
 
-__all__ = ["add_solver_options", "exclusions"]
+__all__ = ["add_solver_options", "add_planetary_options", "exclusions", "limits_from_args", "stage_counts_from_args", "planetary_query_from_args"]
 
 
 def add_solver_options(parser: argparse.ArgumentParser) -> None:
@@ -40,3 +41,76 @@ def add_solver_options(parser: argparse.ArgumentParser) -> None:
 def exclusions(text: str) -> list[str]:
     """The tooth counts of ``--exclude`` (commas or spaces)."""
     return [part for part in text.replace(" ", ",").split(",") if part]
+
+
+def limits_from_args(args: argparse.Namespace) -> Any:
+    """The search limits of the options (tooth range, stage ratio, hunting, exclusions, inventory, direction)."""
+    from ..ratio.inventory import read_inventory
+    from ..ratio.limits import DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH, make_limits
+
+    inventory = read_inventory(args.inventory) if args.inventory is not None else None
+    low = args.min_teeth if args.min_teeth is not None else (min(inventory.teeth) if inventory else DEFAULT_MIN_TEETH)
+    high = args.max_teeth if args.max_teeth is not None else (max(inventory.teeth) if inventory else DEFAULT_MAX_TEETH)
+    return make_limits(low, high, args.max_stage_ratio, args.hunting, exclusions(args.exclude), inventory,
+                       args.direction)
+
+
+def stage_counts_from_args(args: argparse.Namespace) -> tuple[int, ...]:
+    """The stage counts to search (validated without loading the solver)."""
+    from ..errors import InputError
+    from ..ratio.limits import MAX_STAGES
+    from ..validate import as_int
+
+    if args.shift_limit is not None and not args.coaxial:
+        raise InputError("--shift-limit works only with --coaxial")
+    if args.stages is None:
+        return (2,) if args.coaxial else (1, 2, 3)
+    k = as_int(args.stages, "stages")
+    if not 1 <= k <= MAX_STAGES:
+        raise InputError(f"stages must be from 1 to {MAX_STAGES}, got {args.stages!r}")
+    if args.coaxial and k not in (2, 4):
+        raise InputError(f"a coaxial train has 2 or 4 stages (one or two reverted pairs), got {k}")
+    return (k,)
+
+
+def planetary_query_from_args(args: argparse.Namespace, target: Any, count: int | None = None) -> Any:
+    """The planetary search of the options (``--planets``, ``--fixed``, ``--input``, ``--stepped``, ...)."""
+    from ..planetary import NEIGHBOUR_MARGIN, make_arrangement, make_query
+    from ..profiles import load_tooth_system
+    from ..ratio.tolerance import count_value
+
+    system = load_tooth_system(getattr(args, "system", None) or "iso53-a")
+    if count is None:
+        default_count = 5 if args.tolerance is not None else 1
+        count = count_value(args.count if args.count is not None else default_count)
+    margin = args.neighbour_margin if args.neighbour_margin is not None else NEIGHBOUR_MARGIN
+    return make_query(target, limits_from_args(args), make_arrangement(args.fixed or "ring", args.input_member),
+                      args.planets, args.stepped, args.max_ring_teeth, args.shift_limit, margin, count,
+                      system.pressure_angle, system.addendum)
+
+
+#: The defaults of gearcad.planetary, written out so that building the parser imports neither sympy nor numpy
+#: (tests/test_ratio_planetary_cli.py checks that they agree).
+MEMBERS = ("sun", "ring", "carrier")
+DEFAULT_PLANETS, MAX_PLANETS, DEFAULT_MAX_RING_TEETH, NEIGHBOUR_MARGIN = 3, 24, 200, 0.5
+
+
+def add_planetary_options(parser: argparse.ArgumentParser) -> None:
+    """Planetary options: --kind, --planets, --fixed, --input, --stepped, --max-ring-teeth, --neighbour-margin."""
+    parser.add_argument("--kind", choices=("compound", "planetary", "summing"), default="compound",
+                        help="a compound train (default), a planetary set, or a summing train (two paths and a "
+                             "differential: reaches fractions with primes above the largest tooth count)")
+    parser.add_argument("--planets", type=int, metavar="N",
+                        help=f"planetary: number of planets, 1 to {MAX_PLANETS} (default {DEFAULT_PLANETS}); summing: the "
+                             "differential's planets (planet pairs of --differential mean)")
+    parser.add_argument("--fixed", choices=MEMBERS, help="planetary: the member held still (default ring)")
+    parser.add_argument("--input", choices=MEMBERS, dest="input_member",
+                        help="planetary: the input member, turned by the drive (default: the first of sun, ring, "
+                             "carrier not fixed); the output is the third")
+    parser.add_argument("--stepped", action="store_true",
+                        help="planetary: stepped planets (one gear meshes the sun, another the ring)")
+    parser.add_argument("--max-ring-teeth", type=int, metavar="Z",
+                        help=f"planetary: most teeth of the ring (default {DEFAULT_MAX_RING_TEETH})")
+    parser.add_argument("--neighbour-margin", type=float, metavar="M",
+                        help=f"planetary: least clearance between adjacent planets' tips, modules (default "
+                             f"{NEIGHBOUR_MARGIN:g}, common practice)")

@@ -53,7 +53,7 @@ def run_summing(args: argparse.Namespace, limits) -> int:
     """Solve, check every result with the kinematic model, print."""
     from ..errors import GearcadError, InputError
     from ..kinematics import network_ratio
-    from ..ratio.solve import tolerance_value
+    from ..ratio.tolerance import tolerance_value
     from ..ratio.target import parse_target
     from ..summing import solve_summing, summing_network
 

@@ -8,7 +8,7 @@ import time
 from typing import Any, Sequence
 
 from ._format import print_json, table
-from ._solver import add_solver_options, exclusions
+from ._solver import add_planetary_options, add_solver_options, limits_from_args, planetary_query_from_args, stage_counts_from_args
 
 __all__ = ["add_parser", "run"]
 
@@ -65,7 +65,7 @@ def add_parser(subparsers: Any) -> argparse.ArgumentParser:
     parser.add_argument("--fractions", action="store_true",
                         help="list the continued-fraction convergents and semiconvergents of the target and mark "
                              "those that a train of at most N stages realises exactly")
-    _add_planetary_options(parser)
+    add_planetary_options(parser)
     from ._summing import add_summing_options
 
     add_summing_options(parser)
@@ -73,30 +73,7 @@ def add_parser(subparsers: Any) -> argparse.ArgumentParser:
     return parser
 
 
-#: The defaults of gearcad.planetary, written out so that building the parser imports neither sympy nor numpy
-#: (tests/test_ratio_planetary_cli.py checks that they agree).
-MEMBERS = ("sun", "ring", "carrier")
-DEFAULT_PLANETS, MAX_PLANETS, DEFAULT_MAX_RING_TEETH, NEIGHBOUR_MARGIN = 3, 24, 200, 0.5
-
-
-def _add_planetary_options(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("--kind", choices=("compound", "planetary", "summing"), default="compound",
-                        help="a compound train (default), a planetary set, or a summing train (two paths and a "
-                             "differential: reaches fractions with primes above the largest tooth count)")
-    parser.add_argument("--planets", type=int, metavar="N",
-                        help=f"planetary: number of planets, 1 to {MAX_PLANETS} (default {DEFAULT_PLANETS}); summing: the "
-                             "differential's planets (planet pairs of --differential mean)")
-    parser.add_argument("--fixed", choices=MEMBERS, help="planetary: the member held still (default ring)")
-    parser.add_argument("--input", choices=MEMBERS, dest="input_member",
-                        help="planetary: the input member, turned by the drive (default: the first of sun, ring, "
-                             "carrier not fixed); the output is the third")
-    parser.add_argument("--stepped", action="store_true",
-                        help="planetary: stepped planets (one gear meshes the sun, another the ring)")
-    parser.add_argument("--max-ring-teeth", type=int, metavar="Z",
-                        help=f"planetary: most teeth of the ring (default {DEFAULT_MAX_RING_TEETH})")
-    parser.add_argument("--neighbour-margin", type=float, metavar="M",
-                        help=f"planetary: least clearance between adjacent planets' tips, modules (default "
-                             f"{NEIGHBOUR_MARGIN:g}, common practice)")
+from ._solver import DEFAULT_MAX_RING_TEETH, DEFAULT_PLANETS, MAX_PLANETS, MEMBERS, NEIGHBOUR_MARGIN  # noqa: E402,F401
 
 
 _PLANETARY_ONLY = (("planets", "--planets"), ("fixed", "--fixed"), ("input_member", "--input"),
@@ -141,38 +118,20 @@ class _LazyProgress:
             self.bar.stop()
 
 
-def _limits(args: argparse.Namespace) -> Any:
-    from ..ratio.inventory import read_inventory
-    from ..ratio.limits import DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH, make_limits
+def _query(args: argparse.Namespace, target: Any, limits: Any, counts: tuple[int, ...]) -> Any:
+    from ..ratio.solve import RatioQuery, count_value
 
-    inventory = read_inventory(args.inventory) if args.inventory is not None else None
-    low = args.min_teeth if args.min_teeth is not None else (min(inventory.teeth) if inventory else DEFAULT_MIN_TEETH)
-    high = args.max_teeth if args.max_teeth is not None else (max(inventory.teeth) if inventory else DEFAULT_MAX_TEETH)
-    return make_limits(low, high, args.max_stage_ratio, args.hunting, exclusions(args.exclude), inventory,
-                       args.direction)
-
-
-def _query(args: argparse.Namespace, target: Any, limits: Any) -> Any:
-    from ..errors import InputError
-    from ..ratio.compound import check_stages
-    from ..ratio.solve import DEFAULT_STAGE_COUNTS, RatioQuery, count_value
-
-    if args.shift_limit is not None and not args.coaxial:
-        raise InputError("--shift-limit works only with --coaxial")
-    if args.stages is not None:
-        counts: tuple[int, ...] = (check_stages(args.stages),)
-    else:
-        counts = (2,) if args.coaxial else DEFAULT_STAGE_COUNTS
     default_count = 5 if args.stages is not None or args.tolerance is not None else 1
     count = count_value(args.count if args.count is not None else default_count)
     return RatioQuery(target, counts, limits, count, args.coaxial, args.shift_limit)
 
 
-def _train_json(train: Any) -> dict[str, Any]:
+def _train_json(train: Any, tolerance: float | None = None) -> dict[str, Any]:
+    within = tolerance is None or abs(train.relative_error) <= tolerance
     out = {"numerator": train.numerator, "denominator": train.denominator, "ratio": train.ratio,
            "relative_error": train.relative_error, "direction": train.direction,
            "stages": [{"driver": d, "driven": n} for d, n in train.stages], "idler": train.idler,
-           "total_teeth": train.total_teeth}
+           "total_teeth": train.total_teeth, "within_tolerance": within}
     if train.shifts is not None:
         out["shifts"] = [{"driver": a, "driven": b} for a, b in train.shifts]
     return out
@@ -221,13 +180,14 @@ def _print_fractions(args: argparse.Namespace, target: Any, limits: Any) -> int:
     return 0
 
 
-def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any]) -> int:
+def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any], reach: Any) -> int:
     from ..ratio.solve import binding_limits
 
     binding = binding_limits(query, args.tolerance) if trains else []
     if args.json:
         print_json({"target": {"expression": query.target.expression, "value": query.target.value}, "results": [],
-                    "best": _train_json(trains[0]) if trains else None, "binding": binding})
+                    "tolerance": args.tolerance, "reach": reach.as_json(),
+                    "best": _train_json(trains[0], args.tolerance) if trains else None, "binding": binding})
         return 1
     print(_heading(query.target, query.limits))
     if not trains:
@@ -245,8 +205,8 @@ def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any]) ->
 
 def run(args: argparse.Namespace) -> int:
     """Run ``gearcad ratio``; returns the exit code."""
-    from ..ratio.solve import solve_ratio, tolerance_value, within_tolerance
     from ..ratio.target import parse_target
+    from ..ratio.tolerance import tolerance_value
 
     if args.kind == "planetary":
         _refuse(args, _COMPOUND_ONLY + (("differential", "--differential"), ("separate_axes", "--separate-axes")), "planetary")
@@ -256,47 +216,59 @@ def run(args: argparse.Namespace) -> int:
 
         _refuse(args, (("stages", "--stages"), ("coaxial", "--coaxial"), ("fractions", "--fractions"),
                        ("fixed", "--fixed"), ("input_member", "--input"), ("stepped", "--stepped")), "summing")
-        return run_summing(args, _limits(args))
+        return run_summing(args, limits_from_args(args))
     _refuse(args, _PLANETARY_ONLY + (("differential", "--differential"), ("separate_axes", "--separate-axes")), "compound")
+    from ..ratio.reach import reach_note, reach_of
+
     target = parse_target(args.target)
-    limits = _limits(args)
-    if args.tolerance is not None:
-        tolerance_value(args.tolerance)
+    limits = limits_from_args(args)
+    tolerance = tolerance_value(args.tolerance) if args.tolerance is not None else None
+    counts = stage_counts_from_args(args)
+    reach = reach_of(limits, counts)
+    reachable = tuple(k for k in counts if reach_of(limits, (k,)).holds(target.approx))
     if args.fractions:
         return _print_fractions(args, target, limits)
-    query = _query(args, target, limits)
+    if not reachable:  # said at once: no search can reach it
+        note = reach_note(target.expression, target.value, limits, counts, coaxial=args.coaxial)
+        if args.json:
+            print_json({"target": {"expression": target.expression, "value": target.value}, "results": [],
+                        "tolerance": tolerance, "reach": reach.as_json(), "unreachable": note})
+        else:
+            print(note)
+        return 1
+    from ..ratio.solve import solve_ratio, within_tolerance
+
+    query = _query(args, target, limits, reachable)
     progress = _LazyProgress(enabled=not args.json and sys.stderr.isatty())
     try:
         trains = solve_ratio(query, progress)
     finally:
         progress.close()
-    shown = within_tolerance(trains, args.tolerance) if args.tolerance is not None else trains
+    shown = within_tolerance(trains, tolerance) if tolerance is not None else trains
     if not shown:
-        return _report_miss(args, query, trains)
+        return _report_miss(args, query, trains, reach)
+    left_out = [k for k in counts if k not in reachable]
     if args.json:
-        print_json({"target": {"expression": target.expression, "value": target.value},
-                    "results": [_train_json(t) for t in shown]})
+        out = {"target": {"expression": target.expression, "value": target.value},
+               "results": [_train_json(t, tolerance) for t in shown], "tolerance": tolerance, "reach": reach.as_json()}
+        if left_out:
+            out["stage_counts_beyond_reach"] = left_out
+        print_json(out)
         return 0
     print(_heading(target, limits))
+    if left_out:
+        print(f"left out: {_counts_text(left_out)} cannot reach {target.expression} "
+              f"(they reach {reach_of(limits, (max(left_out),)).describe()})")
     print(table(_rows(shown), _HEADER))
     return 0
 
 
+def _counts_text(counts: Sequence[int]) -> str:
+    words = " and ".join(str(k) for k in counts)
+    return f"{words} stage{'s' if counts != [1] else ''}"
+
+
 # --- planetary sets -----------------------------------------------------------------------------------------
-
-def _planetary_query(args: argparse.Namespace, target: Any) -> Any:
-    from ..planetary import NEIGHBOUR_MARGIN, make_arrangement, make_query
-    from ..profiles import load_tooth_system
-    from ..ratio.solve import count_value
-
-    system = load_tooth_system()
-    default_count = 5 if args.tolerance is not None else 1
-    count = count_value(args.count if args.count is not None else default_count)
-    margin = args.neighbour_margin if args.neighbour_margin is not None else NEIGHBOUR_MARGIN
-    return make_query(target, _limits(args), make_arrangement(args.fixed or "ring", args.input_member),
-                      args.planets, args.stepped, args.max_ring_teeth, args.shift_limit, margin, count,
-                      system.pressure_angle, system.addendum)
-
 
 def _planetary_json(result: Any) -> dict[str, Any]:
     import math
@@ -348,21 +320,35 @@ def _planetary_heading(query: Any) -> str:
             f"ratio = output turns per input turn, from the kinematic model of the set")
 
 
+#: Rows of a planetary table further off than both this and ten times the best's error are left out
+#: (when the best itself is further off, only the sets as good as the best are shown).
+FAR_OFF = 0.01
+
+
 def _run_planetary(args: argparse.Namespace) -> int:
     from ..planetary import solve_planetary
-    from ..ratio.solve import tolerance_value, within_tolerance
+    from ..ratio.solve import within_tolerance
     from ..ratio.target import parse_target
+    from ..ratio.tolerance import DESIGN_TOLERANCE, tolerance_value
+    from ..trains.choose import planetary_alternatives
 
     target = parse_target(args.target)
     if args.tolerance is not None:
         tolerance_value(args.tolerance)
-    query = _planetary_query(args, target)
+    query = planetary_query_from_args(args, target)
     results = solve_planetary(query)
+    if results:  # no padding: rows far worse than the best say nothing
+        best = abs(results[0].relative_error)
+        cut = max(FAR_OFF, 10 * best) if best <= FAR_OFF else best
+        results = [r for r in results if abs(r.relative_error) <= cut]
     shown = within_tolerance(results, args.tolerance) if args.tolerance is not None else results
     head = {"expression": target.expression, "value": target.value}
+    wanted = args.tolerance if args.tolerance is not None else DESIGN_TOLERANCE
+    hint = planetary_alternatives(query, wanted) if not results or abs(results[0].relative_error) > wanted else ""
     if not shown:
         if args.json:
-            print_json({"target": head, "results": [], "best": _planetary_json(results[0]) if results else None})
+            print_json({"target": head, "results": [], "best": _planetary_json(results[0]) if results else None,
+                        "alternatives": hint})
             return 1
         print(_planetary_heading(query))
         if not results:
@@ -370,10 +356,17 @@ def _run_planetary(args: argparse.Namespace) -> int:
         else:
             print(f"no set within tolerance {args.tolerance:g}; the best found:")
             print(table(_planetary_rows(results[:1]), _PLANETARY_HEADER))
+        if hint:
+            print(hint)
         return 1
     if args.json:
-        print_json({"target": head, "results": [_planetary_json(r) for r in shown]})
+        out = {"target": head, "results": [_planetary_json(r) for r in shown]}
+        if hint:
+            out["alternatives"] = hint
+        print_json(out)
         return 0
     print(_planetary_heading(query))
     print(table(_planetary_rows(shown), _PLANETARY_HEADER))
+    if hint:
+        print(hint)
     return 0

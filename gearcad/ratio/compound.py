@@ -8,10 +8,10 @@ counts, ``Q`` that of its driven ones.  The search
    better than anything inside it),
 2. groups the pairs by their reduced ratio ``p / q`` and ranks the groups by
    their exact error (rational arithmetic against the target),
-3. for each group in that order, splits ``P`` and ``Q`` into tooth counts
-   (fewest teeth first, pruned by the AM-GM bound ``sum >= k P^(1/k)``) and
-   pairs drivers with driven gears under the per-stage limits, hunting,
-   exclusions and the inventory,
+3. for each group in that order, splits ``P`` and ``Q`` into stages by a
+   depth-first search (:mod:`gearcad.ratio.split`: each stage obeys the
+   per-stage limits, hunting, exclusions and the inventory; branches are cut
+   by the reach of the stages left and the AM-GM bound ``sum >= k P^(1/k)``),
 4. widens ``eps`` and repeats until ``count`` trains are found whose errors
    are all within a window that has been searched completely.
 
@@ -19,24 +19,28 @@ So the first result is the global optimum (least |relative error|, ties to
 fewer total teeth, then smaller ratio, then the lexicographically first
 stages); the tests check this against an exhaustive enumeration.
 Results are one train per distinct ratio: the one with the fewest teeth.
+A target beyond the reach of ``k`` stages is searched at the reach's end
+(:func:`_beyond_reach`: same order of results, bounded work); the reach is
+:mod:`gearcad.ratio.reach`'s.
 """
 
 from __future__ import annotations
 
 import math
-from collections import Counter
 from dataclasses import dataclass, field
 from fractions import Fraction
-from typing import Callable
+from typing import Callable, Iterator
 
 import numpy as np
 
 from ..errors import InputError
 from ..validate import as_int
 from .candidates import FLOAT_MARGIN, ScanCandidates, SortedCandidates
-from .limits import MAX_STAGES, Limits, assign_stages
-from .products import Factorizer, multiset_count, smooth_mask
-from .target import Target
+from .limits import MAX_STAGES, Limits
+from .products import multiset_count, smooth_mask
+from .reach import largest_stage_ratio
+from .split import Splitter
+from .target import Target, significant
 from .train import Train, exact_relative_error, make_train, output_direction
 
 __all__ = ["solve_compound", "stage_ratio_range", "check_stages", "needs_idler", "rank_key"]
@@ -44,6 +48,8 @@ __all__ = ["solve_compound", "stage_ratio_range", "check_stages", "needs_idler",
 #: Up to this many multisets of k tooth counts the sorted product set is built.
 SORTED_LIMIT = 3_000_000
 _SCAN_BUDGET = 200_000
+#: Float errors closer than this are ranked together exactly (float error of an error is ~1e-15).
+_CLUSTER = 1e-12
 Progress = Callable[[float], None]
 
 
@@ -100,42 +106,18 @@ class _Search:
     done_ratios: set = field(default_factory=set)
 
     def __post_init__(self) -> None:
-        self.factorizer = Factorizer(self.limits.teeth)
         self.shelf = self.limits.shelf()
         self.idler = needs_idler(self.k, self.limits)
         self.idler_floor = min(self.limits.teeth) if self.idler else 0
         self.smallest = min(self.limits.teeth)
+        largest = largest_stage_ratio(self.limits)
+        self.splitter = None if largest is None else Splitter(self.k, self.limits, self.shelf, self.idler, largest)
 
     # -- one ratio ---------------------------------------------------------
-    def _idler_for(self, used: Counter) -> int | None:
-        if self.shelf is None:
-            return self.smallest
-        return next((z for z in sorted(self.shelf) if self.shelf[z] > used[z]), None)
-
-    def _fits_shelf(self, used: Counter) -> bool:
-        return self.shelf is None or all(self.shelf[z] >= n for z, n in used.items())
-
     def _best_for_pair(self, p: int, q: int, bound: float) -> tuple[int, tuple, int | None] | None:
-        drivers = self.factorizer.by_sum(p, self.k)
-        driven = self.factorizer.by_sum(q, self.k) if drivers else []
-        best = None
-        for sum_p, d in drivers:
-            if not driven or sum_p + driven[0][0] + self.idler_floor > bound:
-                break
-            for sum_q, n in driven:
-                if sum_p + sum_q + self.idler_floor > bound:
-                    break
-                used = Counter(d) + Counter(n)
-                if not self._fits_shelf(used):
-                    continue
-                stages = assign_stages(d, n, self.limits)
-                idler = self._idler_for(used) if self.idler else None
-                if stages is None or (self.idler and idler is None):
-                    continue
-                total = sum_p + sum_q + (idler or 0)
-                if best is None or (total, stages) < (best[0], best[1]):
-                    best, bound = (total, stages, idler), total
-        return best
+        if self.splitter is None:
+            return None
+        return self.splitter.best_for(p, q, bound)
 
     def _best_for_ratio(self, ps: np.ndarray, qs: np.ndarray) -> Train | None:
         k, a = self.k, self.smallest
@@ -196,25 +178,42 @@ class _Search:
         return (a, b)
 
     # -- one window --------------------------------------------------------
-    def _groups(self, p: np.ndarray, q: np.ndarray, eps: float) -> list[tuple[Fraction, int, int, np.ndarray]]:
-        """Unprocessed ratio groups of the window with float error <= eps, in exact order."""
+    def _groups(self, p: np.ndarray, q: np.ndarray, eps: float) -> Iterator[tuple[Fraction, int, int, np.ndarray]]:
+        """Unprocessed ratio groups of the window with float error <= eps, in exact order (lazily).
+
+        Groups are taken in float order, in runs split where two neighbouring float errors differ
+        by more than ``_CLUSTER`` (far above their rounding, ~1e-15, so no exact error crosses a
+        split); each run is ranked exactly before it is handed out, so only the groups the caller
+        consumes pay for rational arithmetic.
+        """
         g = np.gcd(p, q)
-        keys, inverse = np.unique(np.stack([p // g, q // g], axis=1), axis=0, return_inverse=True)
+        num, den = p // g, q // g
+        if len(num) and max(int(num.max()), int(den.max())) < 2 ** 31:  # one int64 key per ratio: a fast 1-D unique
+            packed, inverse = np.unique((num << 32) | den, return_inverse=True)
+            keys = np.stack([packed >> 32, packed & 0xFFFFFFFF], axis=1)
+        else:
+            keys, inverse = np.unique(np.stack([num, den], axis=1), axis=0, return_inverse=True)
         inverse = inverse.ravel()
         t = self.target.value
         float_err = np.abs((keys[:, 0] - t * keys[:, 1]) / (t * keys[:, 1]))
         members = np.argsort(inverse, kind="stable")
         starts = np.searchsorted(inverse[members], np.arange(len(keys)))
         ends = np.append(starts[1:], len(members))
-        chosen = [i for i in np.argsort(float_err, kind="stable").tolist()
-                  if float_err[i] <= eps + FLOAT_MARGIN and (int(keys[i, 0]), int(keys[i, 1])) not in self.done_ratios]
-        groups = []
-        for i in chosen:
-            num, den = int(keys[i, 0]), int(keys[i, 1])
-            error = abs(exact_relative_error(num, den, self.target))
-            groups.append((error, num, den, members[starts[i]:ends[i]]))
-        groups.sort(key=lambda item: (item[0], Fraction(item[1], item[2])))
-        return groups
+        order = np.argsort(float_err, kind="stable")
+        order = order[float_err[order] <= eps + FLOAT_MARGIN]
+        errors = float_err[order]
+        splits = (np.flatnonzero(np.diff(errors) > _CLUSTER) + 1).tolist() + [len(order)]
+        at = 0
+        for stop in splits:
+            batch = []
+            for i in order[at:stop].tolist():
+                num, den = int(keys[i, 0]), int(keys[i, 1])
+                if (num, den) in self.done_ratios:
+                    continue
+                batch.append((abs(exact_relative_error(num, den, self.target)), num, den, members[starts[i]:ends[i]]))
+            batch.sort(key=lambda item: (item[0], Fraction(item[1], item[2])))
+            yield from batch
+            at = stop
 
     def _enough(self, next_error: Fraction) -> bool:
         if len(self.found) < self.count:
@@ -313,6 +312,8 @@ def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, 
     span = stage_ratio_range(limits, k)
     if span is None:
         return []
+    if not span[0] <= target.approx <= span[1]:
+        return _beyond_reach(target, k, limits, count, span, progress, method)
     search = _Search(target, k, limits, count, progress)
     ratio_range = (float(span[0]), float(span[1]))
     teeth = limits.teeth
@@ -326,3 +327,18 @@ def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, 
         start_eps = reached
     search.run_sorted(SortedCandidates(teeth, k, target.value, ratio_range, exact), start_eps)
     return search.results()
+
+
+def _beyond_reach(target: Target, k: int, limits: Limits, count: int, span: tuple[Fraction, Fraction],
+                  progress: Progress | None, method: str) -> list[Train]:
+    """The best trains for a target outside ``span``: those nearest the end of the span it lies beyond.
+
+    Every train lies within ``span``, so against a target beyond its upper end
+    the error ``1 - r / T`` falls as the ratio ``r`` rises, exactly as against
+    the end itself: searching for the end ranks the trains in the same order
+    (ties alike), and the search stays as small as any within reach.
+    """
+    end = span[1] if target.approx > span[1] else span[0]
+    proxy = Target(significant(end, 17), end, float(end), end, end)
+    found = solve_compound(proxy, k, limits, count, progress=progress, method=method)
+    return sorted((make_train(t.stages, target, t.idler, t.shifts) for t in found), key=lambda t: rank_key(t, target))

@@ -8,11 +8,11 @@ from typing import Callable, Sequence
 
 from ..errors import InputError
 from ..validate import as_int, finite
-from .coaxial import solve_coaxial
 from .compound import check_stages, solve_compound
 from .convergents import Approximant, best_approximations
 from .limits import MAX_STAGES, TEETH_BOUNDS, Limits
 from .target import Target, parse_target
+from .tolerance import count_value, tolerance_value
 from .train import Train
 
 __all__ = ["RatioQuery", "solve_ratio", "within_tolerance", "binding_limits", "realising_stages",
@@ -37,6 +37,8 @@ class RatioQuery:
 
 def _one(query: RatioQuery, k: int, progress: Progress | None) -> list[Train]:
     if query.coaxial:
+        from .coaxial import solve_coaxial
+
         return solve_coaxial(query.target, k, query.limits, query.count, query.shift_limit)
     return solve_compound(query.target, k, query.limits, query.count, progress=progress)
 
@@ -115,19 +117,3 @@ def approximations_with_trains(target: Target, limits: Limits, max_stages: int) 
     largest = max(limits.teeth)
     return [(a, realising_stages(a.numerator, a.denominator, limits, max_stages))
             for a in best_approximations(target, largest ** max_stages)]
-
-
-def tolerance_value(value: object) -> float:
-    """A tolerance > 0 and < 1, else :class:`InputError`."""
-    number = finite(value, "tolerance")
-    if not 0 < number < 1:
-        raise InputError(f"tolerance must be greater than 0 and less than 1 (a relative error), got {value!r}")
-    return number
-
-
-def count_value(value: object) -> int:
-    """A result count from 1 to 1000, else :class:`InputError`."""
-    number = as_int(value, "count")
-    if not 1 <= number <= 1000:
-        raise InputError(f"count must be from 1 to 1000, got {value!r}")
-    return number

@@ -13,7 +13,7 @@ from typing import Sequence
 
 from .target import Target
 
-__all__ = ["Train", "make_train", "exact_relative_error", "output_direction"]
+__all__ = ["Train", "make_train", "exact_relative_error", "output_direction", "chain_ratio"]
 
 
 @dataclass(frozen=True)
@@ -75,14 +75,28 @@ def output_direction(meshes: int) -> str:
     return "opposite" if meshes % 2 else "same"
 
 
+def chain_ratio(stages: Sequence[tuple[int, int]], idler: int | None = None) -> Fraction:
+    """Signed ratio (output turns per input turn) of a compound train on fixed axes.
+
+    Willis' equation of each external mesh with the frame as carrier,
+    ``z_a w_a + z_b w_b = 0``, solved along the chain (an idler adds a mesh and
+    changes only the sign).  It is the kinematic model of
+    :func:`gearcad.kinematics.compound_ratio` for this one network shape,
+    solved without a general linear system, so the ratio solver starts without
+    sympy; ``tests/test_ratio_reach.py`` checks that both agree.
+    """
+    speed = Fraction(1)
+    for driver, driven in stages:
+        speed = -speed * driver / driven
+    return -speed if idler else speed
+
+
 def make_train(stages: Sequence[tuple[int, int]], target: Target, idler: int | None = None,
                shifts: tuple[tuple[float, float], ...] | None = None) -> Train:
     """Build a :class:`Train`, computing its reduced ratio, error and direction."""
-    from ..kinematics import compound_ratio, direction_of
-
-    signed = compound_ratio(stages, idler)  # the one kinematic model computes every reported ratio
+    signed = chain_ratio(stages, idler)  # Willis on each mesh (the kinematic model; checked against kinematics)
     ratio = abs(signed)
     error = exact_relative_error(ratio.numerator, ratio.denominator, target)
     total = sum(d + n for d, n in stages) + (idler or 0)
     return Train(tuple((int(d), int(n)) for d, n in stages), ratio.numerator, ratio.denominator,
-                 float(error), direction_of(signed), idler, total, shifts)
+                 float(error), "same" if signed > 0 else "opposite", idler, total, shifts)
