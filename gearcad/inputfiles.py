@@ -1,6 +1,6 @@
 """Reading the user's text files (train files, profiles) with every size bounded.
 
-Input, not computation: like :func:`gearcad.trainfile.read_train` and the
+Input, not computation: like :func:`gearcad.trains.trainfile.read_train` and the
 profile loader, this module reads files and nothing else.  A file is refused
 with one line naming it and the limit when it is larger than the limit, is not
 text (NUL or other control bytes), or is not UTF-8 (a UTF-16 file, say, as some

@@ -7,8 +7,8 @@ import math
 
 import pytest
 
-from gearcad.plan import plan_train
-from gearcad.trainfile import parse_train
+from gearcad.trains.planner import plan_train
+from gearcad.trains.trainfile import parse_train
 
 TRAIN = """name = "phase"
 module = 2.0

@@ -17,7 +17,7 @@ from gearcad.cli import main
 from gearcad.errors import ExportError, InputError
 from gearcad.export.staging import MARKER, folder_lock, staged_folder
 from gearcad.inputfiles import MAX_INPUT_BYTES, MAX_NAME_LENGTH
-from gearcad.trainfile import MAX_FILE_STAGES, parse_train
+from gearcad.trains.trainfile import MAX_FILE_STAGES, parse_train
 
 GOOD = 'name = "one"\nmodule = 1\nthickness = 2\n[[stage]]\ndriver = 20\ndriven = 30\n'
 
@@ -84,7 +84,7 @@ def test_a_failure_after_the_third_file_leaves_the_folder_unchanged(tmp_path, mo
 
 def test_a_failed_first_build_leaves_no_folder(tmp_path, monkeypatch):
     from gearcad.export.bundle import BuildOptions, write_plan
-    from gearcad.plan import plan_train
+    from gearcad.trains.planner import plan_train
 
     out = tmp_path / "new" / "deeper" / "o"
     fail_after(monkeypatch, 3)
@@ -321,9 +321,9 @@ def test_the_tool_reach_against_shapely_and_the_space_width():
     # tip circle (pi d_a / z - s_a, ISO 21771's tip thickness), the widest the space gets.
     from shapely.geometry import Point, Polygon
 
-    from gearcad.checks import largest_tool, space_direction, tool_reach
+    from gearcad.meshes.checks import largest_tool, space_direction, tool_reach
     from gearcad.geometry.generate import tooth_profile
-    from gearcad.plan import plan_train
+    from gearcad.trains.planner import plan_train
 
     plan = plan_train(parse_train(cnc_train(0.5, "laser-3mm-acrylic")))
     for gear in plan.gears:

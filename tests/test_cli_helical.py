@@ -9,9 +9,9 @@ from gearcad.cli import main
 from gearcad.materials import load_material
 from gearcad.meshes import helical as hx
 from gearcad.meshes.helical_rating import helix_factor_bending, helix_factor_contact, rate_helical_pair
-from gearcad.pair import make_pair
+from gearcad.meshes.pair import make_pair
 from gearcad.profiles import load_tooth_system
-from gearcad.strength import rate_pair
+from gearcad.meshes.strength import rate_pair
 
 ISO53A = load_tooth_system("iso53-a")
 

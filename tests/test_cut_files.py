@@ -22,8 +22,8 @@ from ezdxf import path as dxfpath
 from ezdxf.math import BSpline
 
 from gearcad.cli import main
-from gearcad.drawing import CutDrawing, LinePiece, SplinePiece
-from gearcad.drawings import part_drawing
+from gearcad.export.neutral import CutDrawing, LinePiece, SplinePiece
+from gearcad.export.cutting import part_drawing
 from gearcad.export.dxf import write_dxf
 from gearcad.export.svg import write_svg
 from gearcad.geometry.bspline import evaluate, loop_pieces
@@ -361,9 +361,9 @@ idler = 30
 
 def test_every_part_of_a_summing_train_is_marked_inside_its_material():
     from gearcad.geometry.marking import material_region
-    from gearcad.plan import plan_train
-    from gearcad.sheets import flat_parts
-    from gearcad.trainfile import parse_train
+    from gearcad.trains.planner import plan_train
+    from gearcad.export.sheets import flat_parts
+    from gearcad.trains.trainfile import parse_train
 
     plan = plan_train(parse_train(SUMMING))
     parts = flat_parts(plan)

@@ -5,11 +5,11 @@ import math
 
 import pytest
 
-from gearcad.checks import min_shift_without_undercut
+from gearcad.meshes.checks import min_shift_without_undercut
 from gearcad.cli import main
-from gearcad.design import balanced_shifts
+from gearcad.meshes.shifts import balanced_shifts
 from gearcad.profiles import load_tooth_system
-from gearcad.trainfile import read_train
+from gearcad.trains.trainfile import read_train
 
 A = load_tooth_system("iso53-a")
 

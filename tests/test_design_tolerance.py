@@ -15,7 +15,7 @@ import pytest
 from gearcad.cli import main
 from gearcad.errors import ToleranceError
 from gearcad.ratio import make_limits, parse_target
-from gearcad.trains.choose import DESIGN_TOLERANCE, design
+from gearcad.trains.design import DESIGN_TOLERANCE, design
 from test_ratio_optimality import exhaustive
 
 
@@ -57,7 +57,7 @@ def test_library_design_picks_the_exhaustive_optimum_without_the_cli():
 
 
 def _severities(spec):
-    from gearcad.plan import plan_train
+    from gearcad.trains.planner import plan_train
 
     plan = plan_train(spec)
     return {f.severity for m in plan.meshes for f in m.analysis.findings}

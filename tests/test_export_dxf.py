@@ -214,7 +214,7 @@ def test_r12_polylines_are_readable_and_warned_about(tmp_path, drawing):
 
 
 def test_r12_has_no_splines():
-    from gearcad.drawing import SplinePiece
+    from gearcad.export.neutral import SplinePiece
 
     control = np.array([(0, 0), (1, 0), (1, 1), (0, 0)], dtype=float)
     piece = SplinePiece(control, np.array([0, 0, 0, 0, 1, 1, 1, 1], dtype=float), closed=True)

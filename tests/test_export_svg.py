@@ -160,7 +160,7 @@ def test_gear_reconstructed_from_svg_has_tip_and_root_radius():
 
 
 def test_refusals():
-    from gearcad.drawing import SplinePiece
+    from gearcad.export.neutral import SplinePiece
 
     control = np.array([(0, 0), (1, 0), (1, 1), (0, 0)], dtype=float)
     piece = SplinePiece(control, np.array([0, 0, 0, 0, 1, 1, 1, 1], dtype=float), closed=True)

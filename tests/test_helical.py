@@ -5,11 +5,11 @@ import math
 import numpy as np
 import pytest
 
-from gearcad.checks import analyse_pair
+from gearcad.meshes.checks import analyse_pair
 from gearcad.errors import InputError
 from gearcad.geometry import SpurGear, outline, tooth_profile
 from gearcad.meshes import helical as hx
-from gearcad.pair import make_pair
+from gearcad.meshes.pair import make_pair
 from gearcad.profiles import load_tooth_system
 
 ISO53A = load_tooth_system("iso53-a")

@@ -153,8 +153,8 @@ def test_meshing_helical_solids_do_not_overlap_at_any_height():
     from OCP.BRepAlgoAPI import BRepAlgoAPI_Common
 
     from gearcad.export.step import _adaptive_volume
-    from gearcad.plan import plan_train
-    from gearcad.trainfile import parse_train
+    from gearcad.trains.planner import plan_train
+    from gearcad.trains.trainfile import parse_train
 
     text = 'name = "m"\nmodule = 1.0\nthickness = 5.0\nbore = 2.0\n[[stage]]\ndriver = 12\ndriven = 18\nhelix = 30\n'
     plan = plan_train(parse_train(text), tolerance=1e-3)

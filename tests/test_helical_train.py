@@ -9,8 +9,9 @@ import shapely
 from gearcad.cli import main
 from gearcad.errors import InputError
 from gearcad.meshes.helical import HelicalGear
-from gearcad.plan import placed_outline, plan_train
-from gearcad.trainfile import parse_train, train_to_toml
+from gearcad.trains.plan import placed_outline
+from gearcad.trains.planner import plan_train
+from gearcad.trains.trainfile import parse_train, train_to_toml
 
 HEAD = 'name = "hx"\nmodule = 1.0\nthickness = 6.0\nbore = 3.0\n'
 TWO_STAGES = HEAD + '''
@@ -232,7 +233,7 @@ def test_helical_planetary_hands_sun_planets_ring():
 
 
 def _placed_ring_hole(plan):
-    from gearcad.plan import placed_holes
+    from gearcad.trains.plan import placed_holes
 
     return placed_holes(plan.gear("ring"), plan)[0]
 

@@ -12,9 +12,9 @@ from shapely.geometry import LineString, Point, Polygon
 from gearcad.cli import main
 from gearcad.geometry import SpurGear, outline
 from gearcad.geometry.internal import ring_loop, to_ring_frame
-from gearcad.internal import (analyse_internal_pair, internal_centre_distance, internal_working_pressure_angle,
+from gearcad.meshes.internal import (analyse_internal_pair, internal_centre_distance, internal_working_pressure_angle,
                               least_tooth_difference, make_internal_pair, require_tooth_difference, trochoid_depth)
-from gearcad.pair import centre_distance_for_shift, working_pressure_angle
+from gearcad.meshes.pair import centre_distance_for_shift, working_pressure_angle
 from gearcad.profiles import load_tooth_system
 
 SYS = load_tooth_system("iso53-a")

@@ -16,7 +16,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from gearcad.errors import InputError
-from gearcad.kinematics import (FRAME, Gear, Mesh, compound_network, compound_ratio, direction_of, make_network,
+from gearcad.ratio.kinematics import (FRAME, Gear, Mesh, compound_network, compound_ratio, direction_of, make_network,
                                 network_ratio, solve_network, symbolic_ratio, symbolic_speeds)
 from gearcad.ratio.target import parse_target
 from gearcad.ratio.train import make_train

@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 
 from gearcad.errors import InputError
-from gearcad.layout import LayoutGear, LayoutProblem, Link, _plate, _positions, _violation, mesh_phase, solve_layout
+from gearcad.trains.layout import LayoutGear, LayoutProblem, Link, _plate, _positions, _violation, mesh_phase, solve_layout
 
 
 def chain(stages, m=1.0, bore=3.0, clearance=1.0, margin=5.0, coaxial=None):

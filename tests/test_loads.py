@@ -6,9 +6,10 @@ from fractions import Fraction
 
 import pytest
 
-from gearcad.loads import differential_side_torques, member_torques, planet_mesh_loads
-from gearcad.plan import InputLoad, plan_train
-from gearcad.trainfile import parse_train
+from gearcad.meshes.loads import differential_side_torques, member_torques, planet_mesh_loads
+from gearcad.trains.plan import InputLoad
+from gearcad.trains.planner import plan_train
+from gearcad.trains.trainfile import parse_train
 
 EPICYCLIC = """name = "epi"
 module = 1.0
@@ -44,8 +45,8 @@ def test_the_planets_pass_the_ring_exactly_its_reaction(fixed, input):
     plan = plan_train(parse_train(EPICYCLIC.format(fixed=fixed, input=input)), load=InputLoad(0.3, 120.0))
     ring_mesh = next(m for m in plan.meshes if "ring" in m.names)
     ring_torque = ring_mesh.rating.gears[1].torque * 3
-    from gearcad.kinematics import solve_network
-    from gearcad.planetary import make_arrangement, make_set, set_network
+    from gearcad.ratio.kinematics import solve_network
+    from gearcad.ratio.planetary_set import make_arrangement, make_set, set_network
 
     arrangement = make_arrangement(fixed, input)
     speeds = solve_network(set_network(make_set(18, 24, 66, 3)), {fixed: 0, input: 1}).speeds
@@ -108,9 +109,9 @@ def test_summing_paths_return_the_input_torque(kind, extra, a, b, idler):
 def test_internal_contact_stress_is_iso_6336_2s_with_a_negative_gear_ratio(planet, ring):
     # ISO 6336-2 (from memory): sigma_H0 = Z_H Z_E sqrt(F_t / (d_1 b) (u + 1) / u), u = z_2 / z_1 negative for an
     # internal pair, Z_H = sqrt(2 / (sin(alpha) cos(alpha))) for unshifted spur gears at the reference circle.
-    from gearcad.internal import make_internal_pair
+    from gearcad.meshes.internal import make_internal_pair
     from gearcad.profiles import load_tooth_system
-    from gearcad.strength import contact_stress, elastic_coefficient
+    from gearcad.meshes.strength import contact_stress, elastic_coefficient
 
     pair = make_internal_pair(planet, ring, 2.0, load_tooth_system("iso53-a"))
     alpha = pair.operating_pressure_angle
@@ -124,10 +125,10 @@ def test_internal_contact_stress_is_iso_6336_2s_with_a_negative_gear_ratio(plane
 
 
 def test_the_ring_is_rated_with_the_racks_form_factor_and_is_the_stronger_gear():
-    from gearcad.internal import make_internal_pair
+    from gearcad.meshes.internal import make_internal_pair
     from gearcad.materials import load_material
     from gearcad.profiles import load_tooth_system
-    from gearcad.strength import rate_internal_pair
+    from gearcad.meshes.strength import rate_internal_pair
 
     pair = make_internal_pair(20, 66, 1.0, load_tooth_system("iso53-a"))
     pla = load_material("pla")

@@ -14,10 +14,10 @@ import pytest
 import shapely
 
 from gearcad.errors import InputError
-from gearcad.plan import plan_train
-from gearcad.trainfile import parse_train
+from gearcad.trains.planner import plan_train
+from gearcad.trains.trainfile import parse_train
 from gearcad.trains.interference import check_assembly
-from gearcad.trains.supports import END_SHAKE, REACH, STUD_PIPE, Rod
+from gearcad.trains.hardware import END_SHAKE, REACH, STUD_PIPE, Rod
 
 COMPOUND = """name = "three"
 module = 1.0

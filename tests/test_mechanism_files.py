@@ -153,8 +153,8 @@ def test_the_analytic_check_agrees_with_the_kernels_booleans():
     # pillar moved into a gear shares volume with it, and the analytic check says so too.
     import dataclasses
 
-    from gearcad.plan import plan_train
-    from gearcad.trainfile import parse_train
+    from gearcad.trains.planner import plan_train
+    from gearcad.trains.trainfile import parse_train
     from gearcad.trains.interference import check_assembly
 
     plan = plan_train(parse_train(SMALL))

@@ -20,9 +20,9 @@ from gearcad.cli import main
 from gearcad.errors import InputError
 from gearcad.geometry.nest import NestItem, nest_parts, placed_points, turned_part
 from gearcad.geometry.shape import Part, circle_loop, rounded_rectangle
-from gearcad.plan import plan_train
-from gearcad.sheets import flat_parts, part_spacing, plan_sheets
-from gearcad.trainfile import parse_train
+from gearcad.trains.planner import plan_train
+from gearcad.export.sheets import flat_parts, part_spacing, plan_sheets
+from gearcad.trains.trainfile import parse_train
 
 PLANETARY = """name = "epi"
 module = 1.0
@@ -43,7 +43,7 @@ def demo_text() -> str:
 
 @pytest.fixture(scope="module", params=["demo", "planetary"])
 def plan(request):
-    from gearcad.design import solve_train_spec
+    from gearcad.trains.stages import solve_train_spec
 
     if request.param == "planetary":
         return plan_train(parse_train(PLANETARY))

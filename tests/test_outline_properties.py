@@ -103,7 +103,7 @@ def test_tolerance_of_a_tenth_of_a_micron_is_honoured():
 @pytest.mark.parametrize("teeth, shift", [(12, 0.0), (17, 0.0), (30, -0.4), (8, 0.3)])
 def test_undercut_appears_exactly_below_the_least_shift(teeth, shift):
     # x_min = h - z sin^2(alpha) / 2 (the interference-point condition of rack generation).
-    from gearcad.checks import min_shift_without_undercut
+    from gearcad.meshes.checks import min_shift_without_undercut
 
     sys_a = load_tooth_system("iso53-a")
     x_min = min_shift_without_undercut(teeth, sys_a.pressure_angle, sys_a.straight_flank_depth)

@@ -4,9 +4,9 @@ import math
 
 import pytest
 
-from gearcad.checks import analyse_pair, min_shift_without_undercut, min_teeth_without_undercut
+from gearcad.meshes.checks import analyse_pair, min_shift_without_undercut, min_teeth_without_undercut
 from gearcad.errors import GeometryError, InputError
-from gearcad.pair import (centre_distance_for_shift, make_pair, split_shift, standard_centre_distance,
+from gearcad.meshes.pair import (centre_distance_for_shift, make_pair, split_shift, standard_centre_distance,
                           total_shift_for_centre)
 from gearcad.profiles import load_tooth_system
 

@@ -26,9 +26,8 @@ from hypothesis import strategies as st
 
 from gearcad.errors import InputError
 from gearcad.geometry.involute import inv
-from gearcad.planetary import (MEMBERS, STANDARD_PRESSURE_ANGLE, assembly_angles, check_set,
-                               make_arrangement, make_query, make_set, phase_mismatch, ratio_formula, set_ratio,
-                               solve_planetary)
+from gearcad.ratio.planetary_set import MEMBERS, STANDARD_PRESSURE_ANGLE, assembly_angles, check_set, make_arrangement, make_set, phase_mismatch, ratio_formula, set_ratio
+from gearcad.ratio.planetary import make_query, solve_planetary
 from gearcad.ratio import make_limits, parse_target
 
 ARRANGEMENTS = [make_arrangement(f, i) for f in MEMBERS for i in MEMBERS if i != f]

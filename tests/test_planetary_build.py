@@ -10,8 +10,9 @@ import shapely
 from shapely import affinity
 
 from gearcad.cli import main
-from gearcad.plan import placed_holes, placed_outline, plan_train
-from gearcad.trainfile import parse_train
+from gearcad.trains.plan import placed_holes, placed_outline
+from gearcad.trains.planner import plan_train
+from gearcad.trains.trainfile import parse_train
 
 TRAIN = """name = "epi"
 module = 1.0

@@ -16,7 +16,7 @@ from itertools import combinations_with_replacement
 import pytest
 
 from gearcad.errors import InputError
-from gearcad.pair import centre_distance_for_shift
+from gearcad.meshes.pair import centre_distance_for_shift
 from gearcad.profiles import load_tooth_system
 from gearcad.ratio import make_limits, parse_target, solve_coaxial
 

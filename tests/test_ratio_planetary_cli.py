@@ -14,7 +14,8 @@ from fractions import Fraction
 import pytest
 
 from gearcad.cli import main
-from gearcad.planetary import make_arrangement, make_query, solve_planetary
+from gearcad.ratio.planetary_set import make_arrangement
+from gearcad.ratio.planetary import make_query, solve_planetary
 from gearcad.ratio import make_limits, parse_target
 
 KEYS = {"numerator", "denominator", "ratio", "relative_error", "direction", "stages", "idler", "total_teeth"}
@@ -80,9 +81,9 @@ def test_table_layout(capsys):
 
 
 def test_help_defaults_are_the_library_defaults():
-    # source: gearcad.planetary's constants (the parser repeats them to stay light)
+    # source: gearcad.ratio.planetary_set's constants (the parser repeats them to stay light)
     import gearcad.cli.ratio as cli
-    import gearcad.planetary as lib
+    import gearcad.ratio.planetary_set as lib
 
     assert (cli.MEMBERS, cli.DEFAULT_PLANETS, cli.MAX_PLANETS, cli.DEFAULT_MAX_RING_TEETH, cli.NEIGHBOUR_MARGIN) == (
         lib.MEMBERS, lib.DEFAULT_PLANETS, lib.MAX_PLANETS, lib.DEFAULT_MAX_RING_TEETH, lib.NEIGHBOUR_MARGIN)

@@ -17,7 +17,7 @@ import pytest
 
 from gearcad.cli import main
 from gearcad.errors import InputError
-from gearcad.kinematics import compound_ratio
+from gearcad.ratio.kinematics import compound_ratio
 from gearcad.ratio import make_limits, parse_target, solve_compound
 from gearcad.ratio.reach import largest_stage_ratio, reach_of
 from gearcad.ratio.train import chain_ratio

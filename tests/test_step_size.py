@@ -10,8 +10,8 @@ import re
 import pytest
 
 from gearcad.export.step_compact import share_geometry
-from gearcad.plan import plan_train
-from gearcad.trainfile import parse_train
+from gearcad.trains.planner import plan_train
+from gearcad.trains.trainfile import parse_train
 
 pytestmark = pytest.mark.slow
 

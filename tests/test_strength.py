@@ -14,9 +14,9 @@ from gearcad.errors import InputError
 from gearcad.geometry.gear import SpurGear
 from gearcad.geometry.generate import tooth_profile
 from gearcad.materials import load_material
-from gearcad.pair import make_pair
+from gearcad.meshes.pair import make_pair
 from gearcad.profiles import load_tooth_system
-from gearcad.strength import (
+from gearcad.meshes.strength import (
     CAUTION,
     PROCESS_CLASS,
     bending_stress,

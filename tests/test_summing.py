@@ -8,7 +8,7 @@ import pytest
 import sympy
 
 from gearcad.ratio import parse_target
-from gearcad.summing import solve_summing, summing_ratio
+from gearcad.ratio.summing import solve_summing, summing_ratio
 
 
 def willis_carrier_speed(sun_speed, ring_speed, sun, ring):
@@ -81,8 +81,8 @@ def test_bad_kind_and_planet_count():
 
 def test_every_summing_result_agrees_with_the_kinematic_model():
     # The network model (Willis on every mesh, exact rationals) against the search's own formula.
-    from gearcad.kinematics import network_ratio
-    from gearcad.summing import summing_network
+    from gearcad.ratio.kinematics import network_ratio
+    from gearcad.ratio.summing import summing_network
 
     for kind, planets in (("mean", 3), ("planetary", 3)):
         for t in solve_summing(parse_target("0.4142"), list(range(12, 41)), kind, 3, planets=planets, one_axis=False):
@@ -148,7 +148,7 @@ def test_one_axle_search_matches_exhaustive_search_on_a_small_range(expression, 
 
 
 def test_one_axle_results_keep_every_rule_and_the_prime_numerator_stays_exact():
-    from gearcad.summing import IDLER_GAP, RING_FIT, _ring_tips_clear
+    from gearcad.ratio.summing import IDLER_GAP, RING_FIT, _ring_tips_clear
 
     best = solve_summing(parse_target("127/200"), list(range(12, 101)), "mean", 1, min_axis=51)[0]
     assert best.ratio == Fraction(127, 200)
@@ -164,9 +164,9 @@ def test_one_axle_results_keep_every_rule_and_the_prime_numerator_stays_exact():
 
 def test_ring_tip_rule_agrees_with_the_internal_pair_check():
     # The closed form used by the search against gearcad.internal's full check (unshifted, module 1).
-    from gearcad.internal import analyse_internal_pair, make_internal_pair
+    from gearcad.meshes.internal import analyse_internal_pair, make_internal_pair
     from gearcad.profiles import load_tooth_system
-    from gearcad.summing import _ring_tips_clear
+    from gearcad.ratio.summing import _ring_tips_clear
 
     system = load_tooth_system("iso53-a")
     for planet, ring in [(18, 160), (18, 162), (20, 62), (20, 66), (24, 38), (24, 42), (30, 40), (30, 70)]:
@@ -177,7 +177,7 @@ def test_ring_tip_rule_agrees_with_the_internal_pair_check():
 
 def brute_planetary_one_axle(target, teeth, max_stage_ratio, planets):
     """Best (ratio, teeth) over every pair of stages and every set, under the one-axle and ring rules (numpy)."""
-    from gearcad.summing import IDLER_GAP, RING_FIT, _planetary_sets
+    from gearcad.ratio.summing import IDLER_GAP, RING_FIT, _planetary_sets
 
     z = np.array(teeth)
     a, b = (m.ravel() for m in np.meshgrid(z, z, indexing="ij"))

@@ -12,8 +12,9 @@ import shapely
 import sympy
 
 from gearcad.cli import main
-from gearcad.plan import placed_holes, placed_outline, plan_train
-from gearcad.trainfile import parse_train, train_to_toml
+from gearcad.trains.plan import placed_holes, placed_outline
+from gearcad.trains.planner import plan_train
+from gearcad.trains.trainfile import parse_train, train_to_toml
 
 MEAN = """name = "sum-mean"
 module = 1.0
@@ -148,7 +149,7 @@ def test_planet_pins_sit_on_the_carrier_discs(plan):
 def test_the_spur_differentials_assembly_rule_agrees_with_phasing_every_mesh(sun, pairs, monkeypatch):
     # The closed form 2 z_s / N (derived in gearcad.differential) against the plan's phasing of every mesh with the
     # rule switched off: phasing fails exactly when the rule does.
-    import gearcad.differential as differential
+    import gearcad.trains.differential as differential
     from gearcad.errors import InputError
 
     monkeypatch.setattr(differential, "mean_assembles", lambda z, n: True)
@@ -164,7 +165,7 @@ def test_the_spur_differentials_assembly_rule_agrees_with_phasing_every_mesh(sun
 def test_a_spacing_that_breaks_the_rule_shows_the_clash(monkeypatch):
     # 19 suns, 3 pairs: 2 x 19 / 3 is not whole.  Forced through, sun B phased to pair 1 overlaps another pair's
     # planet (shapely), which is what the rule forbids.
-    import gearcad.differential as differential
+    import gearcad.trains.differential as differential
 
     monkeypatch.setattr(differential, "mean_assembles", lambda z, n: True)
     monkeypatch.setattr(differential, "same_phase", lambda angles, teeth: True)

@@ -6,7 +6,7 @@ import json
 import sys
 from typing import Any, Iterable, Sequence
 
-from ..jsonable import jsonable
+from ..export.jsonable import jsonable
 
 __all__ = ["print_json", "table", "fmt"]
 

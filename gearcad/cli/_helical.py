@@ -59,7 +59,7 @@ def face_width(args: argparse.Namespace, normal_module: float) -> float:
 
 def run_helical(args: argparse.Namespace, system, z1: int, z2: int, show) -> int:
     """Build, check and show a helical pair; ``show`` is ``pair._show``."""
-    from ..checks import analyse_pair
+    from ..meshes.checks import analyse_pair
     from ..meshes.helical import hand_findings, helical_mesh, in_normal_terms, make_helical_pair, overlap_finding
 
     helix, hand = _check_options(args, z2)
@@ -88,9 +88,9 @@ def run_helical(args: argparse.Namespace, system, z1: int, z2: int, show) -> int
 def _run_internal(args: argparse.Namespace, system, z1: int, z2: int, helix: float, hand: str, show) -> int:
     """A helical pinion in a helical ring (same hand): figures and checks of the transverse section."""
     from ..errors import InputError
-    from ..internal import analyse_internal_pair
+    from ..meshes.internal import analyse_internal_pair
     from ..meshes.helical import hand_findings, helical_mesh, in_normal_terms, make_helical_internal_pair, overlap_finding
-    from .pair import internal_to_dict, render_internal
+    from ._pairview import internal_to_dict, render_internal
 
     if args.centre is not None:
         raise InputError("--centre is not available for an internal pair; give the shifts with --shift X1 X2")
@@ -165,13 +165,13 @@ def _helical_keys(mesh, width: float, herringbone: bool, gap: float) -> dict:
 
 
 def _spur_dict(a) -> dict:
-    from .pair import analysis_to_dict
+    from ._pairview import analysis_to_dict
 
     return analysis_to_dict(a)
 
 
 def _spur_render():
-    from .pair import render
+    from ._pairview import render
 
     return render
 
@@ -185,7 +185,7 @@ def _zero_helix_keys(a) -> dict:
 
 def helical_to_dict(a, info: dict) -> dict:
     """JSON of a helical pair: the spur keys in the normal section plus the helical contract keys (mm, degrees)."""
-    from .pair import analysis_to_dict
+    from ._pairview import analysis_to_dict
 
     mesh = info["mesh"]
     p = a.pair
@@ -212,7 +212,7 @@ def helical_to_dict(a, info: dict) -> dict:
 
 def render_helical(a, info: dict, rating=None) -> str:
     """The readable table of a helical pair (and its load rating, if any)."""
-    from .pair import _closing, _rating_lines
+    from ._pairview import verdict_lines, mesh_rating_lines
 
     mesh = info["mesh"]
     p = a.pair
@@ -259,7 +259,7 @@ def render_helical(a, info: dict, rating=None) -> str:
     findings = list(a.findings) + (list(rating.findings()) if rating else [])
     rating_lines = []
     if rating:
-        rating_lines = _rating_lines(rating)
+        rating_lines = mesh_rating_lines(rating)
         rating_lines.insert(-1, f"  helix factors: bending Y_beta {rating.bending_helix_factor:.3f}, contact Z_beta "
                                 f"{rating.contact_helix_factor:.3f} (ISO 6336, from memory); Lewis Y of the virtual spur gear")
     return "\n".join([
@@ -267,5 +267,5 @@ def render_helical(a, info: dict, rating=None) -> str:
         table(rows, header=("gear figures (mm)", "gear 1", "gear 2")), "",
         table(mesh_rows, header=("mesh", "")), "",
         *rating_lines,
-        *_closing(findings),
+        *verdict_lines(findings),
     ])

@@ -16,10 +16,10 @@ def add_load_options(parser: argparse.ArgumentParser) -> None:
 
 
 def load_from_args(args: argparse.Namespace):
-    """An :class:`gearcad.plan.InputLoad`, or None when no load was asked for."""
+    """An :class:`gearcad.trains.plan.InputLoad`, or None when no load was asked for."""
     from ..errors import InputError
-    from ..plan import InputLoad
-    from ..strength import torque_from_power
+    from ..trains.plan import InputLoad
+    from ..meshes.strength import torque_from_power
     from ..validate import positive
 
     if args.torque is None and args.power is None:

@@ -75,7 +75,8 @@ def stage_counts_from_args(args: argparse.Namespace) -> tuple[int, ...]:
 
 def planetary_query_from_args(args: argparse.Namespace, target: Any, count: int | None = None) -> Any:
     """The planetary search of the options (``--planets``, ``--fixed``, ``--input``, ``--stepped``, ...)."""
-    from ..planetary import NEIGHBOUR_MARGIN, make_arrangement, make_query
+    from ..ratio.planetary_set import NEIGHBOUR_MARGIN, make_arrangement
+    from ..ratio.planetary import make_query
     from ..profiles import load_tooth_system
     from ..ratio.tolerance import count_value
 

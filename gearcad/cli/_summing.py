@@ -43,8 +43,8 @@ def _least_axis(kind: str, planets: int) -> int:
     """Half-modules from the input shaft to the axle that the default mean differential needs (module 1, bore 3 mm)."""
     import math
 
-    from ..differential import axle_room
-    from ..trainspec import SummingSpec
+    from ..trains.differential import axle_room
+    from ..trains.spec import SummingSpec
 
     return math.ceil(2 * axle_room(SummingSpec("mean", planets=planets), 1.0) - 1e-9) if kind == "mean" else 0
 
@@ -52,10 +52,10 @@ def _least_axis(kind: str, planets: int) -> int:
 def run_summing(args: argparse.Namespace, limits) -> int:
     """Solve, check every result with the kinematic model, print."""
     from ..errors import GearcadError, InputError
-    from ..kinematics import network_ratio
+    from ..ratio.kinematics import network_ratio
     from ..ratio.tolerance import tolerance_value
     from ..ratio.target import parse_target
-    from ..summing import solve_summing, summing_network
+    from ..ratio.summing import solve_summing, summing_network
 
     target = parse_target(args.target)
     if args.tolerance is not None:

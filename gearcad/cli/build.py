@@ -146,8 +146,8 @@ def build_and_write(spec, args: argparse.Namespace, extra_files=()) -> int:
     nothing is written (exit 1).
     """
     from ..export.bundle import prepare_folder, write_plan
-    from ..plan import plan_train
-    from ..report import report_data
+    from ..trains.planner import plan_train
+    from ..export.report import report_data
 
     options = _options(args, extra_files)
     folder = Path(args.out) if args.out else Path("output") / spec.name
@@ -217,8 +217,8 @@ def solved(spec):
     """``spec`` itself, or, when it has no stages but a [solve] table, the solved spec and its train file text."""
     if spec.stages or spec.planetary is not None:
         return spec, ()
-    from ..design import solve_train_spec
-    from ..trainfile import train_to_toml
+    from ..trains.stages import solve_train_spec
+    from ..trains.trainfile import train_to_toml
 
     spec, _ = solve_train_spec(spec)
     return spec, (("train.toml", train_to_toml(spec)),)
@@ -226,7 +226,7 @@ def solved(spec):
 
 def run(args: argparse.Namespace) -> int:
     """Run ``build``."""
-    from ..trainfile import read_train
+    from ..trains.trainfile import read_train
 
     spec, extra = solved(read_train(args.train))
     return build_and_write(spec, args, extra)

@@ -29,7 +29,7 @@ def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParse
 
 def run(args: argparse.Namespace) -> int:
     """Run ``demo``."""
-    from ..trainfile import parse_train
+    from ..trains.trainfile import parse_train
 
     text = resources.files("gearcad").joinpath("demo", DEMO_FILE).read_text(encoding="utf-8")
     spec, extra = solved(parse_train(text, f"gearcad/demo/{DEMO_FILE}"))

@@ -66,8 +66,8 @@ def run(args: argparse.Namespace) -> int:
 
     from ..errors import InputError, ToleranceError
     from ..ratio.inventory import read_inventory
-    from ..trainfile import train_to_toml
-    from ..trains.choose import design
+    from ..trains.trainfile import train_to_toml
+    from ..trains.design import design
 
     if args.kind != "summing" and (args.differential or args.separate_axes):
         raise InputError("--differential and --separate-axes apply only to --kind summing")

@@ -205,8 +205,8 @@ def _build_missing(result, args: argparse.Namespace, written: list[str]) -> int:
 
     from ..export.bundle import BuildOptions, write_plan
     from ..lathe.missing import missing_gear_spec, missing_gears
-    from ..plan import plan_train
-    from ..trainfile import train_to_toml
+    from ..trains.planner import plan_train
+    from ..trains.trainfile import train_to_toml
 
     gears = missing_gears(result)
     if not gears:

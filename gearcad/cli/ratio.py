@@ -326,11 +326,11 @@ FAR_OFF = 0.01
 
 
 def _run_planetary(args: argparse.Namespace) -> int:
-    from ..planetary import solve_planetary
+    from ..ratio.planetary import solve_planetary
     from ..ratio.solve import within_tolerance
     from ..ratio.target import parse_target
     from ..ratio.tolerance import DESIGN_TOLERANCE, tolerance_value
-    from ..trains.choose import planetary_alternatives
+    from ..trains.design import planetary_alternatives
 
     target = parse_target(args.target)
     if args.tolerance is not None:

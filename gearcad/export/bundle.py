@@ -18,7 +18,7 @@ from pathlib import Path
 from typing import Callable
 
 from ..errors import InputError
-from ..jsonable import jsonable
+from .jsonable import jsonable
 from .atomic import atomic_write
 from .staging import MARKER, check_folder, owned_files, staged_folder
 
@@ -81,9 +81,9 @@ def write_plan(plan, folder: str | Path, options: BuildOptions = BuildOptions(),
 
 def _write_all(plan, options: BuildOptions, put, files: dict[str, dict[str, str]], note) -> None:
     """Write every file of ``plan`` to the paths ``put(part, kind, name)`` gives (which lists them in ``files``)."""
-    from ..drawings import part_drawing, plate_scene
-    from ..report import report_data, report_markdown
-    from ..sheets import flat_parts, plan_sheets, sheet_drawing, sheet_name, sheets_summary
+    from .cutting import part_drawing, plate_scene
+    from .report import report_data, report_markdown
+    from .sheets import flat_parts, plan_sheets, sheet_drawing, sheet_name, sheets_summary
     from .dxf import DXF_VERSIONS, write_dxf
     from .svg import write_svg
 

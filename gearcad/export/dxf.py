@@ -48,7 +48,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from ..errors import ExportError, InputError
-from ..drawing import CutDrawing, Label, MIN_SEGMENT, drawing_extents, polyline_contour
+from .neutral import CutDrawing, Label, MIN_SEGMENT, drawing_extents, polyline_contour
 from .atomic import atomic_write
 
 if TYPE_CHECKING:
@@ -212,7 +212,7 @@ def _add_contour(msp, contour: np.ndarray, layer: str, version: _Version) -> Non
 
 def _add_spline_contour(msp, pieces, layer: str) -> None:
     """Lines as LINE, B-splines as SPLINE with control points and knots (degree 3, planar, closed flag if whole)."""
-    from ..drawing import LinePiece
+    from .neutral import LinePiece
 
     for piece in pieces:
         attribs = {"layer": layer}

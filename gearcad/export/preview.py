@@ -13,7 +13,7 @@ LAYER_COLOURS = ("#1f5fa8", "#c0392b", "#1e8449", "#8e44ad", "#b9770e", "#117a65
 
 
 def write_preview(scene, path: str | os.PathLike[str], dpi: int = 110) -> Path:
-    """Draw ``scene`` (a :class:`gearcad.drawings.Scene`) to a PNG file at ``path``."""
+    """Draw ``scene`` (a :class:`gearcad.export.cutting.Scene`) to a PNG file at ``path``."""
     import matplotlib
 
     matplotlib.use("Agg")

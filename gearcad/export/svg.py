@@ -30,7 +30,7 @@ import numpy as np
 
 from ..errors import InputError
 from .atomic import atomic_write
-from ..drawing import CutDrawing, Label, drawing_extents
+from .neutral import CutDrawing, Label, drawing_extents
 
 __all__ = ["DEFAULT_COLOURS", "HAIRLINE", "CAP_HEIGHT_PER_EM", "build_svg", "write_svg", "bulge_radius"]
 

@@ -3,7 +3,7 @@
 Each missing gear is described as a one-stage train: the missing gear meshing
 with its mate in the train that needs it, at the machine's module, with the
 machine's bore, keyway, face width, tooth system and fabrication profile.  The
-usual build pipeline (:func:`gearcad.plan.plan_train`, then
+usual build pipeline (:func:`gearcad.trains.plan.plan_train`, then
 :func:`gearcad.export.bundle.write_plan`) turns it into files and a report with
 the checks of that mesh.  Pure: no file is read or written here.
 """
@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ..trainspec import GearSpec, Keyway, StageSpec, TrainSpec
+from ..trains.spec import GearSpec, Keyway, StageSpec, TrainSpec
 from .frame import Setup
 from .machine import Machine
 from .table import ThreadTable

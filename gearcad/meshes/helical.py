@@ -40,7 +40,7 @@ from dataclasses import dataclass
 from ..errors import InputError
 from ..geometry.gear import SHIFT_RANGE, SpurGear
 from ..geometry.involute import inv, inv_inverse
-from ..pair import GearPair, make_pair
+from .pair import GearPair, make_pair
 from ..profiles import ToothSystem
 from ..validate import as_int, finite, in_range, positive
 
@@ -418,7 +418,7 @@ def _as_helical(gear: SpurGear, hand: str) -> HelicalGear:
 def make_helical_pair(teeth1: int, teeth2: int, normal_module: float, system: ToothSystem, helix: float,
                       hand: str = "right", *, shifts: tuple[float, float] | None = None, centre: float | None = None,
                       backlash: float = 0.0, centre_allowance: float = 0.0, shorten_tips: bool = True) -> GearPair:
-    """An external helical pair (opposite hands) from its normal figures; see :func:`gearcad.pair.make_pair`.
+    """An external helical pair (opposite hands) from its normal figures; see :func:`gearcad.meshes.pair.make_pair`.
 
     Parameters
     ----------
@@ -463,14 +463,14 @@ def make_helical_internal_pair(pinion_teeth: int, ring_teeth: int, normal_module
                                centre_allowance: float = 0.0, shorten_tips: bool = True, cutter_teeth: int | None = None,
                                cutter_shift: float = 0.0):
     """A helical pinion in a helical ring of the same hand, from the normal figures; see
-    :func:`gearcad.internal.make_internal_pair` (shifts in ISO 21771's signs, normal section).
+    :func:`gearcad.meshes.internal.make_internal_pair` (shifts in ISO 21771's signs, normal section).
 
     The ring is the transverse section cut by a helical pinion-type cutter; its flanks are exact
     involutes of the transverse base circle, while the cutter's tip round is taken as a circle of the
     normal radius in the transverse plane (the shaper cutter's own tip, an approximation of the root
     fillet only).  ``helix`` 0 gives exactly the spur pair.
     """
-    from ..internal import InternalPair, make_internal_pair
+    from .internal import InternalPair, make_internal_pair
 
     helix = check_helix(math.degrees(finite(helix, "helix angle")))
     check_hand(hand)
@@ -568,7 +568,7 @@ def helical_mesh(pair: GearPair, transverse_contact: float, transverse_backlash:
 
 def hand_findings(hand1: str, hand2: str, internal: bool = False) -> list:
     """The hands of a pair: opposite on an external pair, the same on an internal one."""
-    from ..checks import Finding
+    from .checks import Finding
 
     meshes = (hand1 == hand2) if internal else (hand1 != hand2)
     rule = "the same hand (internal pair)" if internal else "opposite hands (external pair)"
@@ -580,7 +580,7 @@ def hand_findings(hand1: str, hand2: str, internal: bool = False) -> list:
 
 def overlap_finding(mesh: HelicalMesh) -> "object":
     """Overlap ratio against :data:`MIN_OVERLAP_RATIO` (common practice): a warning below 1."""
-    from ..checks import Finding
+    from .checks import Finding
 
     e = mesh.overlap_ratio
     if e < MIN_OVERLAP_RATIO:
@@ -606,7 +606,7 @@ def in_normal_terms(analysis):
         label = finding.check[len("undercut "):]
         fig = analysis.gears[0 if label in ("gear 1", "pinion") else 1]
         gear = fig.gear
-        from ..checks import min_shift_without_undercut
+        from .checks import min_shift_without_undercut
 
         # least transverse shift by the rack-generation condition, the thinning's deeper feed included
         x_min_t = (min_shift_without_undercut(gear.teeth, gear.pressure_angle, gear.system.straight_flank_depth)

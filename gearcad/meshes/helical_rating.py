@@ -1,6 +1,6 @@
 """Load rating of a helical pair: Lewis bending of the virtual spur gear, Hertz contact in the normal section.
 
-The spur rating of :mod:`gearcad.strength` carried over to helical teeth with the
+The spur rating of :mod:`gearcad.meshes.strength` carried over to helical teeth with the
 factors ISO 6336 gives for the helix (from memory: verify against your copy):
 
 * **Bending** (ISO 6336-3 idea, Lewis form): the tooth root is rated in the normal
@@ -26,11 +26,11 @@ import dataclasses
 import math
 from dataclasses import dataclass
 
-from ..checks import Finding
+from .checks import Finding
 from ..geometry.gear import SpurGear
 from ..materials import Material
-from ..pair import GearPair
-from ..strength import (GearRating, PairRating, contact_stress, lewis_form_factor, pitch_line_speed, tangential_load,
+from .pair import GearPair
+from .strength import (GearRating, PairRating, contact_stress, lewis_form_factor, pitch_line_speed, tangential_load,
                         velocity_factor)
 from ..validate import positive
 from .helical import HelicalGear, axial_force, overlap_ratio

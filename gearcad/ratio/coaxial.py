@@ -4,7 +4,7 @@ Two stages form a reverted pair when they share one centre distance.  With
 one module that means equal tooth sums ``z1 + z2 == z3 + z4``.  With a shift
 limit ``X`` the sums may differ where profile shift coefficients within
 ``+-X`` on each gear bring both stages to a common centre distance (computed
-with :func:`gearcad.pair.total_shift_for_centre`; module 1 is used because
+with :func:`gearcad.meshes.pair.total_shift_for_centre`; module 1 is used because
 shift coefficients do not depend on the module).  Four stages are two
 reverted pairs, each pair with its own centre distance.
 
@@ -23,7 +23,7 @@ from functools import lru_cache
 import numpy as np
 
 from ..errors import InputError
-from ..pair import centre_distance_for_shift, split_shift, total_shift_for_centre
+from ..meshes.pair import centre_distance_for_shift, split_shift, total_shift_for_centre
 from ..validate import finite
 from .compound import _allowed_stage_grid
 from .geometry_link import pressure_angle
@@ -62,7 +62,7 @@ def common_centre_shifts(stage1: tuple[int, int], stage2: tuple[int, int], limit
 
     The common centre distance is where the two shift sums are equal and
     opposite (or the nearest end of the reachable range); each sum is shared
-    by :func:`gearcad.pair.split_shift`, or equally where that rule would
+    by :func:`gearcad.meshes.pair.split_shift`, or equally where that rule would
     pass the limit.
     """
     alpha = pressure_angle()

@@ -81,7 +81,7 @@ def chain_ratio(stages: Sequence[tuple[int, int]], idler: int | None = None) -> 
     Willis' equation of each external mesh with the frame as carrier,
     ``z_a w_a + z_b w_b = 0``, solved along the chain (an idler adds a mesh and
     changes only the sign).  It is the kinematic model of
-    :func:`gearcad.kinematics.compound_ratio` for this one network shape,
+    :func:`gearcad.ratio.kinematics.compound_ratio` for this one network shape,
     solved without a general linear system, so the ratio solver starts without
     sympy; ``tests/test_ratio_reach.py`` checks that both agree.
     """

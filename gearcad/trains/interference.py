@@ -21,7 +21,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..checks import Finding
+from ..meshes.checks import Finding
 
 __all__ = ["Solid", "AssemblyCheck", "check_assembly", "solids_of"]
 

@@ -19,8 +19,8 @@ import dataclasses
 import math
 from dataclasses import dataclass
 
-from ..checks import Finding
-from ..trainspec import JOINS
+from ..meshes.checks import Finding
+from .spec import JOINS
 
 __all__ = ["Join", "JOINS", "DEFAULT_JOIN", "join_compounds"]
 
@@ -52,7 +52,7 @@ def _spacer_radius(rods, shaft) -> float:
 
 
 def _pinned(plan, shaft, gears, rods):
-    from ..plan import MIN_RIM
+    from .plan import MIN_RIM
 
     fab = plan.fabrication
     s = shaft

@@ -31,116 +31,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..checks import Finding
+from ..meshes.checks import Finding
 from ..errors import InputError
 from ..geometry.shape import Loop, Part, arc_curve, line_curve, rounded_rectangle
+from .hardware import (EDGE_RULE, END_SHAKE, FRAME, Mechanism, PIPE_WALL, REACH, Rod, SPACER_WALL, STUD_PIPE,
+                       ShaftSupport, Sweep, screw_length, screw_size)
 
-__all__ = ["Rod", "Sweep", "ShaftSupport", "Mechanism", "complete_plan", "END_SHAKE", "REACH", "STUD_PIPE",
-           "PIPE_WALL", "SPACER_WALL", "EDGE_RULE", "screw_size", "bridge_room", "FRAME"]
-
-END_SHAKE = 0.2  # axial play left on every shaft, mm; common practice for small clockwork (0.1-0.2 mm, from memory)
-REACH = 3.0  # input and output shafts stand out of their plate by this many diameters (a collar and a hand); our choice
-STUD_PIPE = 1.5  # least length of a stud's pipe, in bore diameters (the issue's rule; common practice for a bush)
-PIPE_WALL = 0.5  # wall of pipes and spacer tubes, mm (telescoping brass tube); common practice
-SPACER_WALL = 1.0  # wall of the spacers on a shaft, mm; common practice
-EDGE_RULE = 1.0  # no hole nearer a plate edge than this many of its own diameters (the issue's rule)
-FRAME = ("back-plate", "front-plate")
-# ISO 273 medium clearance holes (from memory): hole diameter -> thread.
-_CLEARANCE = ((2.4, "M2", 2.0), (2.9, "M2.5", 2.5), (3.4, "M3", 3.0), (4.5, "M4", 4.0), (5.5, "M5", 5.0),
-              (6.6, "M6", 6.0), (9.0, "M8", 8.0), (11.0, "M10", 10.0), (13.5, "M12", 12.0))
-_SCREW_LENGTHS = (6, 8, 10, 12, 16, 20, 25, 30, 35, 40, 45, 50, 55, 60, 65, 70, 80, 90, 100, 110, 120, 130, 140, 150,
-                  160, 180, 200)  # ISO 4762 preferred lengths, mm (from memory)
-
-
-@dataclass(frozen=True)
-class Rod:
-    """A round bought part placed in the assembly: shaft, axle, pin, stud, pipe, spacer, pillar or screw.
-
-    ``diameter`` outside and ``bore`` inside (0: solid), ``z0`` to ``z1`` along the axis, mm.
-    """
-
-    name: str
-    kind: str
-    x: float
-    y: float
-    diameter: float
-    bore: float
-    z0: float
-    z1: float
-    supports: tuple[str, ...] = ()
-    carries: tuple[str, ...] = ()
-    thread: str = ""
-
-    @property
-    def length(self) -> float:
-        """Length along the axis, mm."""
-        return self.z1 - self.z0
-
-
-@dataclass(frozen=True)
-class Sweep:
-    """The space a part sweeps: an annulus (``inner`` 0: a disc) about ``(x, y)`` from ``z0`` to ``z1``, mm."""
-
-    name: str
-    x: float
-    y: float
-    outer: float
-    inner: float
-    z0: float
-    z1: float
-
-
-@dataclass(frozen=True)
-class ShaftSupport:
-    """How one shaft of the plan is held: its kind, supports, length and free span (mm), its pipe if any."""
-
-    name: str
-    kind: str  # arbor (turns in two supports), axle (fixed; tubes turn on it), pin, stud, pipe
-    supports: tuple[str, ...]
-    length: float
-    free_span: float
-    pipe: str | None = None
-    around: str | None = None  # a pipe: the shaft it turns on
-
-
-@dataclass(frozen=True)
-class Mechanism:
-    """Supports, bought parts, sweeps and findings of a plan; ``width`` and ``height`` of the (grown) frame plates."""
-
-    shafts: tuple[ShaftSupport, ...]
-    rods: tuple[Rod, ...]
-    sweeps: tuple[Sweep, ...]
-    bridges: tuple[str, ...]
-    margin: float
-    width: float
-    height: float
-    findings: tuple[Finding, ...]
-    screw: str
-    joins: tuple = ()  # gearcad.trains.joins.Join, one per compound pair
-    solids: int = 0  # solids the interference check saw
-    overlaps: tuple = ()  # (part, part, depth mm) it found; empty when clean
-
-    @property
-    def pillars(self) -> tuple[Rod, ...]:
-        """The pillars (plate to plate, plate to bridge, ring sleeves)."""
-        return tuple(r for r in self.rods if r.kind == "pillar")
-
-
-def screw_size(hole: float) -> tuple[str, float]:
-    """The thread (name, nominal diameter in mm) whose ISO 273 medium clearance hole fits ``hole`` mm."""
-    fits = [(name, d) for clearance, name, d in _CLEARANCE if clearance <= hole + 1e-9]
-    if not fits:
-        raise InputError(f"spacer_hole {hole:g} mm is too small for an M2 screw (2.4 mm clearance hole at least)")
-    return fits[-1]
-
-
-def _screw_length(length: float) -> float:
-    return float(next((L for L in _SCREW_LENGTHS if L >= length - 1e-9), math.ceil(length)))
-
-
-def bridge_room(thickness: float, gap: float) -> float:
-    """Room a bridge takes between two layers: its thickness and one layer gap, mm."""
-    return thickness + gap
+__all__ = ["complete_plan"]
 
 
 # -- sweeps ------------------------------------------------------------------------------------
@@ -484,8 +381,8 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
     _, p1, p2 = best
     name = f"bridge-{s.name}"
     holes = ((s.x, s.y, s.diameter + fab.bore_clearance),) + tuple((float(p[0]), float(p[1]), hole) for p in (p1, p2))
-    from ..epicyclic import kerf_cut
-    from ..plan import PlannedPlate
+    from .epicyclic import kerf_cut
+    from .plan import PlannedPlate
 
     part = Part(name, _stadium(p1, p2, half, plan.tolerance), (), holes)  # too narrow for a marking
     w.bridges.append(PlannedPlate(name, part, kerf_cut(part, fab, plan.tolerance), zb))
@@ -512,7 +409,7 @@ def _pillar(w: _Work, name: str, x: float, y: float, z0: float, z1: float, holds
         w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, hi, holds, thread=w.screw))
         return
     nut = 0.8 * w.nominal + 0.5 * w.nominal  # nut (ISO 4032, 0.8 d, from memory) and a washer
-    length = _screw_length(hi - lo + nut)
+    length = screw_length(hi - lo + nut)
     w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, lo + length, holds, thread=w.screw))
 
 
@@ -598,8 +495,8 @@ def _frame_holes(w: _Work, z: float) -> tuple[tuple[float, float, float], ...]:
 
 
 def _frame_plates(w: _Work, width: float, height: float) -> list:
-    from ..epicyclic import kerf_cut
-    from ..plan import PlannedPlate
+    from .epicyclic import kerf_cut
+    from .plan import PlannedPlate
 
     plan, fab = w.plan, w.fab
     out = []

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-from ..checks import Finding
+from ..meshes.checks import Finding
 from ..ratio.tolerance import DESIGN_TOLERANCE
 
 __all__ = ["target_findings"]

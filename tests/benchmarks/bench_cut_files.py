@@ -17,7 +17,7 @@ import numpy as np
 def spline_figures(teeth: int, module: float) -> None:
     import shapely
 
-    from gearcad.drawings import part_drawing
+    from gearcad.export.cutting import part_drawing
     from gearcad.geometry.bspline import evaluate
     from gearcad.geometry.gear import SpurGear
     from gearcad.geometry.shape import Part, gear_loop
@@ -37,12 +37,12 @@ def spline_figures(teeth: int, module: float) -> None:
 
 
 def main() -> None:
-    from gearcad.design import solve_train_spec
-    from gearcad.plan import plan_train
-    from gearcad.sheets import flat_parts, plan_sheets
-    from gearcad.drawings import part_drawing
+    from gearcad.trains.stages import solve_train_spec
+    from gearcad.trains.planner import plan_train
+    from gearcad.export.sheets import flat_parts, plan_sheets
+    from gearcad.export.cutting import part_drawing
     from importlib import resources
-    from gearcad.trainfile import parse_train
+    from gearcad.trains.trainfile import parse_train
 
     for teeth, module in ((12, 1.0), (40, 1.0), (91, 1.0), (150, 0.5)):
         spline_figures(teeth, module)

@@ -38,7 +38,7 @@ def timed(label: str, fn) -> float:
 
 
 def per_gear(teeth: int) -> None:
-    from gearcad.drawings import part_drawing
+    from gearcad.export.cutting import part_drawing
     from gearcad.export.dxf import write_dxf
     from gearcad.export.step import build_solid, write_step
     from gearcad.geometry import SpurGear
@@ -61,8 +61,9 @@ def mechanism_ratio() -> None:
     from importlib import resources
 
     from gearcad.cli.build import solved
-    from gearcad.plan import _plan_compound, plan_train
-    from gearcad.trainfile import parse_train
+    from gearcad.trains.plan import _plan_compound
+    from gearcad.trains.planner import plan_train
+    from gearcad.trains.trainfile import parse_train
     from gearcad.trains.supports import complete_plan
 
     text = resources.files("gearcad").joinpath("demo", "moon-phase.toml").read_text(encoding="utf-8")

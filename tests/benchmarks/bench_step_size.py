@@ -75,8 +75,8 @@ def main() -> None:
 
     from gearcad.cli.build import solved
     from gearcad.export.step import AssemblyItem, assembly_step, build_solid, write_step
-    from gearcad.plan import plan_train
-    from gearcad.trainfile import parse_train
+    from gearcad.trains.planner import plan_train
+    from gearcad.trains.trainfile import parse_train
 
     plan = plan_train(parse_train('name = "g"\nmodule = 1\nthickness = 3\n[[stage]]\ndriver = 20\ndriven = 91\n'))
     gear = build_solid(plan.gears[1].part, 3.0, plan.tolerance).solid

@@ -37,10 +37,10 @@ idler = 20
 
 def main() -> None:
     from gearcad.export.bundle import BuildOptions, write_plan
-    from gearcad.plan import plan_train
+    from gearcad.trains.planner import plan_train
     from gearcad.ratio import parse_target
-    from gearcad.summing import solve_summing
-    from gearcad.trainfile import parse_train
+    from gearcad.ratio.summing import solve_summing
+    from gearcad.trains.trainfile import parse_train
 
     teeth = list(range(12, 101))
     print(f"{'differential':<14}{'rules':<16}{'target':<20}{'time s':>8}  {'best error':>11}")

@@ -28,13 +28,13 @@ import numpy as np
 
 from .checks import (MIN_CONTACT_RATIO, MIN_TIP_THICKNESS, Finding, backlash_finding, clearance_findings,
                      min_shift_without_undercut)
-from .errors import GeometryError, InputError
-from .geometry.gear import PointedTeethError, SpurGear
-from .geometry.generate import tooth_profile
-from .geometry.internal import RingGear, ring_profile, ring_tooth_depth, to_inner_frame, to_ring_frame
-from .geometry.involute import inv, inv_inverse
-from .profiles import ToothSystem
-from .validate import as_int, positive
+from ..errors import GeometryError, InputError
+from ..geometry.gear import PointedTeethError, SpurGear
+from ..geometry.generate import tooth_profile
+from ..geometry.internal import RingGear, ring_profile, ring_tooth_depth, to_inner_frame, to_ring_frame
+from ..geometry.involute import inv, inv_inverse
+from ..profiles import ToothSystem
+from ..validate import as_int, positive
 
 __all__ = [
     "InternalPair",
@@ -81,6 +81,19 @@ def internal_centre_distance(pinion_teeth: int, ring_teeth: int, module: float, 
     alpha_w = internal_working_pressure_angle(pinion_teeth, ring_teeth, pressure_angle, shift_sum)
     return internal_standard_centre_distance(pinion_teeth, ring_teeth, module) * math.cos(pressure_angle) / math.cos(alpha_w)
 
+
+
+def internal_shift_sum_for_centre(pinion_teeth: int, ring_teeth: int, module: float, pressure_angle: float,
+                                  centre: float) -> float:
+    """The shift sum ``x1 + x2`` that gives zero backlash at ``centre`` (mm): the inverse of
+    :func:`internal_centre_distance`, ``x1 + x2 = -(z2 - z1) (inv(alpha_w) - inv(alpha)) / (2 tan(alpha))`` with
+    ``cos(alpha_w) = m (z2 - z1) cos(alpha) / (2 a)``."""
+    difference = ring_teeth - pinion_teeth
+    base = module * difference * math.cos(pressure_angle) / 2
+    if not centre > base:
+        raise InputError(f"centre distance {centre:g} mm is out of reach of an internal pair of {difference} teeth "
+                         f"difference and module {module:g}: it must exceed {base:.4f} mm")
+    return -difference * (inv(math.acos(base / centre)) - inv(pressure_angle)) / (2 * math.tan(pressure_angle))
 
 @dataclass(frozen=True)
 class InternalPair:

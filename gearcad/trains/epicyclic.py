@@ -17,19 +17,19 @@ from fractions import Fraction
 
 import numpy as np
 
-from .checks import Finding, analyse_pair
-from .errors import GeometryError, InputError
-from .geometry.internal import RingGear, ring_part
-from .geometry.offset import offset_loop
-from .geometry.shape import Part, circle_loop, gear_loop, rounded_rectangle
-from .internal import analyse_internal_pair, make_internal_pair
-from .kinematics import direction_of
+from ..meshes.checks import Finding, analyse_pair
+from ..errors import GeometryError, InputError
+from ..geometry.internal import RingGear, ring_part
+from ..geometry.offset import offset_loop
+from ..geometry.shape import Part, circle_loop, gear_loop, rounded_rectangle
+from ..meshes.internal import analyse_internal_pair, make_internal_pair
+from ..ratio.kinematics import direction_of
 from .layout import Layout, mesh_phase
-from .pair import make_pair
+from ..meshes.pair import make_pair
 from .plan import InputLoad, Plan, PlannedGear, PlannedMesh, PlannedPlate, PlannedShaft, _system
-from .planetary import check_set, make_arrangement, make_set, set_ratio
-from .profiles import Fabrication, load_fabrication
-from .trainspec import GearSpec, TrainSpec
+from ..ratio.planetary_set import check_set, make_arrangement, make_set, set_ratio
+from ..profiles import Fabrication, load_fabrication
+from .spec import GearSpec, TrainSpec
 
 __all__ = ["plan_planetary", "ring_phase", "same_phase", "kerf_cut", "toothed_parts", "bolt_angle"]
 
@@ -94,9 +94,9 @@ def _ring_part(ring: RingGear, fixed: bool, fab: Fabrication, tolerance: float, 
 def _helical_pairs(sun_pair, ring_pair, hand: str):
     """The set's pairs with hands: the sun ``hand``; planets and ring the other (external pair opposite,
     internal pair the same)."""
-    from .internal import InternalPair
-    from .meshes.helical import HelicalGear, as_helical_ring, opposite_hand
-    from .pair import GearPair
+    from ..meshes.internal import InternalPair
+    from ..meshes.helical import HelicalGear, as_helical_ring, opposite_hand
+    from ..meshes.pair import GearPair
 
     other = opposite_hand(hand)
 
@@ -112,7 +112,7 @@ def _helical_pairs(sun_pair, ring_pair, hand: str):
 
 def _helical_mesh(mesh: PlannedMesh, thickness: float, ps) -> PlannedMesh:
     """A planned mesh of a helical set with its hands and overlap findings, undercut restated in normal shifts."""
-    from .meshes.helical import hand_findings, helical_mesh, in_normal_terms, overlap_finding
+    from ..meshes.helical import hand_findings, helical_mesh, in_normal_terms, overlap_finding
 
     internal = hasattr(mesh.pair, "ring")
     g1, g2 = (mesh.pair.pinion, mesh.pair.ring) if internal else (mesh.pair.gear1, mesh.pair.gear2)
@@ -140,7 +140,7 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
     m = spec.module
     shift_limit = ps.shift_limit
     if ps.helix:  # helical: the set is solved and built in the transverse section (gearcad.meshes.helical)
-        from .meshes.helical import transverse_system
+        from ..meshes.helical import transverse_system
 
         if load is not None:
             raise InputError("the load rating of a helical planetary set is not available yet; build it without "
@@ -161,7 +161,7 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
     if abs(ring_pair.centre_distance - centre) > 1e-6:
         raise GeometryError(f"sun and ring centre distances differ ({centre:.6f} and {ring_pair.centre_distance:.6f} mm)")
     if ps.helix:
-        from .meshes.helical import check_face_width
+        from ..meshes.helical import check_face_width
 
         sun_pair, ring_pair = _helical_pairs(sun_pair, ring_pair, ps.hand)
         check_face_width((sun_pair.gear1, sun_pair.gear2, ring_pair.pinion), spec.thickness)
@@ -173,7 +173,7 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
     if ps.fixed == "ring":
         # A fixed ring is bolted to both plates through sleeves: its bolts stand outside the planets' sweep by the
         # gear clearance (the sleeves pass the planets' layers), each hole its own diameter from the rim.
-        from .trains.supports import screw_size
+        from .hardware import screw_size
 
         sleeve = 2 * screw_size(fab.spacer_hole)[1]
         bolt_circle = max((ring.root_diameter / 2 + ring.outer_diameter / 2) / 2,
@@ -241,11 +241,11 @@ def plan_planetary(spec: TrainSpec, tolerance: float, load: InputLoad | None = N
 
 def _ratings(pset, arrangement, sun_pair, ring_pair, spec: TrainSpec, fab: Fabrication, load: InputLoad):
     """Load ratings of one planet's two meshes for ``load`` on the input member (gearcad.loads)."""
-    from .kinematics import solve_network
-    from .loads import member_torques, planet_mesh_loads
-    from .materials import load_material
-    from .planetary import set_network
-    from .strength import PROCESS_CLASS, rate_internal_pair, rate_pair
+    from ..ratio.kinematics import solve_network
+    from ..meshes.loads import member_torques, planet_mesh_loads
+    from ..materials import load_material
+    from ..ratio.planetary_set import set_network
+    from ..meshes.strength import PROCESS_CLASS, rate_internal_pair, rate_pair
 
     speeds = solve_network(set_network(pset), {arrangement.fixed: 0, arrangement.input: 1}).speeds
     torques = member_torques(speeds, arrangement.fixed, arrangement.input, arrangement.output, load.torque)

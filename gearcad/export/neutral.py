@@ -1,7 +1,7 @@
 """The neutral form of a cut file: contours as ``x, y, bulge`` rows or B-splines, circles, labels (mm).
 
 Pure data with validation; the DXF and SVG writers consume it, the planning code
-(``gearcad.drawings``) produces it from a plan.
+(``gearcad.export.cutting``) produces it from a plan.
 """
 
 from __future__ import annotations
@@ -11,8 +11,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import InputError
-from .geometry.bspline import DEGREE, LinePiece, SplinePiece
+from ..errors import InputError
+from ..geometry.bspline import DEGREE, LinePiece, SplinePiece
 
 __all__ = ["Label", "CutDrawing", "polyline_contour", "MIN_SEGMENT", "LinePiece", "SplinePiece", "arc_extremes",
            "drawing_extents", "moved_drawing", "merged_drawing"]
@@ -207,7 +207,7 @@ def _contour_points(contour: np.ndarray) -> np.ndarray:
 
 def _spline_points(pieces: tuple[LinePiece | SplinePiece, ...]) -> np.ndarray:
     """Points of a spline contour dense enough for its bounding box (64 per knot span)."""
-    from .geometry.bspline import evaluate
+    from ..geometry.bspline import evaluate
 
     points = []
     for piece in pieces:

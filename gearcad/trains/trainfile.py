@@ -36,9 +36,9 @@ import re
 from pathlib import Path
 from typing import Any
 
-from .errors import InputError
-from .inputfiles import MAX_INPUT_BYTES, parse_toml, read_text_file
-from .trainspec import GearSpec, Hub, Keyway, PlanetarySpec, SolverSpec, StageSpec, SummingSpec, TrainSpec
+from ..errors import InputError
+from ..inputfiles import MAX_INPUT_BYTES, parse_toml, read_text_file
+from .spec import GearSpec, Hub, Keyway, PlanetarySpec, SolverSpec, StageSpec, SummingSpec, TrainSpec
 
 __all__ = ["parse_train", "read_train", "train_to_toml", "LIMITS", "MAX_FILE_STAGES", "MAX_TITLE_LENGTH"]
 
@@ -257,9 +257,9 @@ def _solver(data: dict, ctx: _Context) -> SolverSpec | None:
 
 def _check_solver(solver: SolverSpec, ctx: _Context) -> None:
     """The command line's rules for the solver's options, applied to ``[solve]`` before any work."""
-    from .ratio.compound import check_stages
-    from .ratio.limits import DEFAULT_MAX_STAGE_RATIO, DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH, make_limits
-    from .ratio.target import parse_target
+    from ..ratio.compound import check_stages
+    from ..ratio.limits import DEFAULT_MAX_STAGE_RATIO, DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH, make_limits
+    from ..ratio.target import parse_target
 
     checks = (
         ("ratio", lambda: parse_target(solver.ratio)),
@@ -305,7 +305,7 @@ def _contradictions(data: dict, ctx: _Context) -> None:
 
 def _check_target(spec: TrainSpec, ctx: _Context) -> None:
     """The top-level ``target`` and ``[solve]``'s ratio must be one value when both are given."""
-    from .ratio.target import parse_target
+    from ..ratio.target import parse_target
 
     if spec.target is None:
         return

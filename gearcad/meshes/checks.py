@@ -12,8 +12,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .geometry.gear import SpurGear
-from .geometry.generate import tooth_profile
+from ..geometry.gear import SpurGear
+from ..geometry.generate import tooth_profile
 from .pair import GearPair
 
 __all__ = [
@@ -123,7 +123,7 @@ def _backlash(pair: GearPair) -> float:
     """Exact circumferential backlash on the working pitch circle at the built centre distance."""
     alpha_op = pair.operating_pressure_angle
     d_w1, d_w2 = pair.working_diameters()
-    from .geometry.involute import inv
+    from ..geometry.involute import inv
 
     def thickness(gear: SpurGear, d_w: float) -> float:
         return d_w * (gear.tooth_thickness / gear.reference_diameter + inv(gear.pressure_angle) - inv(alpha_op))

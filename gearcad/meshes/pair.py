@@ -9,11 +9,11 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .errors import InputError
-from .geometry.gear import PointedTeethError, SpurGear
-from .geometry.involute import inv, inv_inverse
-from .profiles import ToothSystem
-from .validate import as_int, positive
+from ..errors import InputError
+from ..geometry.gear import PointedTeethError, SpurGear
+from ..geometry.involute import inv, inv_inverse
+from ..profiles import ToothSystem
+from ..validate import as_int, positive
 
 __all__ = [
     "GearPair",

@@ -9,8 +9,8 @@ from __future__ import annotations
 import math
 from typing import Any, Mapping
 
-from .plan import Plan
-from .trains.parts import assembly_steps, parts_list
+from ..trains.plan import Plan
+from ..trains.parts import assembly_steps, parts_list
 
 __all__ = ["CAUTIONS", "report_data", "report_markdown", "ratio_data", "train_kind"]
 
@@ -30,8 +30,8 @@ def ratio_data(plan: Plan) -> dict[str, Any]:
     data: dict[str, Any] = {"target": target, "numerator": plan.ratio.numerator, "denominator": plan.ratio.denominator,
                             "value": float(plan.ratio), "relative_error": None, "direction": plan.direction}
     if target:
-        from .ratio.target import parse_target
-        from .ratio.train import exact_relative_error
+        from ..ratio.target import parse_target
+        from ..ratio.train import exact_relative_error
 
         parsed = parse_target(target)
         data["target_value"] = parsed.value
@@ -40,7 +40,7 @@ def ratio_data(plan: Plan) -> dict[str, Any]:
 
 
 def _target_findings(plan: Plan) -> tuple:
-    from .trains.target_check import target_findings
+    from ..trains.target_check import target_findings
 
     return target_findings(spec.target, getattr(spec, "target_tolerance", None), plan.ratio) \
         if (spec := plan.spec).target else ()
@@ -360,7 +360,7 @@ def _shaft_thrusts(plan) -> dict[str, Any]:
             loads.append((plan.shafts[g.shaft].name, g.gear.hand, drives, force))
     if not loads:
         return {}
-    from .meshes.helical import shaft_axial_forces
+    from ..meshes.helical import shaft_axial_forces
 
     return {"shaft_axial_forces": shaft_axial_forces(loads)}
 

@@ -27,22 +27,22 @@ from fractions import Fraction
 
 import numpy as np
 
-from .checks import Finding, analyse_pair
+from ..meshes.checks import Finding, analyse_pair
 from .epicyclic import kerf_cut, ring_phase, same_phase, toothed_parts
-from .errors import InputError
-from .geometry.gear import SpurGear
-from .geometry.internal import ring_loop
-from .geometry.shape import Part, circle_loop, gear_loop
-from .internal import analyse_internal_pair, make_internal_pair
-from .kinematics import Gear, Mesh, direction_of, make_network, network_ratio
+from ..errors import InputError
+from ..geometry.gear import SpurGear
+from ..geometry.internal import ring_loop
+from ..geometry.shape import Part, circle_loop, gear_loop
+from ..meshes.internal import analyse_internal_pair, make_internal_pair
+from ..ratio.kinematics import Gear, Mesh, direction_of, make_network, network_ratio
 from .layout import LayoutGear, LayoutProblem, clearance_shortfall, fit_plate, mesh_phase, shaft_sides
-from .pair import make_pair
+from ..meshes.pair import make_pair
 from .plan import (MIN_RIM, InputLoad, Plan, PlannedGear, PlannedMesh, PlannedPlate, PlannedShaft, _check_bore, _system,
                    frame_plates)
-from .planetary import check_set, make_set
-from .profiles import Fabrication, load_fabrication
-from .summing import summing_ratio
-from .trainspec import GearSpec, StageSpec, SummingSpec, TrainSpec
+from ..ratio.planetary_set import check_set, make_set
+from ..profiles import Fabrication, load_fabrication
+from ..ratio.summing import summing_ratio
+from .spec import GearSpec, StageSpec, SummingSpec, TrainSpec
 
 __all__ = ["plan_summing", "mean_assembles", "axle_room", "TUBE_WALL"]
 
@@ -75,7 +75,7 @@ class _Frame:
 def axle_room(summing: SummingSpec, module: float, bore: float = 3.0, tooth_system: str = "iso53-a",
               fabrication: str = "laser-3mm-acrylic") -> float:
     """Least distance (mm) from the input shaft to the differential axle at which the shaft clears the differential."""
-    from .profiles import load_tooth_system
+    from ..profiles import load_tooth_system
 
     if summing.differential != "mean":
         return 0.0
@@ -156,7 +156,7 @@ def _idler_position(path: _Path, distance: float, side: int) -> np.ndarray:
 
 @dataclass
 class _Placed:
-    """A gear of the plan while it is assembled (see :class:`gearcad.plan.PlannedGear`)."""
+    """A gear of the plan while it is assembled (see :class:`gearcad.trains.plan.PlannedGear`)."""
 
     name: str
     role: str
@@ -295,7 +295,7 @@ class _MeanDifferential:
     top_layer = 6
 
     def __init__(self, spec: TrainSpec, system, fab: Fabrication, tube: float) -> None:
-        from .design import balanced_shifts, thinning_shift
+        from ..meshes.shifts import balanced_shifts, thinning_shift
 
         ss = spec.summing
         self.spec, self.fab, self.tube, self.m = spec, fab, tube, ss.module or spec.module
@@ -554,7 +554,7 @@ def _finish(build: _Build, spec, system, fab, layout, placed, sides, keys, diff,
     pitch = spec.thickness + fab.layer_gap
     # An idler that reaches one plate only is held at its other end by a bridge (gearcad.trains.supports): leave
     # room for it above path A's layer (idler a) or below path B's (idler b).
-    from .trains.supports import bridge_room
+    from .hardware import bridge_room
 
     room = bridge_room(spec.thickness, fab.layer_gap)
     room_a = "idler-a" in sides and not sides["idler-a"][1]
@@ -604,9 +604,9 @@ def _rated(meshes: list, paths, diff, signed: Fraction, rho: list[Fraction], spe
     along the path by the tooth counts; the differential's meshes run at their
     sides' speeds relative to the carrier, shared by its planets.
     """
-    from .loads import MeshLoad, differential_side_torques, planet_mesh_loads
-    from .materials import load_material
-    from .strength import PROCESS_CLASS, rate_internal_pair, rate_pair
+    from ..meshes.loads import MeshLoad, differential_side_torques, planet_mesh_loads
+    from ..materials import load_material
+    from ..meshes.strength import PROCESS_CLASS, rate_internal_pair, rate_pair
 
     ss = spec.summing
     sides = differential_side_torques(ss.differential, load.torque / abs(float(signed)), ss.sun, ss.ring)

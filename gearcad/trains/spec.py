@@ -11,8 +11,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-from .errors import InputError
-from .validate import as_int, finite
+from ..errors import InputError
+from ..validate import as_int, finite
 
 __all__ = ["GearSpec", "StageSpec", "TrainSpec", "Hub", "Keyway", "SolverSpec", "PlanetarySpec", "SummingSpec", "DIFFERENTIALS"]
 
@@ -221,7 +221,7 @@ class TrainSpec:
                                                       and 0 < self.target_tolerance < 1):
             raise InputError(f"target_tolerance must be greater than 0 and less than 1 (a relative error), "
                              f"got {self.target_tolerance!r}")
-        from .inputfiles import plain_file_name
+        from ..inputfiles import plain_file_name
 
         plain_file_name(self.name, "train name")
         if not (math.isfinite(self.thickness) and self.thickness > 0):

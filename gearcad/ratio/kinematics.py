@@ -30,8 +30,8 @@ from typing import Any, Mapping, Sequence, Union
 import sympy
 from sympy.polys.matrices import DomainMatrix
 
-from .errors import InputError
-from .validate import as_int
+from ..errors import InputError
+from ..validate import as_int
 
 __all__ = [
     "FRAME", "Gear", "Mesh", "Network", "Motion", "make_network", "solve_network", "network_ratio",

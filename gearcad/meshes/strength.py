@@ -50,15 +50,15 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from .checks import Finding
-from .errors import GeometryError, InputError
-from .geometry.gear import SpurGear
-from .geometry.generate import tooth_profile
-from .materials import Material
+from ..errors import GeometryError, InputError
+from ..geometry.gear import SpurGear
+from ..geometry.generate import tooth_profile
+from ..materials import Material
 from .pair import GearPair
 
 if TYPE_CHECKING:
     from .internal import InternalPair
-from .validate import finite, positive
+from ..validate import finite, positive
 
 __all__ = [
     "LewisResult",

@@ -1,6 +1,6 @@
 """From a train description to everything that will be made: the plan.
 
-``plan_train(spec)`` resolves profiles, builds every meshing pair and its
+``plan_compound(spec)`` resolves profiles, builds every meshing pair and its
 checks, the cut outlines (with the fabrication profile's kerf), the shaft
 layout, the plates and the assembly phasing.  Pure: no file is read but the
 profiles, none is written; the writers in ``gearcad.export`` consume the plan.
@@ -16,20 +16,20 @@ from fractions import Fraction
 
 import numpy as np
 
-from .checks import Finding, PairAnalysis, analyse_pair, process_findings
-from .errors import InputError
-from .geometry.bore import bore_loop
-from .geometry.gear import SpurGear
-from .geometry.generate import DEFAULT_TOLERANCE
-from .geometry.offset import min_concave_radius, offset_loop
-from .geometry.shape import Loop, Part, circle_loop, gear_loop, rounded_rectangle
-from .kinematics import direction_of
+from ..meshes.checks import Finding, PairAnalysis, analyse_pair, process_findings
+from ..errors import InputError
+from ..geometry.bore import bore_loop
+from ..geometry.gear import SpurGear
+from ..geometry.generate import DEFAULT_TOLERANCE
+from ..geometry.offset import min_concave_radius, offset_loop
+from ..geometry.shape import Loop, Part, circle_loop, gear_loop, rounded_rectangle
+from ..ratio.kinematics import direction_of
 from .layout import Layout, LayoutGear, LayoutProblem, Link, mesh_phase, shaft_sides, solve_layout
-from .pair import GearPair, make_pair
-from .profiles import Fabrication, ToothSystem, load_fabrication, load_tooth_system
-from .trainspec import GearSpec, TrainSpec
+from ..meshes.pair import GearPair, make_pair
+from ..profiles import Fabrication, ToothSystem, load_fabrication, load_tooth_system
+from .spec import GearSpec, TrainSpec
 
-__all__ = ["Plan", "PlannedGear", "PlannedMesh", "PlannedShaft", "PlannedPlate", "InputLoad", "plan_train", "MIN_RIM",
+__all__ = ["Plan", "PlannedGear", "PlannedMesh", "PlannedShaft", "PlannedPlate", "InputLoad", "plan_compound", "MIN_RIM",
            "frame_plates"]
 
 MIN_RIM = 1.0  # modules of material between the bore (or keyway) and the root circle; common practice
@@ -131,7 +131,7 @@ def _system(spec: TrainSpec) -> ToothSystem:
 
 @dataclass
 class _Chain:
-    """Shafts and meshes as the stages are walked (working state of :func:`plan_train`)."""
+    """Shafts and meshes as the stages are walked (working state of :func:`plan_compound`)."""
 
     gears: list[tuple[str, str, int, GearSpec, int, int]]  # name, role, stage, spec, shaft, layer
     links: list[tuple[int, int, str, str]]  # parent shaft, child shaft, driver name, driven name
@@ -173,13 +173,13 @@ def _pairs(spec: TrainSpec, chain: _Chain, system: ToothSystem, fab: Fabrication
         (ga, stage), (gb, _) = specs[a], specs[b]
         st = spec.stages[stage - 1]
         if st.helix:  # a helical stage: normal module and shifts; the hands alternate from the driver's
-            from .meshes.helical import make_helical_pair
+            from ..meshes.helical import make_helical_pair
 
             hand = hands.get(a, st.hand)
             pair = make_helical_pair(ga.teeth, gb.teeth, _stage_module(spec, stage), system, math.radians(st.helix),
                                      hand, shifts=(ga.shift, gb.shift), backlash=fab.backlash)
             hands[b] = pair.gear2.hand
-            from .meshes.helical import check_face_width
+            from ..meshes.helical import check_face_width
 
             check_face_width((pair.gear1, pair.gear2), spec.thickness)
             pairs[(a, b)] = pair
@@ -247,7 +247,7 @@ def _layer_heights(spec: TrainSpec, chain: _Chain, fab: Fabrication, room: froze
 
     ``room``: the layers below which a bridge stands (``k`` in ``room``: room for a bridge under layer ``k``).
     """
-    from .trains.supports import bridge_room
+    from .hardware import bridge_room
 
     layers = len(spec.stages)
     hubs = [max([g[3].hub.length for g in chain.gears if g[5] == k and g[3].hub] + [0.0]) for k in range(layers)]
@@ -302,7 +302,7 @@ def _layout(spec: TrainSpec, chain: _Chain, pairs, bores: dict[int, float], fab:
     coaxial = (0, chain.shafts - 1) if spec.coaxial else None
     if spec.coaxial and any(s.idler for s in spec.stages):
         raise InputError("a coaxial train cannot carry idlers")
-    from .trains.supports import SPACER_WALL
+    from .hardware import SPACER_WALL
 
     # What passes the gears of other layers is the shaft with its spacer tube on it.
     problem = LayoutProblem(tuple(bores[s] / 2 + SPACER_WALL for s in range(chain.shafts)), gears, links, meshes,
@@ -359,7 +359,7 @@ def _meshes(chain: _Chain, pairs, fab: Fabrication, spec: TrainSpec, load: Input
     loads = _shaft_loads(chain, pairs, load) if load else {}
     material = None
     if load:
-        from .materials import load_material
+        from ..materials import load_material
 
         material = load_material(fab.material_profile)
     stage_of = {g[0]: g[2] for g in chain.gears}
@@ -367,11 +367,11 @@ def _meshes(chain: _Chain, pairs, fab: Fabrication, spec: TrainSpec, load: Input
         rating, extra = None, ()
         stage = spec.stages[stage_of[a] - 1]
         if load:
-            from .strength import PROCESS_CLASS, rate_pair
+            from ..meshes.strength import PROCESS_CLASS, rate_pair
 
             torque, speed = loads[a]
             if stage.helix:
-                from .meshes.helical_rating import rate_helical_pair
+                from ..meshes.helical_rating import rate_helical_pair
 
                 rating = rate_helical_pair(pair, torque, speed, spec.thickness, material, material,
                                            PROCESS_CLASS[fab.process], herringbone=stage.herringbone, gap_mm=stage.gap)
@@ -381,7 +381,7 @@ def _meshes(chain: _Chain, pairs, fab: Fabrication, spec: TrainSpec, load: Input
             extra = rating.findings()
         analysis = analyse_pair(pair)
         if stage.helix:
-            from .meshes.helical import hand_findings, helical_mesh, in_normal_terms, overlap_finding
+            from ..meshes.helical import hand_findings, helical_mesh, in_normal_terms, overlap_finding
 
             analysis = in_normal_terms(analysis)
             width = (spec.thickness - stage.gap) / 2 if stage.herringbone else spec.thickness
@@ -390,27 +390,8 @@ def _meshes(chain: _Chain, pairs, fab: Fabrication, spec: TrainSpec, load: Input
         yield PlannedMesh((a, b), pair, analysis, extra, rating)
 
 
-def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: InputLoad | None = None) -> Plan:
-    """Every figure, outline, position and check of the train ``spec``; with ``load``, the load ratings too.
-
-    The plan comes with its mechanism (``gearcad.trains.supports``): what holds every shaft, the
-    bought parts, the frame plates with every hole, and the assembly's interference check.
-    """
-    from .trains.supports import complete_plan
-
-    if spec.planetary is not None:
-        from .epicyclic import plan_planetary
-
-        return complete_plan(plan_planetary(spec, tolerance, load))
-    if spec.summing is not None:
-        from .differential import plan_summing
-
-        return complete_plan(plan_summing(spec, tolerance, load))
-    plan, wanted = _plan_compound(spec, tolerance, load)
-    return complete_plan(plan, wanted)
-
-
-def _plan_compound(spec: TrainSpec, tolerance: float, load: InputLoad | None) -> tuple[Plan, dict[int, str]]:
+def plan_compound(spec: TrainSpec, tolerance: float, load: InputLoad | None) -> tuple[Plan, dict[int, str]]:
+    """The plan of a compound train (its ``[[stage]]`` tables) and the bridges its layout asks for."""
     if not spec.stages:
         raise InputError("the train has no stages: solve its ratio first (gearcad design)")
     system = _system(spec)
@@ -454,7 +435,7 @@ def _bore(spec: TrainSpec, gspec: GearSpec, shaft: int, chain: _Chain, fab: Fabr
     if gspec.bore is not None:
         return gspec.bore
     if spec.coaxial and shaft == chain.shafts - 1:
-        from .trains.supports import PIPE_WALL
+        from .hardware import PIPE_WALL
 
         return spec.bore + fab.bore_clearance + 2 * PIPE_WALL
     return spec.bore
@@ -462,7 +443,7 @@ def _bore(spec: TrainSpec, gspec: GearSpec, shaft: int, chain: _Chain, fab: Fabr
 
 def _network_ratio(chain: _Chain) -> Fraction:
     """Signed output turns per input turn of the chain, from the kinematic model (Willis on every mesh)."""
-    from .kinematics import Gear, Mesh, make_network, network_ratio
+    from ..ratio.kinematics import Gear, Mesh, make_network, network_ratio
 
     gears = [Gear(name, f"shaft{shaft}", gspec.teeth) for name, _, _, gspec, shaft, _ in chain.gears]
     meshes = [Mesh(a, b) for _, _, a, b in chain.links]

@@ -13,19 +13,14 @@ from __future__ import annotations
 import dataclasses
 import math
 
-from .checks import analyse_pair, min_shift_without_undercut
-from .errors import InputError
-from .profiles import ToothSystem, load_tooth_system
-from .trainspec import GearSpec, SolverSpec, StageSpec, SummingSpec, TrainSpec
+from ..meshes.checks import analyse_pair
+from ..meshes.shifts import balanced_shifts, least_shift, thinning_shift
+from ..errors import InputError
+from ..profiles import ToothSystem, load_tooth_system
+from .spec import GearSpec, SolverSpec, StageSpec, SummingSpec, TrainSpec
 
-__all__ = ["balanced_shifts", "spec_with_stages", "solve_train_spec", "solve", "summing_train_spec",
-           "planetary_differential", "thinning_shift"]
-
-
-def thinning_shift(backlash: float, module: float, system: ToothSystem) -> float:
-    """The tooth thinning of each gear as a shift coefficient: half the backlash (mm, as gearcad.pair.make_pair
-    shares it), ``thinning_mm / (2 m tan(alpha))``."""
-    return backlash / 2 / (2 * module * math.tan(system.pressure_angle))
+__all__ = ["spec_with_stages", "solve_train_spec", "solve", "summing_train_spec",
+           "planetary_differential"]
 
 
 def _tooth_system(name: str, pressure_angle: float | None) -> ToothSystem:
@@ -34,24 +29,6 @@ def _tooth_system(name: str, pressure_angle: float | None) -> ToothSystem:
     if pressure_angle is not None:
         system = dataclasses.replace(system, pressure_angle=math.radians(pressure_angle))
     return system
-
-
-def balanced_shifts(driver: int, driven: int, system: ToothSystem, thinning: float = 0.0) -> tuple[float, float]:
-    """Profile shifts (driver, driven) that keep both gears free of undercut, summing to zero where possible.
-
-    ``thinning`` is the tooth-thinning allowance per gear as a shift coefficient
-    (``thinning_mm / (2 m tan(alpha))``): the cutter feeds that much deeper.
-    """
-    depth, alpha = system.straight_flank_depth, system.pressure_angle
-    need = [_least_shift(z, system, thinning) for z in (driver, driven)]
-    if need == [0.0, 0.0]:
-        return 0.0, 0.0
-    small, big = (0, 1) if driver <= driven else (1, 0)
-    shifts = [0.0, 0.0]
-    shifts[small] = need[small]
-    mate_least = min_shift_without_undercut((driver, driven)[big], alpha, depth) + thinning
-    shifts[big] = -need[small] if -need[small] >= mate_least + 0.01 else need[big]
-    return shifts[0], shifts[1]
 
 
 def spec_with_stages(spec: TrainSpec, train, system: ToothSystem | None = None, helix: float = 0.0,
@@ -67,7 +44,7 @@ def spec_with_stages(spec: TrainSpec, train, system: ToothSystem | None = None, 
         system = dataclasses.replace(system, pressure_angle=math.radians(spec.pressure_angle))
     if helix:
         return _helical_stages(spec, train, system, helix, hand, herringbone)
-    from .profiles import load_fabrication
+    from ..profiles import load_fabrication
 
     thinning = thinning_shift(load_fabrication(spec.fabrication).backlash, spec.module, system)
     stages = []
@@ -92,7 +69,7 @@ def _helical_stages(spec: TrainSpec, train, system: ToothSystem, helix: float, h
     Hands: each stage's driver takes the hand of the gear it shares a shaft with (the previous stage's driven
     gear), so that on every intermediate shaft the two gears' axial forces oppose (common practice).
     """
-    from .meshes.helical import check_hand, check_helix, opposite_hand, transverse_system
+    from ..meshes.helical import check_hand, check_helix, opposite_hand, transverse_system
 
     beta = check_helix(helix)
     check_hand(hand)
@@ -115,7 +92,7 @@ def _equal_centres(stages: list[StageSpec], module: float, system: ToothSystem) 
     The pinion keeps its shift against undercut; the wheel takes the rest
     (ISO 21771's centre distance from the shift sum, inverted).
     """
-    from .pair import centre_distance_for_shift, total_shift_for_centre
+    from ..meshes.pair import centre_distance_for_shift, total_shift_for_centre
 
     alpha = system.pressure_angle
     centres = [centre_distance_for_shift(s.driver.teeth, s.driven.teeth, module, alpha, s.driver.shift + s.driven.shift)
@@ -136,9 +113,9 @@ def _equal_centres(stages: list[StageSpec], module: float, system: ToothSystem) 
 
 def solve(solver: SolverSpec, inventory=None, shift_limit: float | None = None, progress=None):
     """The best train for a ``[solve]`` table (or the same options from the command line)."""
-    from .ratio.limits import DEFAULT_MAX_STAGE_RATIO, DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH, make_limits
-    from .ratio.solve import DEFAULT_STAGE_COUNTS, RatioQuery, solve_ratio
-    from .ratio.target import parse_target
+    from ..ratio.limits import DEFAULT_MAX_STAGE_RATIO, DEFAULT_MAX_TEETH, DEFAULT_MIN_TEETH, make_limits
+    from ..ratio.solve import DEFAULT_STAGE_COUNTS, RatioQuery, solve_ratio
+    from ..ratio.target import parse_target
 
     target = parse_target(solver.ratio)
     low = solver.min_teeth if solver.min_teeth is not None else (min(inventory.teeth) if inventory else DEFAULT_MIN_TEETH)
@@ -160,18 +137,12 @@ def solve_train_spec(spec: TrainSpec, progress=None) -> tuple[TrainSpec, object]
     return spec_with_stages(spec, train), train
 
 
-def _least_shift(teeth: int, system: ToothSystem, thinning: float) -> float:
-    """The least profile shift (rounded up to 0.01, never negative) that keeps ``teeth`` free of undercut."""
-    need = min_shift_without_undercut(teeth, system.pressure_angle, system.straight_flank_depth) + thinning
-    return max(0.0, math.ceil(need * 100 - 1e-9) / 100)
-
-
 def _idler_meshes_clean(stage: StageSpec, teeth: int, module: float, system: ToothSystem, thinning: float,
                         backlash: float) -> bool:
     """Whether an idler of ``teeth`` meshes the stage's driver and driven gear with no warning or failure."""
-    from .pair import make_pair
+    from ..meshes.pair import make_pair
 
-    x = _least_shift(teeth, system, thinning)
+    x = least_shift(teeth, system, thinning)
     for gear in (stage.driver, stage.driven):
         pair = make_pair(gear.teeth, teeth, module, system, shifts=(gear.shift, x), backlash=backlash)
         if any(f.severity != "ok" for f in analyse_pair(pair).findings):
@@ -181,7 +152,7 @@ def _idler_meshes_clean(stage: StageSpec, teeth: int, module: float, system: Too
 
 def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, idlers: tuple[int, ...] | None = None,
                        **fields) -> TrainSpec:
-    """The train of a solved summing ``train`` (:class:`gearcad.summing.SummingTrain`); ``fields`` are the
+    """The train of a solved summing ``train`` (:class:`gearcad.ratio.summing.SummingTrain`); ``fields`` are the
     other :class:`TrainSpec` fields (name, module, thickness, ...).
 
     A path without idler gets balanced shifts (the two such paths are then
@@ -193,9 +164,9 @@ def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, i
     beyond the paths' gears; two idler paths then need two of one count);
     default every count up to ``max_idler``.
     """
-    from .errors import GearcadError
-    from .plan import plan_train
-    from .profiles import load_fabrication
+    from ..errors import GearcadError
+    from .planner import plan_train
+    from ..profiles import load_fabrication
 
     system = _tooth_system(fields.get("tooth_system", "iso53-a"), fields.get("pressure_angle"))
     module = fields["module"]
@@ -206,7 +177,7 @@ def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, i
         if sign < 0:
             x1, x2 = balanced_shifts(driver, driven, system, thinning)
         else:
-            x1, x2 = _least_shift(driver, system, thinning), _least_shift(driven, system, thinning)
+            x1, x2 = least_shift(driver, system, thinning), least_shift(driven, system, thinning)
         stages.append(StageSpec(GearSpec(driver, shift=x1), GearSpec(driven, shift=x2)))
     if train.sign_a < 0 and train.sign_b < 0:
         stages = _equal_centres(stages, module, system)
@@ -222,7 +193,7 @@ def summing_train_spec(train, differential: SummingSpec, max_idler: int = 200, i
              if all(_idler_meshes_clean(stages[k], z, module, system, thinning, backlash) for k in carriers)]
     last_error: GearcadError | None = None
     for teeth in clean[:40] + [z for z in allowed if z not in clean[:40]]:
-        idler = GearSpec(teeth, shift=_least_shift(teeth, system, thinning))
+        idler = GearSpec(teeth, shift=least_shift(teeth, system, thinning))
         trial = list(stages)
         for k in carriers:
             trial[k] = dataclasses.replace(trial[k], idler=idler)
@@ -244,11 +215,11 @@ def planetary_differential(train, module: float, system: ToothSystem, backlash: 
     depends on sun : ring only, and the three conditions still hold) while the
     ring stays inside path B's driven gear (``ring + 7 <= driven``).
     """
-    from .errors import GearcadError
-    from .internal import analyse_internal_pair, make_internal_pair
-    from .pair import make_pair
-    from .planetary import check_set, make_set
-    from .summing import RING_FIT
+    from ..errors import GearcadError
+    from ..meshes.internal import analyse_internal_pair, make_internal_pair
+    from ..meshes.pair import make_pair
+    from ..ratio.planetary_set import check_set, make_set
+    from ..ratio.summing import RING_FIT
 
     sun, planet, ring, count = train.planetary
     for k in range(1, max_scale + 1):

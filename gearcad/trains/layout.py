@@ -30,7 +30,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = ["LayoutGear", "Link", "LayoutProblem", "Layout", "solve_layout", "mesh_phase", "shaft_sides",
            "clearance_shortfall", "fit_plate"]

@@ -29,7 +29,7 @@ from fractions import Fraction
 
 import numpy as np
 
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = ["SummingTrain", "solve_summing", "summing_ratio", "summing_network", "KINDS"]
 
@@ -306,7 +306,7 @@ def _threshold(best: dict, count: int) -> tuple[float, int]:
 def summing_network(train: SummingTrain):
     """The kinematic network of a summing train: input shaft, two paths, the differential.
 
-    Returns ``(network, fixed, input, output)`` for :func:`gearcad.kinematics.network_ratio`.
+    Returns ``(network, fixed, input, output)`` for :func:`gearcad.ratio.kinematics.network_ratio`.
     The mean differential is a spur differential: two equal sun gears (one per
     side member) and meshing pairs of planets on the output carrier (a planet
     of one pair meshes one sun and its mate, the mate the other sun), which makes

@@ -13,10 +13,10 @@ import math
 import re
 from dataclasses import dataclass
 
-from .drawing import CutDrawing, merged_drawing, moved_drawing
-from .drawings import part_drawing
-from .geometry.nest import NestItem, Nesting, Sheet, nest_parts, turned_part
-from .geometry.shape import Part
+from .neutral import CutDrawing, merged_drawing, moved_drawing
+from .cutting import part_drawing
+from ..geometry.nest import NestItem, Nesting, Sheet, nest_parts, turned_part
+from ..geometry.shape import Part
 
 __all__ = ["FlatPart", "SheetGroup", "MIN_SPACING", "GEAR_LABEL_HEIGHT", "flat_parts", "part_spacing",
            "plan_sheets", "sheet_name", "sheet_drawing", "sheets_summary"]
@@ -142,7 +142,7 @@ def sheet_drawing(sheet: Sheet, parts: dict[str, FlatPart], mode: str, tolerance
     parts : dict
         Name to :class:`FlatPart`.
     mode, tolerance
-        As for :func:`gearcad.drawings.part_drawing`.
+        As for :func:`gearcad.export.cutting.part_drawing`.
     unturned : dict, optional
         Drawings already made of parts in their own orientation (reused for parts not turned).
     """

@@ -39,7 +39,7 @@ class Design:
     Attributes
     ----------
     spec : gearcad.trainspec.TrainSpec
-        The train description, ready for :func:`gearcad.plan.plan_train` and the train file.
+        The train description, ready for :func:`gearcad.trains.plan.plan_train` and the train file.
     kind : str
         ``"compound"``, ``"planetary"`` or ``"summing"``.
     relative_error : float
@@ -190,7 +190,7 @@ def _compound(common: _Common, limits: Any, stages: int | None, coaxial: bool, s
     from ..ratio.reach import reach_note, reach_of
     from ..ratio.solve import RatioQuery, binding_limits, solve_ratio
     from ..ratio.target import parse_target
-    from ..trainspec import SolverSpec, TrainSpec
+    from .spec import SolverSpec, TrainSpec
     from ..validate import as_int
 
     if shift_limit is not None and not coaxial:
@@ -256,8 +256,8 @@ def _equal_error_trains(trains: Sequence[Any], limits: Any, target: Any, coaxial
 
 def _mesh_severities(spec: Any) -> set[str]:
     """Severities of the findings of every mesh of a compound train (pairs alone: no layout, no parts)."""
-    from ..checks import analyse_pair
-    from ..pair import make_pair
+    from ..meshes.checks import analyse_pair
+    from ..meshes.pair import make_pair
     from ..profiles import load_fabrication, load_tooth_system
 
     system, fab = load_tooth_system(spec.tooth_system), load_fabrication(spec.fabrication)
@@ -281,7 +281,7 @@ def _cleanest(common: _Common, base: Any, trains: Sequence[Any], query: Any) -> 
     from dataclasses import replace as copy
     from fractions import Fraction
 
-    from ..design import spec_with_stages
+    from .stages import spec_with_stages
     from ..ratio.solve import solve_ratio
 
     def error(train: Any) -> Fraction:
@@ -329,7 +329,8 @@ def _cleanest(common: _Common, base: Any, trains: Sequence[Any], query: Any) -> 
 
 def _planetary(common: _Common, limits: Any, planets, fixed, input, stepped, max_ring_teeth, shift_limit,
                margin, candidates: int) -> Design:
-    from ..planetary import NEIGHBOUR_MARGIN, make_arrangement, make_query, solve_planetary
+    from ..ratio.planetary_set import NEIGHBOUR_MARGIN, make_arrangement
+    from ..ratio.planetary import make_query, solve_planetary
     from ..profiles import load_tooth_system
     from ..ratio.target import parse_target
 
@@ -389,7 +390,7 @@ def _planetary_ways(query: Any, tolerance: float) -> str:
 
 def _alternative_sets(query: Any, tolerance: float) -> list[str]:
     """Which nearby planetary searches (stepped planets, fewer planets) would meet the tolerance."""
-    from ..planetary import solve_planetary
+    from ..ratio.planetary import solve_planetary
 
     ways = []
     trials = []
@@ -414,7 +415,7 @@ def _alternative_sets(query: Any, tolerance: float) -> list[str]:
 
 def _planetary_spec(common: _Common, result: Any, scale: int, shift_limit: float | None) -> Any:
     """The train of a solved set, its tooth counts multiplied by ``scale`` (same ratio, same conditions)."""
-    from ..trainspec import PlanetarySpec, TrainSpec
+    from .spec import PlanetarySpec, TrainSpec
 
     s, a = result.set, result.arrangement
     ring_side = s.planet_ring * scale if s.planet_ring else None
@@ -427,7 +428,7 @@ def _planetary_spec(common: _Common, result: Any, scale: int, shift_limit: float
 
 def _passes(spec: Any, meshes_only: bool = False) -> bool:
     """Whether the train plans and its meshes (and, unless ``meshes_only``, its other checks) pass."""
-    from ..plan import plan_train
+    from .planner import plan_train
 
     try:
         plan = plan_train(spec)
@@ -441,13 +442,13 @@ def _passes(spec: Any, meshes_only: bool = False) -> bool:
 
 def _summing(common: _Common, limits: Any, kind: str, planets: int | None, max_ring_teeth: int | None,
              margin: float | None, shift_limit: float | None, count: int) -> Design:
-    from ..design import planetary_differential, summing_train_spec
-    from ..differential import axle_room
-    from ..plan import plan_train
+    from .stages import planetary_differential, summing_train_spec
+    from .differential import axle_room
+    from .planner import plan_train
     from ..profiles import load_fabrication, load_tooth_system
     from ..ratio.target import parse_target
-    from ..summing import solve_summing
-    from ..trainspec import SummingSpec
+    from ..ratio.summing import solve_summing
+    from .spec import SummingSpec
 
     planets = 3 if planets is None else planets
     if not 1 <= planets <= 24:

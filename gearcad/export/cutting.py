@@ -12,12 +12,12 @@ from __future__ import annotations
 
 import numpy as np
 
-from .drawing import CutDrawing, Label, polyline_contour
-from .errors import InputError
-from .geometry.arcfit import fit_loop
-from .geometry.bspline import loop_pieces
-from .geometry.marking import place_text
-from .geometry.shape import Loop, Part
+from .neutral import CutDrawing, Label, polyline_contour
+from ..errors import InputError
+from ..geometry.arcfit import fit_loop
+from ..geometry.bspline import loop_pieces
+from ..geometry.marking import place_text
+from ..geometry.shape import Loop, Part
 
 __all__ = ["part_drawing", "plate_scene", "Scene", "DRAWING_MODES", "DEFAULT_LABEL_HEIGHT"]
 
@@ -122,7 +122,7 @@ class Scene:
 
 def plate_scene(plan) -> Scene:
     """The plate with every gear drawn in place (turned to its assembly phase)."""
-    from .plan import placed_holes, placed_outline
+    from ..trains.plan import placed_holes, placed_outline
 
     gears = tuple((g.name, g.layer, placed_outline(g, plan), (plan.shafts[g.shaft].x, plan.shafts[g.shaft].y),
                    g.gear.tip_diameter / 2) for g in plan.gears)

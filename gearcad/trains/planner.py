@@ -1,0 +1,31 @@
+"""The one entry point of planning: a train description of any kind to its :class:`Plan`.
+
+Each kind has its own planner (compound trains in :mod:`.plan`, planetary sets in
+:mod:`.epicyclic`, summing trains in :mod:`.differential`); all return the same
+:class:`~gearcad.trains.plan.Plan`, so the writers and the report need no branch per kind.
+"""
+
+from __future__ import annotations
+
+from ..geometry.generate import DEFAULT_TOLERANCE
+from .differential import plan_summing
+from .epicyclic import plan_planetary
+from .plan import InputLoad, Plan, plan_compound
+from .spec import TrainSpec
+from .supports import complete_plan
+
+__all__ = ["plan_train"]
+
+
+def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: InputLoad | None = None) -> Plan:
+    """Every figure, outline, position and check of the train ``spec``; with ``load``, the load ratings too.
+
+    The plan comes with its mechanism (``gearcad.trains.supports``): what holds every shaft, the
+    bought parts, the frame plates with every hole, and the assembly's interference check.
+    """
+    if spec.planetary is not None:
+        return complete_plan(plan_planetary(spec, tolerance, load))
+    if spec.summing is not None:
+        return complete_plan(plan_summing(spec, tolerance, load))
+    plan, wanted = plan_compound(spec, tolerance, load)
+    return complete_plan(plan, wanted)
