@@ -7,7 +7,7 @@ import pytest
 from gearcad.errors import ProfileError
 from gearcad.materials import MATERIAL_KEYS, Material, load_material, material_names
 
-SHIPPED = {"acrylic", "acetal", "nylon", "pla", "petg", "brass", "aluminium", "mild-steel"}
+SHIPPED = {"acrylic", "acetal", "nylon", "pla", "petg", "brass", "aluminium", "mild-steel", "bronze"}  # bronze: worm wheels (issue 15)
 POLYMERS = {"acrylic", "acetal", "nylon", "pla", "petg"}
 METALS = SHIPPED - POLYMERS
 

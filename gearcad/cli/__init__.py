@@ -29,6 +29,7 @@ COMMANDS: dict[str, str] = {
     "design": "gearcad.cli.design",
     "demo": "gearcad.cli.demo",
     "lathe": "gearcad.cli.lathe",
+    "worm": "gearcad.cli.worm",
 }
 
 

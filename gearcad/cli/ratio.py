@@ -69,6 +69,9 @@ def add_parser(subparsers: Any) -> argparse.ArgumentParser:
     from ._summing import add_summing_options
 
     add_summing_options(parser)
+    from ._worm import add_worm_option
+
+    add_worm_option(parser)
     parser.add_argument("--json", action="store_true", help="print JSON on stdout instead of a table")
     return parser
 
@@ -218,6 +221,10 @@ def run(args: argparse.Namespace) -> int:
                        ("fixed", "--fixed"), ("input_member", "--input"), ("stepped", "--stepped")), "summing")
         return run_summing(args, limits_from_args(args))
     _refuse(args, _PLANETARY_ONLY + (("differential", "--differential"), ("separate_axes", "--separate-axes")), "compound")
+    if args.worm is not None:
+        from ._worm import run_worm_ratio
+
+        return run_worm_ratio(args, limits_from_args(args), _LazyProgress(enabled=not args.json and sys.stderr.isatty()))
     from ..ratio.reach import reach_note, reach_of
 
     target = parse_target(args.target)

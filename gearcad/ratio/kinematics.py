@@ -75,17 +75,23 @@ class Mesh:
         The member holding both axes (``FRAME`` for fixed axes).
     internal : bool
         True when one of the two gears is an internal (ring) gear.
+    worm : bool
+        True for a worm (``gear_a``, its teeth = its starts) and its wheel (``gear_b``) on crossed
+        axes: ``z_a (w_a - w_c) = z_b (w_b - w_c)``, each axis oriented so that a right-hand worm
+        turning positively turns its wheel positively (a convention: "same" or "opposite" has no
+        meaning across crossed axes; the magnitude is exact).
     """
 
     gear_a: str
     gear_b: str
     carrier: str = FRAME
     internal: bool = False
+    worm: bool = False
 
     @property
     def label(self) -> str:
         """``"mesh a-b"`` (with ``"(internal)"`` and the carrier when it is not the frame)."""
-        kind = " internal" if self.internal else ""
+        kind = " internal" if self.internal else " worm" if self.worm else ""
         held = f" on {self.carrier}" if self.carrier != FRAME else ""
         return f"mesh{kind} {self.gear_a}-{self.gear_b}{held}"
 
@@ -214,7 +220,7 @@ def _rows(network: Network, speeds: Mapping[str, Any], domain: Any) -> tuple[lis
     for mesh in network.meshes:
         a, b = network.gear(mesh.gear_a), network.gear(mesh.gear_b)
         za, zb = domain.from_sympy(sympy.sympify(a.teeth)), domain.from_sympy(sympy.sympify(b.teeth))
-        sign = -1 if mesh.internal else 1
+        sign = -1 if mesh.internal or mesh.worm else 1
         row = [zero] * (len(members) + 1)
         row[index[a.member]] += za
         row[index[b.member]] += sign * zb

@@ -1,0 +1,64 @@
+"""The worm's solid: OCP's checker, the worm's axial section against the flank form, one lead per turn."""
+
+import math
+
+import numpy as np
+import pytest
+
+from gearcad.geometry.worm_wheel import axial_section, half_thickness
+from gearcad.meshes.worm import make_worm_pair, thread_form
+
+pytestmark = pytest.mark.slow
+
+
+@pytest.fixture(scope="module")
+def form():
+    # The handbook pair of tests/test_worm.py (m_x 3, z1 2, z2 30, d1 44).
+    return thread_form(make_worm_pair(2, 30, 3, worm_diameter=44))
+
+
+@pytest.fixture(scope="module")
+def worm(form):
+    from gearcad.export.step_worm import worm_solid
+
+    return worm_solid(form, axial_section(form, 64, form.root_radius - 0.3 * form.module))
+
+
+def _flank_deviation(solid, form, angle):
+    """Largest axial distance of the section's flank points (plane at ``angle`` about the axis) from the form."""
+    import cadquery as cq
+    from OCP.BRepAlgoAPI import BRepAlgoAPI_Section
+    from OCP.gp import gp_Dir, gp_Pln, gp_Pnt
+
+    normal = gp_Dir(-math.sin(angle), math.cos(angle), 0)
+    section = BRepAlgoAPI_Section(solid.wrapped, gp_Pln(gp_Pnt(0, 0, 0), normal))
+    section.Build()
+    shift = form.lead_parameter * angle  # the screw: the section at angle phi is the axial one moved by p phi
+    worst, count = 0.0, 0
+    for edge in cq.Shape.cast(section.Shape()).Edges():
+        for t in np.linspace(0, 1, 41):
+            v = edge.positionAt(t)
+            r = v.x * math.cos(angle) + v.y * math.sin(angle)
+            if not (form.root_radius + 1e-3 < r < form.tip_radius - 1e-3) or not (0.01 < v.z < form.length - 0.01):
+                continue
+            h = float(half_thickness(form, r))
+            u = v.z - shift
+            centre = round(u / form.axial_pitch) * form.axial_pitch
+            worst = max(worst, min(abs(u - c - s * h) for c in (centre - form.axial_pitch, centre, centre + form.axial_pitch)
+                                   for s in (-1, 1)))
+            count += 1
+    assert count > 100
+    return worst
+
+
+def test_worm_is_a_valid_solid(worm):
+    from gearcad.export.step_worm import is_valid
+
+    assert is_valid(worm)  # OCP's BRepCheck_Analyzer
+
+
+@pytest.mark.parametrize("angle", [0.0, math.pi / 2, 2.0])
+def test_axial_section_is_the_flank_form_within_a_micrometre_and_advances_one_lead_per_turn(worm, form, angle):
+    # DIN 3975: the thread advances one lead p_z per turn, so the section in a plane turned by phi is the axial
+    # section moved by p_z phi / (2 pi); the ZA flank is straight in it.
+    assert _flank_deviation(worm, form, angle) < 1e-3
