@@ -77,7 +77,8 @@ def test_bad_helical_stages(stage, words):
 
 def test_helix_on_a_planetary_train_is_refused():
     text = HEAD + "[planetary]\nsun = 18\nplanet = 18\nring = 54\n[[stage]]\ndriver = 15\ndriven = 40\nhelix = 20\n"
-    with pytest.raises(InputError, match="compound trains"):
+    # refused by the contradiction rule (a [planetary] table takes no [[stage]] tables) before the helix rule
+    with pytest.raises(InputError, match=r"compound trains|no \[\[stage\]\] tables"):
         parse_train(text)
 
 
@@ -95,8 +96,9 @@ def test_build_report_carries_the_helical_keys(tmp_path, capsys):
     path = tmp_path / "hx.toml"
     path.write_text(TWO_STAGES)
     out = tmp_path / "out"
-    code = main(["build", str(path), "--out", str(out), "--formats", "dxf,svg", "--torque", "0.05", "--speed", "60"])
-    assert code in (0, 1)
+    # a torque this acrylic train carries: a failed rating writes nothing (issue 12's rule)
+    code = main(["build", str(path), "--out", str(out), "--formats", "dxf,svg", "--torque", "0.02", "--speed", "60"])
+    assert code == 0
     data = json.loads((out / "report.json").read_text())
     g = data["gears"][0]
     assert g["helix_angle"] == pytest.approx(20.0) and g["hand"] == "right" and g["module"] == pytest.approx(1.0)
@@ -104,7 +106,9 @@ def test_build_report_carries_the_helical_keys(tmp_path, capsys):
     m1, m2 = data["meshes"][:2]
     assert m1["axial_force"] > 0 and m1["overlap_ratio"] == pytest.approx(6 * math.sin(math.radians(20)) / math.pi)
     assert "Helical gears" in (out / "report.md").read_text()
-    assert "transverse section" in (out / "s1-driver.svg").read_text() or "transverse section" in (out / "s1-driver.dxf").read_text()
+    # the drawing says what it is where its gear holds the words (the 15-tooth pinion holds only its name)
+    assert "transverse section" in (out / "s1-driven.svg").read_text() and "transverse section" in (out / "s1-driven.dxf").read_text()
+    assert "transverse section at mid-face" in (out / "report.md").read_text()
 
 
 @pytest.mark.slow
@@ -314,7 +318,7 @@ def test_report_lists_thrust_per_shaft(tmp_path, capsys):
     path = tmp_path / "hx.toml"
     path.write_text(TWO_STAGES.replace("herringbone = true\ngap = 1.0\n", ""))
     out = tmp_path / "out"
-    assert main(["build", str(path), "--out", str(out), "--formats", "dxf", "--torque", "0.05", "--speed", "60"]) in (0, 1)
+    assert main(["build", str(path), "--out", str(out), "--formats", "dxf", "--torque", "0.02", "--speed", "60"]) == 0
     data = json.loads((out / "report.json").read_text())
     forces = data["shaft_axial_forces"]
     f1, f2 = (m["axial_force"] for m in data["meshes"][:2])

@@ -80,7 +80,7 @@ def check_sheet(polygons, sheet, spacing):
             assert polygons[a][0].distance(polygons[b][0]) >= spacing - 1e-9, (a, b)
 
 
-@pytest.mark.parametrize("size", [None, (300.0, 200.0), (200.0, 130.0)])
+@pytest.mark.parametrize("size", [None, (300.0, 200.0), (230.0, 130.0)])
 def test_plan_parts_nest_without_overlap_inside_their_sheets(plan, size):
     if size is not None and size[1] < 130 and plan.spec.name == "epi":
         size = (200.0, 200.0)

@@ -7,6 +7,8 @@ lies within the outline tolerance of the true area).
 
 import re
 
+import math
+
 import pytest
 
 from gearcad.export.step_compact import share_geometry
@@ -126,11 +128,12 @@ def test_the_planets_of_a_set_are_one_product_placed_once_each(tmp_path):
     path = tmp_path / "o" / "assembly.step"
     text = path.read_text()
     products = re.findall(r"PRODUCT\('([^']*)'", text)
-    assert sum("planet" in p for p in products) == 1  # one product for the three planets
-    assert text.count("NEXT_ASSEMBLY_USAGE_OCCURRENCE") == len(plan.gears) + len(plan.plates)
+    assert sum(p in planets for p in products) == 1  # one product for the three planets
+    placed = len(plan.gears) + len(plan.plates) + len(plan.mechanism.rods)  # with the shafts, pins, pillars, screws
+    assert text.count("NEXT_ASSEMBLY_USAGE_OCCURRENCE") == placed
     shape = read_step(path)
     parts = solids(shape)
-    assert len(parts) == len(plan.gears) + len(plan.plates)
+    assert len(parts) == placed
     assert all(valid(s) for s in parts)
     planet_volume = volume(read_step(tmp_path / "o" / f"{planets[0]}.step"))
     assert sum(1 for s in parts if volume(s) == pytest.approx(planet_volume, rel=1e-9)) >= 3
@@ -153,7 +156,9 @@ def test_the_demo_assembly_is_compact_valid_and_of_the_same_volumes(tmp_path):
     assert size <= 3_000_000, f"{size} bytes"
     shape = read_step(out / "assembly.step")
     parts = solids(shape)
-    assert len(parts) == len(plan.gears) + len(plan.plates)
+    rods = plan.mechanism.rods  # shafts, spacers, pillars, screws and pins (issue 10), exact cylinders
+    assert len(parts) == len(plan.gears) + len(plan.plates) + len(rods)
     assert all(valid(s) for s in parts)
-    single = sorted(volume(read_step(out / f"{p.name}.step")) for p in (*plan.gears, *plan.plates))
-    assert sorted(volume(s) for s in parts) == pytest.approx(single, rel=1e-9)
+    single = [volume(read_step(out / f"{p.name}.step")) for p in (*plan.gears, *plan.plates)]
+    tubes = [math.pi / 4 * (r.diameter ** 2 - r.bore ** 2) * r.length for r in rods]  # the cylinder's volume
+    assert sorted(volume(s) for s in parts) == pytest.approx(sorted(single + tubes), rel=1e-7)

@@ -273,12 +273,15 @@ def _rod_items(plan) -> list:
     if mech is None:
         return []
     made: dict[tuple[float, float, float], object] = {}
+    taken = {g.name for g in plan.gears} | {p.name for p in plan.plates}
     items = []
     for r in mech.rods:
         key = (round(r.diameter, 6), round(r.bore, 6), round(r.length, 6))
         if key not in made:
             made[key] = tube_solid(r.diameter, r.bore, r.length)
-        items.append(AssemblyItem(r.name, made[key], r.x, r.y, r.z0, 0.0))
+        # a planet's pin shares its planet's name: the assembly names it by its kind as well
+        name = r.name if r.name not in taken else f"{r.name}-{r.kind}"
+        items.append(AssemblyItem(name, made[key], r.x, r.y, r.z0, 0.0))
     return items
 
 

@@ -57,11 +57,19 @@ DEFAULT_LABEL_HEIGHT = 2.5  # mm: largest cap height of a part's marking (common
 def _label(part: Part, at: tuple[float, float] | None, height: float) -> tuple[Label, ...]:
     """The marking inside the part (the largest up to ``height`` that fits, nearest ``at``).
 
-    When the whole label does not fit, its first word (the part's name) alone; none if not even that fits.
+    When the whole label does not fit: the part's name with the label's closing phrase where that is
+    words alone (a helical gear's "transverse section"), then the name alone; none if not even that fits.
+    The label's fields are separated by two spaces.
     """
     if not part.label:
         return ()
-    for text in dict.fromkeys((part.label, part.label.split()[0])):
+    fields = part.label.split("  ")
+    name = part.label.split()[0]
+    tries = [part.label]
+    if len(fields) > 2 and not any(c.isdigit() for c in fields[-1]):
+        tries.append(f"{name}  {fields[-1]}")
+    tries.append(name)
+    for text in dict.fromkeys(tries):
         place = place_text(part, text, height, at)
         if place is not None:
             return (Label(text, place.x, place.y, place.height),)

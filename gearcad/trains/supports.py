@@ -384,7 +384,8 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
     from .epicyclic import kerf_cut
     from .plan import PlannedPlate
 
-    part = Part(name, _stadium(p1, p2, half, plan.tolerance), (), holes)  # too narrow for a marking
+    # marked with its name where the bar holds the smallest marking (gearcad.geometry.marking places it)
+    part = Part(name, _stadium(p1, p2, half, plan.tolerance), (), holes, name)
     w.bridges.append(PlannedPlate(name, part, kerf_cut(part, fab, plan.tolerance), zb))
     ends = (w.back_z, zb + t) if side == "front" else (zb, w.front_z + t)
     for k, p in enumerate((p1, p2), start=1):
