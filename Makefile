@@ -17,7 +17,7 @@ demo: $(STAMP)
 	$(VENV)/bin/gearcad demo
 
 test: $(STAMP)
-	$(PY) -m pytest -q
+	$(PY) -m pytest -q -n 2 --dist loadfile
 
 bench: $(STAMP)
 	for f in tests/benchmarks/bench_*.py; do $(PY) $$f; done

@@ -92,7 +92,7 @@ def run(args: argparse.Namespace) -> int:
 
 def worm_to_dict(a) -> dict:
     """JSON form of a worm pair analysis (mm, degrees); the issue's keys are a contract (see README)."""
-    from .pair import finding_to_dict
+    from ._pairview import finding_to_dict
 
     p = a.pair
     return {
@@ -119,7 +119,7 @@ def worm_to_dict(a) -> dict:
 
 def render(a) -> str:
     """The readable table of ``worm``."""
-    from .pair import MARK
+    from ._pairview import MARK
 
     p = a.pair
     flank = {"za": "ZA (straight axial section)", "zi": "ZI (involute helicoid)"}[p.flank]

@@ -235,76 +235,6 @@ def transverse_system(system: ToothSystem, helix: float) -> ToothSystem:
         standard=system.standard, note=system.note, sources=system.sources, helix_angle=helix, normal=system)
 
 
-@dataclass(frozen=True)
-class HelicalGear(SpurGear):
-    """A helical gear as its transverse section (a spur gear of module ``m_t``) with a hand.
-
-    ``module``, ``shift``, ``thinning`` and ``tip_shortening`` are transverse figures
-    (mm on the reference circle, coefficients of ``m_t``); :func:`helical_gear` builds
-    one from the normal figures.  ``system`` is a :class:`TransverseSystem`.
-    """
-
-    hand: str = "right"
-
-    def __post_init__(self) -> None:
-        check_hand(self.hand)
-        if not isinstance(self.system, TransverseSystem):
-            raise InputError("a helical gear needs the transverse section of its tooth system (transverse_system)")
-        super().__post_init__()
-
-    @property
-    def helix_angle(self) -> float:
-        """Helix angle at the reference cylinder, radians (>= 0; the hand says which way)."""
-        return self.system.helix_angle
-
-    @property
-    def helix_sign(self) -> int:
-        """+1 for a right hand, -1 for a left hand (the sign of the twist seen along +z)."""
-        return 1 if self.hand == "right" else -1
-
-    @property
-    def normal_module(self) -> float:
-        """Normal module ``m_n = m_t cos(beta)``, mm."""
-        return self.module * math.cos(self.helix_angle)
-
-    @property
-    def normal_pressure_angle(self) -> float:
-        """Normal pressure angle of the basic rack, radians."""
-        return self.system.normal.pressure_angle
-
-    @property
-    def normal_shift(self) -> float:
-        """Normal profile shift coefficient ``x_n = x_t / cos(beta)``."""
-        return self.shift / math.cos(self.helix_angle)
-
-    @property
-    def normal_tooth_thickness(self) -> float:
-        """Normal tooth thickness at the reference cylinder ``s_n = s_t cos(beta)``, mm."""
-        return self.tooth_thickness * math.cos(self.helix_angle)
-
-    @property
-    def lead(self) -> float:
-        """Lead ``pi d / tan(beta)``, mm."""
-        return lead(self.reference_diameter, self.helix_angle)
-
-    @property
-    def base_helix_angle(self) -> float:
-        """Base helix angle, radians."""
-        return base_helix_angle(self.helix_angle, self.normal_pressure_angle)
-
-    @property
-    def virtual_teeth(self) -> float:
-        """Virtual tooth count of the normal section."""
-        return virtual_teeth(self.teeth, self.helix_angle, self.normal_pressure_angle)
-
-    def twist(self, face_width: float) -> float:
-        """Turn of the transverse section over ``face_width`` (mm), radians: ``b tan(beta) / r``, signed by the hand.
-
-        Positive (counter-clockwise seen from +z) for a right hand as z grows.
-        """
-        return self.helix_sign * face_width * math.tan(self.helix_angle) / (self.reference_diameter / 2)
-
-
 class _HelixFigures:
     """Helical figures shared by :class:`HelicalGear` and :class:`HelicalRing` (needs ``system``, ``hand``)."""
 
@@ -344,6 +274,39 @@ class _HelixFigures:
         Positive (counter-clockwise seen from +z) for a right hand as z grows.
         """
         return self.helix_sign * face_width * math.tan(self.helix_angle) / (self.reference_diameter / 2)
+
+
+@dataclass(frozen=True)
+class HelicalGear(_HelixFigures, SpurGear):
+    """A helical gear as its transverse section (a spur gear of module ``m_t``) with a hand.
+
+    ``module``, ``shift``, ``thinning`` and ``tip_shortening`` are transverse figures
+    (mm on the reference circle, coefficients of ``m_t``); :func:`helical_gear` builds
+    one from the normal figures.  ``system`` is a :class:`TransverseSystem`.
+    """
+
+    hand: str = "right"
+
+    def __post_init__(self) -> None:
+        check_hand(self.hand)
+        if not isinstance(self.system, TransverseSystem):
+            raise InputError("a helical gear needs the transverse section of its tooth system (transverse_system)")
+        super().__post_init__()
+
+    @property
+    def normal_tooth_thickness(self) -> float:
+        """Normal tooth thickness at the reference cylinder ``s_n = s_t cos(beta)``, mm."""
+        return self.tooth_thickness * math.cos(self.helix_angle)
+
+    @property
+    def base_helix_angle(self) -> float:
+        """Base helix angle, radians."""
+        return base_helix_angle(self.helix_angle, self.normal_pressure_angle)
+
+    @property
+    def virtual_teeth(self) -> float:
+        """Virtual tooth count of the normal section."""
+        return virtual_teeth(self.teeth, self.helix_angle, self.normal_pressure_angle)
 
 
 def _ring_class():
