@@ -822,10 +822,8 @@ def helical_solid(part: "Part", thickness: float, twist: float, tolerance: float
         return _helical_ring_solid(part, thickness, twist, tolerance, herringbone, gap, gap_diameter)
     from OCP.BRepAlgoAPI import BRepAlgoAPI_Cut, BRepAlgoAPI_Fuse
     from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace
-    from OCP.BRepCheck import BRepCheck_Analyzer
     from OCP.BRepPrimAPI import BRepPrimAPI_MakeCylinder, BRepPrimAPI_MakePrism
     from OCP.gp import gp_Ax2, gp_Dir, gp_Pnt, gp_Vec
-    from OCP.ShapeUpgrade import ShapeUpgrade_UnifySameDomain
 
     _check_inputs(part, thickness, tolerance)
     if not (math.isfinite(twist) and 0 < abs(twist) < 2 * math.pi):
@@ -862,16 +860,7 @@ def helical_solid(part: "Part", thickness: float, twist: float, tolerance: float
             axis = gp_Ax2(gp_Pnt(float(x), float(y), 0.0), gp_Dir(0.0, 0.0, 1.0))
             shape = BRepAlgoAPI_Cut(shape, BRepPrimAPI_MakeCylinder(axis, d / 2, float(thickness)).Shape()).Shape()
             expected -= math.pi * d * d / 4 * thickness
-        unify = ShapeUpgrade_UnifySameDomain(shape, True, True, False)
-        unify.Build()
-        shape = unify.Shape()
-        if not BRepCheck_Analyzer(shape).IsValid():
-            raise GeometryError(f"part {part.name!r}: the kernel rejects the helical solid as invalid")
-        volume = _adaptive_volume(shape)
-    if abs(volume - expected) > HELICAL_VOLUME_TOLERANCE * expected:
-        raise GeometryError(f"part {part.name!r}: helical solid volume {volume:.9g} mm³ differs from the transverse "
-                            f"area x face width {expected:.9g} mm³ by more than {HELICAL_VOLUME_TOLERANCE:g}")
-    return SolidBuild(shape, stats.splines, stats.poles, stats.worst, volume)
+    return _checked_helical(shape, part.name, expected, stats, "helical solid", "the transverse area x face width")
 
 
 def _helical_ring_solid(part: "Part", thickness: float, twist: float, tolerance: float, herringbone: bool,
@@ -879,10 +868,8 @@ def _helical_ring_solid(part: "Part", thickness: float, twist: float, tolerance:
     """A helical ring: the straight blank less its tooth loops swept along the helix (see :func:`helical_solid`)."""
     from OCP.BRepAlgoAPI import BRepAlgoAPI_Cut, BRepAlgoAPI_Fuse
     from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace
-    from OCP.BRepCheck import BRepCheck_Analyzer
     from OCP.BRepPrimAPI import BRepPrimAPI_MakeCylinder, BRepPrimAPI_MakePrism
     from OCP.gp import gp_Ax2, gp_Dir, gp_Pnt, gp_Vec
-    from OCP.ShapeUpgrade import ShapeUpgrade_UnifySameDomain
 
     from ..geometry.shape import Part as _Part
 
@@ -913,13 +900,23 @@ def _helical_ring_solid(part: "Part", thickness: float, twist: float, tolerance:
                     cutter = BRepAlgoAPI_Fuse(cutter, BRepPrimAPI_MakeCylinder(axis, gap_diameter / 2, gap).Shape()).Shape()
                     expected -= math.pi * gap_diameter ** 2 / 4 * gap
             shape = BRepAlgoAPI_Cut(shape, cutter).Shape()
+    return _checked_helical(shape, part.name, expected, stats, "helical ring",
+                            "the blank less the transverse tooth area x face width")
+
+
+def _checked_helical(shape: Any, name: str, expected: float, stats: "_Stats", what: str, reference: str) -> SolidBuild:
+    """A swept helical shape unified, checked valid by BRepCheck and its volume against ``expected`` (mm³)."""
+    from OCP.BRepCheck import BRepCheck_Analyzer
+    from OCP.ShapeUpgrade import ShapeUpgrade_UnifySameDomain
+
+    with kernel_quiet():
         unify = ShapeUpgrade_UnifySameDomain(shape, True, True, False)
         unify.Build()
         shape = unify.Shape()
         if not BRepCheck_Analyzer(shape).IsValid():
-            raise GeometryError(f"part {part.name!r}: the kernel rejects the helical ring as invalid")
+            raise GeometryError(f"part {name!r}: the kernel rejects the {what} as invalid")
         volume = _adaptive_volume(shape)
     if abs(volume - expected) > HELICAL_VOLUME_TOLERANCE * expected:
-        raise GeometryError(f"part {part.name!r}: helical ring volume {volume:.9g} mm³ differs from the blank less the "
-                            f"transverse tooth area x face width {expected:.9g} mm³ by more than {HELICAL_VOLUME_TOLERANCE:g}")
+        raise GeometryError(f"part {name!r}: {what} volume {volume:.9g} mm³ differs from {reference} "
+                            f"{expected:.9g} mm³ by more than {HELICAL_VOLUME_TOLERANCE:g}")
     return SolidBuild(shape, stats.splines, stats.poles, stats.worst, volume)

@@ -473,12 +473,7 @@ def train_to_toml(spec: TrainSpec) -> str:
             lines.append(f"input = {_quoted(p.input)}")
         if p.shift_limit is not None:
             lines.append(f"shift_limit = {p.shift_limit!r}")
-        if p.helix:
-            lines += [f"helix = {p.helix!r}", f"hand = {_quoted(p.hand)}"]
-        if p.herringbone:
-            lines.append("herringbone = true")
-        if p.gap:
-            lines.append(f"gap = {p.gap!r}")
+        lines += _helix_toml(p)
     if spec.summing is not None:
         s = spec.summing
         lines += ["", "# A summing train: the first [[stage]] is path a, the second path b.", "[summing]",
@@ -492,10 +487,15 @@ def train_to_toml(spec: TrainSpec) -> str:
             lines.append(f"module = {stage.module!r}")
         if stage.idler is not None:
             lines.append(f"idler = {_gear_toml(stage.idler)}")
-        if stage.helix:
-            lines += [f"helix = {stage.helix!r}", f"hand = {_quoted(stage.hand)}"]
-        if stage.herringbone:
-            lines.append("herringbone = true")
-        if stage.gap:
-            lines.append(f"gap = {stage.gap!r}")
+        lines += _helix_toml(stage)
     return "\n".join(lines) + "\n"
+
+
+def _helix_toml(table) -> list[str]:
+    """The helix keys of a ``[[stage]]`` or ``[planetary]`` table, where it has a helix (degrees, mm)."""
+    lines = [f"helix = {table.helix!r}", f"hand = {_quoted(table.hand)}"] if table.helix else []
+    if table.herringbone:
+        lines.append("herringbone = true")
+    if table.gap:
+        lines.append(f"gap = {table.gap!r}")
+    return lines
