@@ -39,7 +39,10 @@ def test_help_never_loads_the_cad_kernel():
 def test_every_package_is_listed_in_pyproject():
     listed = set(tomllib.loads((ROOT / "pyproject.toml").read_text())["tool"]["setuptools"]["packages"])
     found = {".".join(p.parent.relative_to(ROOT).parts) for p in (ROOT / "gearcad").rglob("__init__.py")}
-    assert found | {"gearcad.profile_data"} == listed
+    # Folders of data only: the demo's train files and each kind of profile (installed as gearcad.profile_data.*).
+    data = {".".join(p.parent.relative_to(ROOT).parts) for p in (ROOT / "gearcad").rglob("*.toml")}
+    data |= {"gearcad.profile_data." + p.parent.name for p in (ROOT / "profiles").rglob("*.toml")}
+    assert found | data | {"gearcad.profile_data"} == listed
 
 
 @pytest.mark.slow
