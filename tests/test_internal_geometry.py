@@ -16,7 +16,8 @@ import shapely
 from shapely.geometry import Point, Polygon
 
 from gearcad.errors import GeometryError, InputError
-from gearcad.geometry.internal import RingGear, _cutter_outline, ring_loop, ring_part, ring_profile, to_ring_frame
+from gearcad.geometry.internal import RingGear, ring_loop, ring_part, ring_profile, to_ring_frame
+from gearcad.geometry.ring_cutter import cutter_outline
 from gearcad.geometry.involute import inv
 from gearcad.profiles import load_tooth_system
 
@@ -24,7 +25,7 @@ from gearcad.profiles import load_tooth_system
 def cutter_tooth_polygon(ring, count=400):
     """Cutter tooth 0 as a polygon (cutter frame), its flanks continued radially below the base circle."""
     c = ring.cutter
-    pts = _cutter_outline(c, count)
+    pts = cutter_outline(c, count)
     half = len(pts) // 2
     upper, lower = pts[:half], pts[half:]
     core = 0.98 * min(c.base_radius, ring.tip_diameter / 2 - ring.cutting_centre_distance)
