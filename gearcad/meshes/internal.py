@@ -17,6 +17,9 @@ tooth space), ``s_i = m (pi/2 + 2 x_i tan(alpha))`` and ``p_w = pi d_w / z``:
 Handbooks that count the ring's shift away from the axis write the first as
 ``inv(alpha) + 2 tan(alpha) (x2 - x1) / (z2 - z1)``: the same with ``x2 -> -x2``.
 Lengths in mm, angles in radians.  Pure functions; no I/O.
+
+The centre-distance formulas live in :mod:`.internal_centre`, the interference checks in
+:mod:`.internal_interference`; this module re-exports them.
 """
 
 from __future__ import annotations
@@ -24,17 +27,19 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-import numpy as np
-
 from .checks import (MIN_CONTACT_RATIO, MIN_TIP_THICKNESS, Finding, backlash_finding, clearance_findings,
                      min_shift_without_undercut)
 from ..errors import GeometryError, InputError
 from ..geometry.gear import PointedTeethError, SpurGear
 from ..geometry.generate import tooth_profile
-from ..geometry.internal import RingGear, ring_profile, ring_tooth_depth, to_inner_frame, to_ring_frame
-from ..geometry.involute import inv, inv_inverse
+from ..geometry.internal import RingGear, ring_profile
+from ..geometry.involute import inv
 from ..profiles import ToothSystem
 from ..validate import as_int, positive
+from .internal_centre import (internal_centre_distance, internal_shift_sum_for_centre, internal_standard_centre_distance,
+                              internal_working_pressure_angle)
+from .internal_interference import (MAX_TOOTH_DIFFERENCE, TROCHOID_LIMIT, involute_clearance, least_tooth_difference,
+                                    require_tooth_difference, trochoid_depth)
 
 __all__ = [
     "InternalPair",
@@ -45,55 +50,13 @@ __all__ = [
     "internal_standard_centre_distance",
     "internal_working_pressure_angle",
     "internal_centre_distance",
+    "internal_shift_sum_for_centre",
     "least_tooth_difference",
     "require_tooth_difference",
     "trochoid_depth",
     "TROCHOID_LIMIT",
     "MAX_TOOTH_DIFFERENCE",
 ]
-
-TROCHOID_LIMIT = 1e-6  # modules: a tip path deeper than this inside the mate's tooth is interference
-MAX_TOOTH_DIFFERENCE = 80  # search bound of least_tooth_difference
-
-
-def internal_standard_centre_distance(pinion_teeth: int, ring_teeth: int, module: float) -> float:
-    """Reference centre distance ``m (z2 - z1) / 2``, mm (ISO 21771: ``m (z1 + z2) / 2`` with ``z2 < 0``, negated)."""
-    return module * (ring_teeth - pinion_teeth) / 2
-
-
-def internal_working_pressure_angle(pinion_teeth: int, ring_teeth: int, pressure_angle: float, shift_sum: float) -> float:
-    """Working pressure angle (radians): ``inv(alpha_w) = inv(alpha) - 2 tan(alpha) (x1 + x2) / (z2 - z1)``.
-
-    Shifts with ISO 21771's sign (module docstring).
-    """
-    if ring_teeth <= pinion_teeth:
-        raise InputError(f"ring tooth count {ring_teeth} must exceed the pinion's {pinion_teeth}")
-    value = inv(pressure_angle) - 2 * math.tan(pressure_angle) * shift_sum / (ring_teeth - pinion_teeth)
-    if value <= 0:
-        raise InputError(f"profile shift sum {shift_sum:g} is too large for a {pinion_teeth}-tooth pinion in a "
-                         f"{ring_teeth}-tooth ring: no centre distance exists")
-    return inv_inverse(value)
-
-
-def internal_centre_distance(pinion_teeth: int, ring_teeth: int, module: float, pressure_angle: float,
-                             shift_sum: float) -> float:
-    """Zero-backlash centre distance ``a_w = (z2 - z1) m cos(alpha) / (2 cos(alpha_w))``, mm."""
-    alpha_w = internal_working_pressure_angle(pinion_teeth, ring_teeth, pressure_angle, shift_sum)
-    return internal_standard_centre_distance(pinion_teeth, ring_teeth, module) * math.cos(pressure_angle) / math.cos(alpha_w)
-
-
-
-def internal_shift_sum_for_centre(pinion_teeth: int, ring_teeth: int, module: float, pressure_angle: float,
-                                  centre: float) -> float:
-    """The shift sum ``x1 + x2`` that gives zero backlash at ``centre`` (mm): the inverse of
-    :func:`internal_centre_distance`, ``x1 + x2 = -(z2 - z1) (inv(alpha_w) - inv(alpha)) / (2 tan(alpha))`` with
-    ``cos(alpha_w) = m (z2 - z1) cos(alpha) / (2 a)``."""
-    difference = ring_teeth - pinion_teeth
-    base = module * difference * math.cos(pressure_angle) / 2
-    if not centre > base:
-        raise InputError(f"centre distance {centre:g} mm is out of reach of an internal pair of {difference} teeth "
-                         f"difference and module {module:g}: it must exceed {base:.4f} mm")
-    return -difference * (inv(math.acos(base / centre)) - inv(pressure_angle)) / (2 * math.tan(pressure_angle))
 
 @dataclass(frozen=True)
 class InternalPair:
@@ -230,159 +193,6 @@ def make_internal_pair(pinion_teeth: int, ring_teeth: int, module: float, system
     return InternalPair(pinion, ring, built, centre_allowance)
 
 
-# -- interference -----------------------------------------------------------------------
-
-def _pinion_pitch(pinion: SpurGear) -> tuple[np.ndarray, np.ndarray, float]:
-    """Pinion tooth 0 as generated: flank-and-tip points, pitch outline (space centre to space centre), form radius."""
-    profile = tooth_profile(pinion, tolerance=1e-3 * pinion.module)
-    keep = [c.points for c in profile.curves if c.kind in ("involute", "tip", "tip-round", "chamfer")]
-    return np.concatenate(keep), profile.points(), profile.form_diameter / 2
-
-
-def _pitch_depth(points: np.ndarray, pitch: np.ndarray, teeth: int) -> np.ndarray:
-    """Depth (mm, negative outside) of points inside an external gear given one pitch of its outline.
-
-    Points are folded into the pitch's sector (``|angle| <= pi/z``); inside means
-    inside the polygon closed through the centre; depth is the distance to the
-    pitch's polyline.
-    """
-    step = 2 * math.pi / teeth
-    angle = np.arctan2(points[..., 1], points[..., 0])
-    turn = -step * np.round(angle / step)
-    c, s = np.cos(turn), np.sin(turn)
-    px = (c * points[..., 0] - s * points[..., 1]).ravel()
-    py = (s * points[..., 0] + c * points[..., 1]).ravel()
-    ax, ay = pitch[:-1, 0][None, :], pitch[:-1, 1][None, :]
-    bx, by = pitch[1:, 0][None, :], pitch[1:, 1][None, :]
-    dx, dy = bx - ax, by - ay
-    t = np.clip(((px[:, None] - ax) * dx + (py[:, None] - ay) * dy) / (dx * dx + dy * dy), 0.0, 1.0)
-    distance = np.hypot(ax + t * dx - px[:, None], ay + t * dy - py[:, None]).min(axis=1)
-    ring_x = np.concatenate([[0.0], pitch[:, 0]])  # closed through the centre
-    ring_y = np.concatenate([[0.0], pitch[:, 1]])
-    x0, y0 = ring_x[None, :], ring_y[None, :]
-    x1, y1 = np.roll(ring_x, -1)[None, :], np.roll(ring_y, -1)[None, :]
-    crosses = ((y0 > py[:, None]) != (y1 > py[:, None])) & (
-        px[:, None] < x0 + (py[:, None] - y0) * (x1 - x0) / np.where(y1 != y0, y1 - y0, 1.0))
-    inside = np.count_nonzero(crosses, axis=1) % 2 == 1
-    return np.where(inside, distance, -distance).reshape(points.shape[:-1])
-
-
-def _ring_points(ring_teeth: int, ring_tip_radius: float, ring_base_radius: float, space_half_angle: float,
-                 count: int = 24) -> np.ndarray:
-    """Points of one ring tooth's tip arc, corner to corner (space-centred frame)."""
-    below = ring_tip_radius <= ring_base_radius  # flank taken radial inside the base circle
-    corner = space_half_angle - (0.0 if below else inv(math.acos(ring_base_radius / ring_tip_radius)))
-    angles = np.linspace(corner, 2 * math.pi / ring_teeth - corner, count)
-    return ring_tip_radius * np.column_stack((np.cos(angles), np.sin(angles)))
-
-
-def trochoid_depth(pinion: SpurGear, ring_teeth: int, ring_tip_diameter: float, ring_thickness: float,
-                   ring_outer_diameter: float, centre_distance: float, samples: int = 3001) -> tuple[float, float]:
-    """Deepest overlaps (mm) of pinion and ring teeth as the pinion rolls inside the ring.
-
-    Each pinion tooth point (flanks and tip) is carried through one full turn
-    relative to the line of centres and tested against the ring's involute teeth,
-    and each ring tip point against the pinion's teeth as generated (fillet and
-    undercut included).  Returns ``(tips, fillet)``: the greatest depth of a tip
-    inside the mate's involute teeth (trochoid interference as teeth enter and
-    leave the mesh), and of the ring's tips inside the pinion's root fillet
-    (below its form circle).  0 for conjugate flanks touching, negative for clearance.
-
-    Parameters
-    ----------
-    pinion : SpurGear
-        The pinion.
-    ring_teeth : int
-        Ring tooth count.
-    ring_tip_diameter, ring_thickness : float
-        Ring tip (inner) diameter and arc tooth thickness at its reference circle, mm.
-    ring_outer_diameter : float
-        Diameter up to which the ring's flank is involute (its form diameter), mm.
-    centre_distance : float
-        Centre distance, mm.
-    samples : int
-        Positions over the turn.
-    """
-    z1, z2, m = pinion.teeth, ring_teeth, pinion.module
-    alpha = pinion.pressure_angle
-    rb2 = z2 * m * math.cos(alpha) / 2
-    psi2 = ring_thickness / (z2 * m) - inv(alpha)
-    space = (math.pi * m - ring_thickness) / (z2 * m) + inv(alpha)
-    chi = np.linspace(-math.pi * z1 / z2, math.pi * z1 / z2, samples)
-    flank, pitch, form_radius = _pinion_pitch(pinion)
-    world = to_ring_frame(flank, z1, z2, centre_distance, chi)
-    into_ring = float(ring_tooth_depth(world, z2, rb2, psi2, ring_tip_diameter / 2, ring_outer_diameter / 2).max())
-    local = to_inner_frame(_ring_points(z2, ring_tip_diameter / 2, rb2, space), z1, z2, centre_distance, chi)
-    radius = np.hypot(local[..., 0], local[..., 1])
-    near = radius < pinion.tip_diameter / 2  # only these can be inside
-    depth = _pitch_depth(local[near], pitch, z1) if near.any() else np.array([-m])
-    low = radius[near] < form_radius
-    tips = max(into_ring, float(depth[~low].max(initial=-m)))
-    return tips, float(depth[low].max(initial=-m))
-
-
-def _involute_clearance(centre: float, alpha_w: float, ring_tip: float, ring_base: float) -> float:
-    """Radial margin (mm) of the ring's tip outside the pinion's interference point.
-
-    The interference point is where the line of action touches the pinion's
-    base circle, ``a sin(alpha_w)`` along the line from the ring's base tangent
-    point: radius ``sqrt(r_b2² + (a sin(alpha_w))²)`` about the ring's axis.
-    """
-    return ring_tip / 2 - math.hypot(ring_base / 2, centre * math.sin(alpha_w))
-
-
-def _clears_trochoid(pinion: SpurGear, ring_teeth: int, shift2: float) -> bool:
-    """Whether a ring of ``ring_teeth`` with shift ``shift2`` (nominal teeth) clears the pinion's tip paths."""
-    m, alpha, sys_ = pinion.module, pinion.pressure_angle, pinion.system
-    try:
-        a_w = internal_centre_distance(pinion.teeth, ring_teeth, m, alpha, pinion.shift + shift2)
-    except InputError:
-        return False
-    d2 = ring_teeth * m
-    tip = d2 - 2 * m * (sys_.addendum + shift2 - pinion.tip_shortening)
-    thickness = m * (math.pi / 2 + 2 * shift2 * math.tan(alpha))
-    base = d2 * math.cos(alpha)
-    tip_half_angle = thickness / d2 - inv(alpha) + (inv(math.acos(base / tip)) if tip > base else 0.0)
-    if tip_half_angle <= 0:  # pointed ring teeth
-        return False
-    outer = d2 + 2 * m * (sys_.dedendum - shift2)
-    return trochoid_depth(pinion, ring_teeth, tip, thickness, outer, a_w, samples=901)[0] <= TROCHOID_LIMIT * m
-
-
-def least_tooth_difference(pinion: SpurGear, ring_shift: float = 0.0, limit: int = MAX_TOOTH_DIFFERENCE) -> int:
-    """Least ``z2 - z1`` for which a ring's teeth clear the tip paths of ``pinion`` (no trochoid interference).
-
-    The ring has the same module and tooth system, the shift ``ring_shift``
-    (ISO sign), nominal tips (shortened as much as the pinion's) and involute
-    flanks out to the rack-form root; each difference from 1 upward is tried
-    with :func:`trochoid_depth`, up to ``limit``.  Common
-    practice quotes about 10 to 12 for 20 degree full-depth teeth without shift;
-    this computes it.  Involute interference (the ring's tip against the
-    pinion's interference point) is a separate condition.
-    """
-    for difference in range(1, limit + 1):
-        if _clears_trochoid(pinion, pinion.teeth + difference, ring_shift):
-            return difference
-    raise GeometryError(f"no ring of up to {pinion.teeth + limit} teeth clears the tip paths of the "
-                        f"{pinion.teeth}-tooth pinion (shift {pinion.shift:g}) at ring shift {ring_shift:g}")
-
-
-def require_tooth_difference(pinion_teeth: int, ring_teeth: int, module: float, system: ToothSystem,
-                             shifts: tuple[float, float] = (0.0, 0.0)) -> int:
-    """Raise :class:`InputError` unless the ring has enough teeth for the pinion; return the least difference.
-
-    For callers that must refuse such a ring outright (a planetary layout);
-    ``gearcad pair`` reports it as a failed check instead.
-    """
-    pinion = SpurGear(as_int(pinion_teeth, "pinion tooth count"), module, system, shift=shifts[0])
-    least = least_tooth_difference(pinion, shifts[1])
-    if ring_teeth - pinion_teeth < least:
-        raise InputError(f"ring tooth count {ring_teeth} is too few for a {pinion_teeth}-tooth pinion with shifts "
-                         f"{shifts[0]:g}, {shifts[1]:g}: the tips would strike, so the ring needs at least "
-                         f"{pinion_teeth + least} teeth (tooth-count difference {least} or more)")
-    return least
-
-
 # -- analysis ----------------------------------------------------------------------------
 
 @dataclass(frozen=True)
@@ -456,7 +266,7 @@ def analyse_internal_pair(pair: InternalPair) -> InternalAnalysis:
                RingFigures(r, False, math.nan, ring_profile(r, 1e-3).form_diameter, ring_active, d_w2))
     backlash = _backlash(pair)
     clearances = (r.root_diameter / 2 - a - ra1, ra2 - a - p.root_diameter / 2)
-    margin = _involute_clearance(a, alpha_op, r.tip_diameter, r.base_diameter)
+    margin = involute_clearance(a, alpha_op, r.tip_diameter, r.base_diameter)
     depth, fillet = trochoid_depth(p, r.teeth, r.tip_diameter, r.tooth_thickness, figures[1].form_diameter, a)
     try:
         least: int | None = least_tooth_difference(p, r.shift, limit=pair.tooth_difference + 20)
