@@ -22,6 +22,9 @@ parts that turned inside out without crossing anything, as a circle shrunk by
 more than its radius does).
 
 Lengths in mm, angles in radians.
+
+The raw offset curve is built in :mod:`.offset_raw`; this module cuts away its crossing loops and
+turns what remains back into curves.
 """
 
 from __future__ import annotations
@@ -32,183 +35,14 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import GeometryError, InputError
-from .arcfit import STRAIGHT_KINDS, SampledCurve, smooth_pieces
+from .arcfit import STRAIGHT_KINDS, smooth_pieces
 from .generate import DEFAULT_TOLERANCE, Curve
-from .sampling import arc_step
 from .shape import Loop, polygon_area
+from .offset_raw import CORNER_ANGLE, SAME_POINT, Polyline, arc_sense, cross2d, dot2d, raw_offset, turn_angle
 
 __all__ = ["offset_loop", "min_concave_radius", "CORNER_ANGLE"]
 
-CORNER_ANGLE = 1e-6  # radians: tangents that differ by more than this meet at a corner
-_SAME_POINT = 1e-12  # mm
 _MIN_LOOP_AREA = 1e-12  # mm²: loops smaller than this are rounding debris
-
-
-def _cross(a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    return a[..., 0] * b[..., 1] - a[..., 1] * b[..., 0]
-
-
-def _dot(a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    return a[..., 0] * b[..., 0] + a[..., 1] * b[..., 1]
-
-
-def _right_normal(t: np.ndarray) -> np.ndarray:
-    return np.stack((t[..., 1], -t[..., 0]), axis=-1)
-
-
-def _turn(t0: np.ndarray, t1: np.ndarray) -> np.ndarray:
-    """Signed turn (radians, counter-clockwise positive) from direction ``t0`` to ``t1``."""
-    return np.arctan2(_cross(t0, t1), _dot(t0, t1))
-
-
-def _rotate(t: np.ndarray, angle: np.ndarray) -> np.ndarray:
-    c, s = np.cos(angle), np.sin(angle)
-    return np.column_stack((c * t[0] - s * t[1], s * t[0] + c * t[1]))
-
-
-# -- the raw offset curve ---------------------------------------------------------------
-
-@dataclass(frozen=True)
-class _Source:
-    """What a stretch of the offset curve is: the Curve fields other than the samples."""
-
-    kind: str
-    radius: float
-    centre: tuple[float, float]
-
-
-@dataclass
-class _Run:
-    """Samples of one offset piece, end points included."""
-
-    source: _Source
-    points: np.ndarray
-    tangents: np.ndarray
-    params: np.ndarray
-
-
-def _arc_sense(curve: Curve) -> float:
-    """+1 if the arc runs counter-clockwise round its centre, -1 if clockwise."""
-    rel = curve.points[0] - np.asarray(curve.centre)
-    return 1.0 if float(_cross(rel, curve.tangents[0])) > 0 else -1.0
-
-
-def _offset_arc(curve: Curve, d: float, tolerance: float) -> _Run:
-    """The arc moved by ``d`` to its right: same centre, radius ``R + d`` (counter-clockwise) or ``R - d``."""
-    centre = np.asarray(curve.centre, dtype=float)
-    sense = _arc_sense(curve)
-    radius = curve.radius + sense * d
-    rel = curve.points - centre
-    sweep = float(_turn(rel[:-1], rel[1:]).sum())
-    start = math.atan2(rel[0, 1], rel[0, 0])
-    n = max(2, math.ceil(abs(sweep) / arc_step(max(abs(radius), tolerance), tolerance)) + 1)
-    angles = start + sweep * np.linspace(0.0, 1.0, n)
-    radial = np.column_stack((np.cos(angles), np.sin(angles)))
-    tangents = sense * np.column_stack((-radial[:, 1], radial[:, 0]))
-    points = centre + radius * radial
-    points[0] = curve.points[0] + d * _right_normal(curve.tangents[0])
-    points[-1] = curve.points[-1] + d * _right_normal(curve.tangents[-1])
-    if radius < 0:
-        tangents = -tangents  # the arc turned inside out: it now runs the other way
-    return _Run(_Source(curve.kind, abs(radius), curve.centre), points, tangents, angles)
-
-
-def _offset_line(curve: Curve, d: float) -> _Run:
-    ends = curve.points[[0, -1]]
-    direction = ends[1] - ends[0]
-    direction = direction / math.hypot(*direction)
-    tangents = np.array([direction, direction])
-    return _Run(_Source(curve.kind, 0.0, (0.0, 0.0)), ends + d * _right_normal(tangents), tangents,
-                curve.params[[0, -1]].astype(float))
-
-
-def _offset_free_form(curve: Curve, d: float, tolerance: float) -> _Run:
-    """Exact parallel points of the samples, with interpolated points where the chords would stray."""
-    track = SampledCurve(curve.points, curve.tangents)
-    moved = curve.points + d * _right_normal(curve.tangents)
-    chord = np.hypot(*np.diff(moved, axis=0).T)
-    turn = np.abs(_turn(curve.tangents[:-1], curve.tangents[1:]))
-    sagitta = chord * turn / 8  # of the offset chord: R' (1 - cos(phi/2)) ~ L' phi / 8
-    splits = np.maximum(1, np.ceil(np.sqrt(sagitta / (0.9 * tolerance)))).astype(int)
-    s = np.concatenate([i + np.arange(k) / k for i, k in enumerate(splits)] + [[float(track.last)]])
-    points, tangents = track.at(s)
-    i = np.minimum(np.floor(s).astype(int), track.last - 1)
-    params = curve.params[i] + (s - i) * (curve.params[i + 1] - curve.params[i])
-    return _Run(_Source(curve.kind, 0.0, curve.centre), points + d * _right_normal(tangents), tangents, params)
-
-
-def _offset_curve(curve: Curve, d: float, tolerance: float) -> _Run:
-    if curve.radius > 0:
-        return _offset_arc(curve, d, tolerance)
-    if curve.kind in STRAIGHT_KINDS:
-        return _offset_line(curve, d)
-    return _offset_free_form(curve, d, tolerance)
-
-
-def _corner_run(corner: np.ndarray, t_in: np.ndarray, t_out: np.ndarray, d: float, tolerance: float) -> _Run | None:
-    """What joins two offset pieces at a corner: a join arc, a straight bridge, or nothing (smooth)."""
-    turn = float(_turn(t_in, t_out))
-    if abs(turn) <= CORNER_ANGLE:
-        return None
-    if turn * d > 0:  # the pieces separate: round join centred on the corner
-        n = max(2, math.ceil(abs(turn) / arc_step(abs(d), tolerance)) + 1)
-        phi = np.linspace(0.0, turn, n)
-        tangents = _rotate(t_in, phi)
-        points = corner + d * _right_normal(tangents)
-        return _Run(_Source("arc", abs(d), (float(corner[0]), float(corner[1]))), points, tangents, phi)
-    # the pieces cross: a bridge between their ends, cut away with the crossing loop
-    a, b = corner + d * _right_normal(t_in), corner + d * _right_normal(t_out)
-    direction = (b - a) / max(math.hypot(*(b - a)), _SAME_POINT)
-    tangents = np.array([direction, direction])
-    return _Run(_Source("line", 0.0, (0.0, 0.0)), np.array([a, b]), tangents, np.array([0.0, 1.0]))
-
-
-@dataclass(frozen=True)
-class _Polyline:
-    """The raw closed offset curve: segment k runs from ``points[k]`` to ``points[k + 1]`` (cyclically)."""
-
-    points: np.ndarray  # (K, 2)
-    source: np.ndarray  # (K,) index into ``sources``
-    t0: np.ndarray  # (K, 2) tangent at the segment's start, as part of its source
-    t1: np.ndarray  # (K, 2) tangent at its end
-    p0: np.ndarray  # (K,) curve parameter at the start
-    p1: np.ndarray  # (K,) at the end
-    sources: tuple[_Source, ...]
-
-    @property
-    def ends(self) -> np.ndarray:
-        return np.roll(self.points, -1, axis=0)
-
-
-def _raw_offset(curves: list[Curve], d: float, tolerance: float) -> _Polyline:
-    runs: list[_Run] = []
-    for k, curve in enumerate(curves):
-        runs.append(_offset_curve(curve, d, tolerance))
-        following = curves[(k + 1) % len(curves)]
-        corner = _corner_run(curve.points[-1], curve.tangents[-1], following.tangents[0], d, tolerance)
-        if corner is not None:
-            runs.append(corner)
-    sources = tuple(r.source for r in runs)
-    pts, src, t0, t1, p0, p1 = [], [], [], [], [], []
-    for k, run in enumerate(runs):
-        pts.append(run.points[:-1])  # the next run starts where this one ends
-        src.append(np.full(len(run.points) - 1, k))
-        t0.append(run.tangents[:-1])
-        t1.append(run.tangents[1:])
-        p0.append(run.params[:-1])
-        p1.append(run.params[1:])
-    poly = _Polyline(np.concatenate(pts), np.concatenate(src), np.concatenate(t0), np.concatenate(t1),
-                     np.concatenate(p0), np.concatenate(p1), sources)
-    return _without_empty_segments(poly)
-
-
-def _without_empty_segments(poly: _Polyline) -> _Polyline:
-    step = poly.ends - poly.points
-    keep = np.hypot(step[:, 0], step[:, 1]) > _SAME_POINT
-    if keep.sum() < 3:
-        raise GeometryError("the offset loop has collapsed to a point")
-    return _Polyline(poly.points[keep], poly.source[keep], poly.t0[keep], poly.t1[keep], poly.p0[keep],
-                     poly.p1[keep], poly.sources)
 
 
 # -- self-crossings -------------------------------------------------------------------
@@ -252,7 +86,7 @@ class _Crossings:
     points: np.ndarray
 
 
-def _self_crossings(poly: _Polyline) -> _Crossings:
+def _self_crossings(poly: Polyline) -> _Crossings:
     """Where the closed polyline crosses itself; each segment is taken half-open, ``[start, end)``."""
     a, b = poly.points, poly.ends
     k = len(a)
@@ -260,11 +94,11 @@ def _self_crossings(poly: _Polyline) -> _Crossings:
     neighbours = (j - i == 1) | ((i == 0) & (j == k - 1)) | (i == j)
     i, j = i[~neighbours], j[~neighbours]
     r, s = b[i] - a[i], b[j] - a[j]
-    denominator = _cross(r, s)
+    denominator = cross2d(r, s)
     q = a[j] - a[i]
     with np.errstate(divide="ignore", invalid="ignore"):
-        u = _cross(q, s) / denominator
-        v = _cross(q, r) / denominator
+        u = cross2d(q, s) / denominator
+        v = cross2d(q, r) / denominator
     hit = (denominator != 0) & (u >= 0) & (u < 1) & (v >= 0) & (v < 1)
     i, j, u, v = i[hit], j[hit], u[hit], v[hit]
     return _Crossings(i, u, j, v, a[i] + u[:, None] * (b[i] - a[i]))
@@ -284,7 +118,7 @@ class _Piece:
     end_crossing: int
 
 
-def _pieces(poly: _Polyline, crossings: _Crossings) -> list[_Piece]:
+def _pieces(poly: Polyline, crossings: _Crossings) -> list[_Piece]:
     seg = np.concatenate((crossings.seg_i, crossings.seg_j))
     u = np.concatenate((crossings.u_i, crossings.u_j))
     ident = np.tile(np.arange(len(crossings.seg_i)), 2)
@@ -308,7 +142,7 @@ def _piece_segments(piece: _Piece, k: int) -> list[tuple[int, float, float]]:
     return parts
 
 
-def _winding_right(poly: _Polyline, seg: int, point: np.ndarray) -> int:
+def _winding_right(poly: Polyline, seg: int, point: np.ndarray) -> int:
     """Winding number of the raw curve just right of ``point``, a point inside segment ``seg``.
 
     The other segments subtend a total angle ``S`` at the point; segment ``seg``
@@ -316,12 +150,12 @@ def _winding_right(poly: _Polyline, seg: int, point: np.ndarray) -> int:
     ``(S - pi) / (2 pi)``.
     """
     a, b = poly.points - point, poly.ends - point
-    angles = np.arctan2(_cross(a, b), _dot(a, b))
+    angles = np.arctan2(cross2d(a, b), dot2d(a, b))
     angles[seg] = 0.0
     return int(round((angles.sum() - math.pi) / (2 * math.pi)))
 
 
-def _test_point(poly: _Polyline, parts: list[tuple[int, float, float]]) -> tuple[int, np.ndarray]:
+def _test_point(poly: Polyline, parts: list[tuple[int, float, float]]) -> tuple[int, np.ndarray]:
     a, b = poly.points, poly.ends
     lengths = [(hi - lo) * math.hypot(*(b[s] - a[s])) for s, lo, hi in parts]
     s, lo, hi = parts[int(np.argmax(lengths))]
@@ -340,13 +174,13 @@ class _Original:
     def distance(self, points: np.ndarray, chunk: int = 64) -> np.ndarray:
         """Distance (mm) from each point to the polyline."""
         d = self.ends - self.starts
-        length2 = np.maximum(_dot(d, d), _SAME_POINT ** 2)
+        length2 = np.maximum(dot2d(d, d), SAME_POINT ** 2)
         out = np.empty(len(points))
         for k in range(0, len(points), chunk):
             rel = points[k:k + chunk, None, :] - self.starts[None]
-            u = np.clip(_dot(rel, d[None]) / length2, 0.0, 1.0)
+            u = np.clip(dot2d(rel, d[None]) / length2, 0.0, 1.0)
             gap = rel - u[..., None] * d[None]
-            out[k:k + chunk] = np.sqrt(_dot(gap, gap).min(axis=1))
+            out[k:k + chunk] = np.sqrt(dot2d(gap, gap).min(axis=1))
         return out
 
 
@@ -361,12 +195,12 @@ def _original(curves: list[Curve], d: float, tolerance: float) -> _Original:
     tan = np.concatenate([c.tangents[:-1] for c in curves])
     ends = np.roll(pts, -1, axis=0)
     chord = np.hypot(*(ends - pts).T)
-    turn = np.abs(_turn(tan, np.concatenate([c.tangents[1:] for c in curves])))
+    turn = np.abs(turn_angle(tan, np.concatenate([c.tangents[1:] for c in curves])))
     sagitta = float((chord * np.minimum(turn, math.pi) / 8).max(initial=0.0))
     return _Original(pts, ends, abs(d) - 2 * sagitta - 2 * tolerance)
 
 
-def _kept_chains(poly: _Polyline, crossings: _Crossings, original: _Original) -> list[list[tuple[int, float, float]]]:
+def _kept_chains(poly: Polyline, crossings: _Crossings, original: _Original) -> list[list[tuple[int, float, float]]]:
     """The stretches of the raw curve that bound the material, chained into closed loops.
 
     A stretch is kept if the raw curve winds 0 times round the point just to
@@ -409,7 +243,7 @@ def _kept_chains(poly: _Polyline, crossings: _Crossings, original: _Original) ->
 
 # -- back to curves -------------------------------------------------------------------
 
-def _points_on(poly: _Polyline, seg: np.ndarray, u: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def _points_on(poly: Polyline, seg: np.ndarray, u: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Points, unit tangents and curve parameters at fractions ``u`` along segments ``seg``."""
     w = u[:, None]
     a, b = poly.points[seg], poly.ends[seg]
@@ -419,7 +253,7 @@ def _points_on(poly: _Polyline, seg: np.ndarray, u: np.ndarray) -> tuple[np.ndar
     return a + w * (b - a), t, (1 - u) * poly.p0[seg] + u * poly.p1[seg]
 
 
-def _chain_to_curves(poly: _Polyline, chain: list[tuple[int, float, float]]) -> list[Curve]:
+def _chain_to_curves(poly: Polyline, chain: list[tuple[int, float, float]]) -> list[Curve]:
     """Group the chain's stretches by source into Curves (each ends where the next begins)."""
     st = np.array([s for s in chain if s[2] > s[1]], dtype=float).reshape(-1, 3)
     seg, lo, hi = st[:, 0].astype(int), st[:, 1], st[:, 2]
@@ -444,7 +278,7 @@ def _chain_to_curves(poly: _Polyline, chain: list[tuple[int, float, float]]) -> 
     return curves
 
 
-def _loop_from_chains(poly: _Polyline, chains: list[list[tuple[int, float, float]]], distance: float) -> Loop:
+def _loop_from_chains(poly: Polyline, chains: list[list[tuple[int, float, float]]], distance: float) -> Loop:
     loops = [Loop(tuple(_chain_to_curves(poly, c))) for c in chains]
     loops = [lp for lp in loops if abs(lp.area()) > _MIN_LOOP_AREA]
     if not loops:
@@ -511,7 +345,7 @@ def offset_loop(loop: Loop, distance: float, tolerance: float = DEFAULT_TOLERANC
     work = loop if counter_clockwise else loop.reversed()
     grow = distance if counter_clockwise else -distance  # to the right of the counter-clockwise loop
     curves = _split_at_cusps(work.curves)
-    poly = _raw_offset(curves, grow, tolerance)
+    poly = raw_offset(curves, grow, tolerance)
     chains = _kept_chains(poly, _self_crossings(poly), _original(curves, grow, tolerance))
     result = _loop_from_chains(poly, chains, distance)
     return result if counter_clockwise else result.reversed()
@@ -535,7 +369,7 @@ def min_concave_radius(loop: Loop) -> float:
     curves = loop.curves
     for k, curve in enumerate(curves):
         smallest = min(smallest, _curve_concave_radius(curve))
-        turn = float(_turn(curve.tangents[-1], curves[(k + 1) % len(curves)].tangents[0]))
+        turn = float(turn_angle(curve.tangents[-1], curves[(k + 1) % len(curves)].tangents[0]))
         if turn < -CORNER_ANGLE:
             smallest = 0.0
     return smallest
@@ -543,17 +377,17 @@ def min_concave_radius(loop: Loop) -> float:
 
 def _curve_concave_radius(curve: Curve) -> float:
     if curve.radius > 0:
-        return curve.radius if _arc_sense(curve) < 0 else math.inf
+        return curve.radius if arc_sense(curve) < 0 else math.inf
     if curve.kind in STRAIGHT_KINDS:
         return math.inf
     smallest = math.inf
     pieces = smooth_pieces(curve)
     for n, piece in enumerate(pieces):
-        if n and float(_turn(pieces[n - 1].tangents[-1], piece.tangents[0])) < -CORNER_ANGLE:
+        if n and float(turn_angle(pieces[n - 1].tangents[-1], piece.tangents[0])) < -CORNER_ANGLE:
             smallest = 0.0
         if piece.kind in STRAIGHT_KINDS:
             continue
-        turn = _turn(piece.tangents[:-1], piece.tangents[1:])
+        turn = turn_angle(piece.tangents[:-1], piece.tangents[1:])
         chord = np.hypot(*np.diff(piece.points, axis=0).T)
         half = np.abs(turn) / 2
         length = chord * np.where(half > 0, half / np.sin(np.where(half > 0, half, 1.0)), 1.0)
