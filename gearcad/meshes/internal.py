@@ -3,23 +3,11 @@
 Sign convention (see :mod:`gearcad.geometry.internal`): tooth counts and
 diameters are positive; profile shifts keep ISO 21771's sign (positive towards
 each gear's tooth tips).  Writing the ring's teeth as ``-z2`` turns the formulas
-below into the external-pair formulas of ISO 21771, clause 5.
+of :mod:`.internal_centre` into the external-pair formulas of ISO 21771, clause 5.
 
-Zero-backlash meshing (derivation).  On the working pitch circles the pinion's
-tooth must fill the ring's space: ``s_w1 = e_w2``, so ``s_w1 + s_w2 = p_w``.
-With ``s_w1 = d_w1 (s1/d1 + inv(alpha) - inv(alpha_w))``, the ring's tooth
-``s_w2 = d_w2 (s2/d2 - inv(alpha) + inv(alpha_w))`` (a ring tooth is an external
-tooth space), ``s_i = m (pi/2 + 2 x_i tan(alpha))`` and ``p_w = pi d_w / z``:
-
-``inv(alpha_w) = inv(alpha) - 2 tan(alpha) (x1 + x2) / (z2 - z1)``,
-``a_w = (z2 - z1) m cos(alpha) / (2 cos(alpha_w))``.
-
-Handbooks that count the ring's shift away from the axis write the first as
-``inv(alpha) + 2 tan(alpha) (x2 - x1) / (z2 - z1)``: the same with ``x2 -> -x2``.
+The zero-backlash centre distance and its derivation are in :mod:`.internal_centre`, the
+interference checks in :mod:`.internal_interference`; this module re-exports both.
 Lengths in mm, angles in radians.  Pure functions; no I/O.
-
-The centre-distance formulas live in :mod:`.internal_centre`, the interference checks in
-:mod:`.internal_interference`; this module re-exports them.
 """
 
 from __future__ import annotations
