@@ -18,8 +18,12 @@ CONVENTION = ("Ratio = output turns per input turn = the product over stages of 
 DESCRIPTION = """\
 Find the tooth counts of a compound gear train that reaches TARGET as closely as
 the limits allow.  The search is exact: for each stage count the first train is
-the best there is within the limits (least |relative error|, ties to fewer
-teeth).  One train is shown per distinct ratio, the one with the fewest teeth.
+the best there is within the limits (least |relative error|).  --count K
+lists K distinct trains per stage count, different trains of one ratio
+included; trains of equal error are ranked meshes first that pass the pair
+checks without a warning (no thin tips, no undercut left after the least
+shift; judged at module 1 with the shifts, tooth system and backlash that
+gearcad design uses by default), then fewer teeth.
 
 Ratio = output turns per input turn = the product over stages of driver
 teeth / driven teeth.  Each external mesh reverses the direction of rotation;
@@ -60,7 +64,8 @@ def add_parser(subparsers: Any) -> argparse.ArgumentParser:
     parser.add_argument("--tolerance", type=float, metavar="REL",
                         help="list every train with |relative error| <= REL (up to --count); exit 1 if none")
     parser.add_argument("--count", type=int, metavar="K",
-                        help="trains listed per stage count (default 5; 1 when --stages is left out)")
+                        help="distinct trains listed per stage count, trains of one ratio included (default 5; 1 when "
+                             "--stages is left out)")
     add_solver_options(parser)
     parser.add_argument("--fractions", action="store_true",
                         help="list the continued-fraction convergents and semiconvergents of the target and mark "
@@ -129,14 +134,16 @@ def _query(args: argparse.Namespace, target: Any, limits: Any, counts: tuple[int
     return RatioQuery(target, counts, limits, count, args.coaxial, args.shift_limit)
 
 
-def _train_json(train: Any, tolerance: float | None = None) -> dict[str, Any]:
+def _train_json(train: Any, tolerance: float | None = None, clean: Any = None) -> dict[str, Any]:
     within = tolerance is None or abs(train.relative_error) <= tolerance
-    out = {"numerator": train.numerator, "denominator": train.denominator, "ratio": train.ratio,
+    out: dict[str, Any] = {"numerator": train.numerator, "denominator": train.denominator, "ratio": train.ratio,
            "relative_error": train.relative_error, "direction": train.direction,
            "stages": [{"driver": d, "driven": n} for d, n in train.stages], "idler": train.idler,
            "total_teeth": train.total_teeth, "within_tolerance": within}
     if train.shifts is not None:
         out["shifts"] = [{"driver": a, "driven": b} for a, b in train.shifts]
+    if clean is not None:
+        out["meshes_clean"] = clean(train)
     return out
 
 
@@ -147,15 +154,19 @@ def _stages_text(train: Any) -> str:
     return text
 
 
-def _rows(trains: Sequence[Any]) -> list[list[str]]:
+def _rows(trains: Sequence[Any], clean: Any = None) -> list[list[str]]:
     return [[str(i), str(len(t.stages)), _stages_text(t), f"{t.numerator}/{t.denominator}", f"{t.ratio:.15g}",
              f"{t.relative_error * 1e6:+.6f}", f"{t.relative_error:+.3e}", t.direction,
              str(t.idler) if t.idler is not None else "-", str(t.total_teeth)]
+            + ([("clean" if clean(t) else "warning")] if clean is not None else [])
             for i, t in enumerate(trains, 1)]
 
 
 _HEADER = ["#", "stages", "driver/driven per stage", "exact ratio", "decimal", "error ppm", "rel. error",
            "output", "idler", "teeth"]
+#: The column of the mesh judgement (see gearcad.ratio.clean).
+_MESHES = "meshes"
+
 
 
 def _heading(target: Any, limits: Any) -> str:
@@ -243,12 +254,15 @@ def run(args: argparse.Namespace) -> int:
         else:
             print(note)
         return 1
-    from ..ratio.solve import solve_ratio, within_tolerance
+    from ..ratio.clean import MeshJudge
+    from ..ratio.listing import distinct_trains
+    from ..ratio.solve import within_tolerance
 
     query = _query(args, target, limits, reachable)
     progress = _LazyProgress(enabled=not args.json and sys.stderr.isatty())
+    clean = MeshJudge().clean
     try:
-        trains = solve_ratio(query, progress)
+        trains = distinct_trains(query, clean, progress)
     finally:
         progress.close()
     shown = within_tolerance(trains, tolerance) if tolerance is not None else trains
@@ -257,7 +271,8 @@ def run(args: argparse.Namespace) -> int:
     left_out = [k for k in counts if k not in reachable]
     if args.json:
         out = {"target": {"expression": target.expression, "value": target.value},
-               "results": [_train_json(t, tolerance) for t in shown], "tolerance": tolerance, "reach": reach.as_json()}
+               "results": [_train_json(t, tolerance, clean) for t in shown], "tolerance": tolerance,
+               "reach": reach.as_json()}
         if left_out:
             out["stage_counts_beyond_reach"] = left_out
         print_json(out)
@@ -266,7 +281,9 @@ def run(args: argparse.Namespace) -> int:
     if left_out:
         print(f"left out: {_counts_text(left_out)} cannot reach {target.expression} "
               f"(they reach {reach_of(limits, (max(left_out),)).describe()})")
-    print(table(_rows(shown), _HEADER))
+    print(table(_rows(shown, clean), _HEADER + [_MESHES]))
+    print("meshes: clean = every mesh passes the pair checks without a warning at module 1 (shifts against "
+          "undercut, backlash of the default fabrication profile)")
     return 0
 
 
