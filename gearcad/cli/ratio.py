@@ -242,6 +242,10 @@ def run(args: argparse.Namespace) -> int:
     limits = limits_from_args(args)
     tolerance = tolerance_value(args.tolerance) if args.tolerance is not None else None
     counts = stage_counts_from_args(args)
+    if args.count is not None:  # bad input is refused before anything else is said
+        from ..ratio.tolerance import count_value
+
+        count_value(args.count)
     reach = reach_of(limits, counts)
     reachable = tuple(k for k in counts if reach_of(limits, (k,)).holds(target.approx))
     if args.fractions:
