@@ -70,7 +70,7 @@ def add_parser(subparsers: Any) -> argparse.ArgumentParser:
     parser.add_argument("--fractions", action="store_true",
                         help="list the continued-fraction convergents and semiconvergents of the target and mark "
                              "those that a train of at most N stages realises exactly")
-    add_planetary_options(parser)
+    add_planetary_options(parser, any_kind=True)
     from ._summing import add_summing_options
 
     add_summing_options(parser)
@@ -96,8 +96,8 @@ def _refuse(args: argparse.Namespace, options: Sequence[tuple[str, str]], kind: 
 
     for attr, flag in options:
         if getattr(args, attr, None) not in (None, False):
-            raise InputError(f"{flag} does not apply to --kind {kind}; allowed: "
-                             f"{'--kind planetary' if kind == 'compound' else '--kind compound'} for it")
+            other = {"compound": "--kind planetary", "any": "one --kind of train"}.get(kind, "--kind compound")
+            raise InputError(f"{flag} does not apply to --kind {kind}; allowed: {other} for it")
 
 
 class _LazyProgress:
@@ -194,14 +194,15 @@ def _print_fractions(args: argparse.Namespace, target: Any, limits: Any) -> int:
     return 0
 
 
-def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any], reach: Any) -> int:
+def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any], reach: Any, other: str = "") -> int:
     from ..ratio.solve import binding_limits
 
     binding = binding_limits(query, args.tolerance) if trains else []
     if args.json:
         print_json({"target": {"expression": query.target.expression, "value": query.target.value}, "results": [],
                     "tolerance": args.tolerance, "reach": reach.as_json(),
-                    "best": _train_json(trains[0], args.tolerance) if trains else None, "binding": binding})
+                    "best": _train_json(trains[0], args.tolerance) if trains else None, "binding": binding,
+                    **({"other_kinds": other} if other else {})})
         return 1
     print(_heading(query.target, query.limits))
     if not trains:
@@ -214,6 +215,8 @@ def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any], re
     else:
         print("binding: the limits together; no single relaxation of the stage ratio, hunting, exclusions, "
               "tooth range or stage count meets the tolerance")
+    if other:
+        print(other)
     return 1
 
 
@@ -222,6 +225,11 @@ def run(args: argparse.Namespace) -> int:
     from ..ratio.target import parse_target
     from ..ratio.tolerance import tolerance_value
 
+    if args.kind == "any":
+        from ._kinds import ANY_REFUSED, run_any
+
+        _refuse(args, ANY_REFUSED, "any")
+        return run_any(args, _train_json, _planetary_json)
     if args.kind == "planetary":
         _refuse(args, _COMPOUND_ONLY + (("differential", "--differential"), ("separate_axes", "--separate-axes")), "planetary")
         return _run_planetary(args)
@@ -270,8 +278,9 @@ def run(args: argparse.Namespace) -> int:
     finally:
         progress.close()
     shown = within_tolerance(trains, tolerance) if tolerance is not None else trains
+    other = _other_kinds(args, trains, tolerance)
     if not shown:
-        return _report_miss(args, query, trains, reach)
+        return _report_miss(args, query, trains, reach, other)
     left_out = [k for k in counts if k not in reachable]
     if args.json:
         out = {"target": {"expression": target.expression, "value": target.value},
@@ -279,6 +288,8 @@ def run(args: argparse.Namespace) -> int:
                "reach": reach.as_json()}
         if left_out:
             out["stage_counts_beyond_reach"] = left_out
+        if other:
+            out["other_kinds"] = other
         print_json(out)
         return 0
     print(_heading(target, limits))
@@ -288,7 +299,21 @@ def run(args: argparse.Namespace) -> int:
     print(table(_rows(shown, clean), _HEADER + [_MESHES]))
     print("meshes: clean = every mesh passes the pair checks without a warning at module 1 (shifts against "
           "undercut, backlash of the default fabrication profile)")
+    if other:
+        print(other)
     return 0
+
+
+def _other_kinds(args: argparse.Namespace, trains: Sequence[Any], tolerance: float | None) -> str:
+    """The note that another kind meets the tolerance (``--tolerance``, else design's default) the best misses."""
+    from ..ratio.tolerance import DESIGN_TOLERANCE
+    from ._kinds import other_kinds_line
+
+    if args.coaxial:
+        return ""
+    wanted = tolerance if tolerance is not None else DESIGN_TOLERANCE
+    best = abs(trains[0].relative_error) if trains else None
+    return other_kinds_line(args, "compound", best, wanted) if best is None or best > wanted else ""
 
 
 def _counts_text(counts: Sequence[int]) -> str:
@@ -372,11 +397,16 @@ def _run_planetary(args: argparse.Namespace) -> int:
     shown = within_tolerance(results, args.tolerance) if args.tolerance is not None else results
     head = {"expression": target.expression, "value": target.value}
     wanted = args.tolerance if args.tolerance is not None else DESIGN_TOLERANCE
-    hint = planetary_alternatives(query, wanted) if not results or abs(results[0].relative_error) > wanted else ""
+    missed = not results or abs(results[0].relative_error) > wanted
+    hint = planetary_alternatives(query, wanted) if missed else ""
+    from ._kinds import other_kinds_line
+
+    other = other_kinds_line(args, "planetary", abs(results[0].relative_error) if results else None, wanted) \
+        if missed else ""
     if not shown:
         if args.json:
             print_json({"target": head, "results": [], "best": _planetary_json(results[0]) if results else None,
-                        "alternatives": hint})
+                        "alternatives": hint, **({"other_kinds": other} if other else {})})
             return 1
         print(_planetary_heading(query))
         if not results:
@@ -384,17 +414,21 @@ def _run_planetary(args: argparse.Namespace) -> int:
         else:
             print(f"no set within tolerance {args.tolerance:g}; the best found:")
             print(table(_planetary_rows(results[:1]), _PLANETARY_HEADER))
-        if hint:
-            print(hint)
+        for line in (hint, other):
+            if line:
+                print(line)
         return 1
     if args.json:
         out = {"target": head, "results": [_planetary_json(r) for r in shown]}
         if hint:
             out["alternatives"] = hint
+        if other:
+            out["other_kinds"] = other
         print_json(out)
         return 0
     print(_planetary_heading(query))
     print(table(_planetary_rows(shown), _PLANETARY_HEADER))
-    if hint:
-        print(hint)
+    for line in (hint, other):
+        if line:
+            print(line)
     return 0
