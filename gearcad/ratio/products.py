@@ -38,7 +38,10 @@ def _outer_unique(left: np.ndarray, right: np.ndarray) -> np.ndarray:
         seen = np.zeros(top + 1, dtype=bool)
         seen[products] = True
         return np.flatnonzero(seen).astype(np.int64)
-    return np.unique(products)
+    products.sort()  # sort and drop repeats (numpy's hash-based unique is slower on these arrays)
+    first = np.ones(len(products), dtype=bool)
+    first[1:] = products[1:] != products[:-1]
+    return products[first]
 
 
 def sieve_square_products(values: np.ndarray, segment_bits: int = 1 << 30) -> np.ndarray:
@@ -61,8 +64,8 @@ def sieve_square_products(values: np.ndarray, segment_bits: int = 1 << 30) -> np
             offsets = values[first[i]:last[i]] * values[i] - start
             bits[offsets >> 3] |= masks[offsets & 7]  # one row never hits a byte twice (steps >= 8)
         nonzero = np.flatnonzero(bits)
-        r, c = np.nonzero(np.unpackbits(bits[nonzero][:, None], axis=1, bitorder="little"))
-        found.append(nonzero[r] * 8 + c + start)
+        at = np.flatnonzero(np.unpackbits(bits[nonzero], bitorder="little"))  # 1-D: far faster than a 2-D nonzero
+        found.append(nonzero[at >> 3] * 8 + (at & 7) + start)
     return np.concatenate(found)
 
 
@@ -120,11 +123,10 @@ def smooth_mask(values: np.ndarray, largest_factor: int) -> np.ndarray:
     """True where every prime factor of ``values`` is at most ``largest_factor``."""
     rest = values.astype(np.int64).copy()
     for prime in _primes_up_to(largest_factor):
-        while True:
-            divisible = rest % prime == 0
-            if not divisible.any():
-                break
-            rest[divisible] //= prime
+        at = np.flatnonzero(rest % prime == 0)  # one pass over all; then only the divisible ones again
+        while len(at):
+            rest[at] //= prime
+            at = at[rest[at] % prime == 0]
     return rest == 1
 
 
