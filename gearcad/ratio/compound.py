@@ -263,11 +263,15 @@ class _Search:
         if len(self.found) >= self.count:
             return None
         eps = generator.eps_for_budget(_SCAN_BUDGET)
+        done = 0.0
         while generator.usable(eps):
             if self.window(*generator.within(eps, self.progress), eps):
                 return None
-            eps *= 4
-        return eps / 4
+            done = eps
+            # ratios found grow about linearly with eps: aim at the count with a margin (x2 to x8 a round)
+            have = len(self.found)
+            eps *= 4 if have == 0 else min(8.0, max(2.0, 1.5 * self.count / have))
+        return done
 
     def _report(self, fraction: float) -> None:
         if self.progress is not None:

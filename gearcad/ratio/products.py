@@ -14,7 +14,7 @@ from typing import Iterator, Sequence
 import numpy as np
 
 __all__ = [
-    "multiset_count", "product_set", "sieve_square_products", "product_blocks", "product_sum",
+    "multiset_count", "product_set", "sieve_square_products", "products_upto", "product_blocks", "product_sum",
     "smooth_mask", "Factorizer", "sum_lower_bound",
 ]
 
@@ -44,14 +44,18 @@ def _outer_unique(left: np.ndarray, right: np.ndarray) -> np.ndarray:
     return products[first]
 
 
-def sieve_square_products(values: np.ndarray, segment_bits: int = 1 << 30) -> np.ndarray:
-    """Sorted distinct products ``a * b`` of a sorted array with itself, by a bit sieve.
+def sieve_square_products(values: np.ndarray, segment_bits: int = 1 << 30, upto: int | None = None) -> np.ndarray:
+    """Sorted distinct products ``a * b`` of a sorted array with itself (at most ``upto``), by a bit sieve.
 
     Used instead of sorting when the products are many: it marks each product
     in a bitmap (segment by segment, so memory stays at ``segment_bits / 8``
     bytes) and reads the set bits back in order.
     """
     low, high = int(values[0]) ** 2, int(values[-1]) ** 2
+    if upto is not None:
+        high = min(high, int(upto))
+    if high < low:
+        return np.zeros(0, dtype=np.int64)
     masks = (np.uint8(1) << np.arange(8, dtype=np.uint8))
     rows = np.arange(len(values))
     found = []
@@ -80,6 +84,14 @@ def product_set(teeth: Sequence[int], k: int) -> np.ndarray:
     for _ in range(k - 1):
         result = _outer_unique(result, base)
     return result
+
+
+def products_upto(teeth: Sequence[int], k: int, upto: int) -> np.ndarray:
+    """Sorted distinct products of ``k`` tooth counts that are at most ``upto``."""
+    if k == 4:
+        return sieve_square_products(product_set(teeth, 2), upto=upto)
+    found = product_set(teeth, k)
+    return found[found <= upto]
 
 
 def _split(k: int) -> tuple[int, int]:
