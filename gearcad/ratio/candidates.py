@@ -189,19 +189,24 @@ class ScanCandidates:
     def _block_hits(self, rows: np.ndarray, cols: np.ndarray, eps: float) -> tuple[np.ndarray, np.ndarray]:
         """Pairs of one block: every integer ``C`` within ``eps C`` of ``t E`` (``E`` a streamed product)."""
         x = np.multiply.outer(rows * self.t, cols.astype(float)).ravel()
-        streamed = np.multiply.outer(rows, cols).ravel()
+        width = len(cols)
         if eps * (float(x.max()) if x.size else 0.0) < 0.45:  # one integer per product can lie in the window
-            c = np.rint(x)
-            at = np.flatnonzero(np.abs(c - x) <= c * (eps + FLOAT_MARGIN) + 1e-9)
-            found_c, found_e = [c[at].astype(np.int64)], [streamed[at]]
+            nearest = np.rint(x)
+            limit = nearest * (eps + FLOAT_MARGIN)
+            limit += 1e-9
+            np.subtract(x, nearest, out=x)
+            np.abs(x, out=x)
+            at = np.flatnonzero(x <= limit)
+            c = nearest[at]
         else:  # every integer of [x - w, x + w] (w bounds eps C from above), listed without a loop over offsets
             w = x * (eps * (1 + 2 * eps) + FLOAT_MARGIN) + 1e-9
             low, high = np.ceil(x - w), np.floor(x + w)
             counts = np.maximum(high - low + 1, 0).astype(np.int64)
             owner = np.repeat(np.arange(len(x)), counts)
             c = low[owner] + (np.arange(len(owner)) - np.repeat(np.cumsum(counts) - counts, counts))
-            at = np.flatnonzero(np.abs(c - x[owner]) <= c * (eps + FLOAT_MARGIN) + 1e-9)
-            found_c, found_e = [c[at].astype(np.int64)], [streamed[owner[at]]]
+            keep = np.flatnonzero(np.abs(c - x[owner]) <= c * (eps + FLOAT_MARGIN) + 1e-9)
+            at, c = owner[keep], c[keep]
+        found_c, found_e = [c.astype(np.int64)], [rows[at // width] * cols[at % width]]
         c, e = np.concatenate(found_c), np.concatenate(found_e)
         p, q = (e, c) if self.swap else (c, e)
         lo_ratio, hi_ratio = self.ratio_range

@@ -47,7 +47,7 @@ __all__ = ["solve_compound", "stage_ratio_range", "check_stages", "needs_idler",
 
 #: Up to this many multisets of k tooth counts the sorted product set is built.
 SORTED_LIMIT = 3_000_000
-_SCAN_BUDGET = 200_000
+_SCAN_BUDGET = 2_000_000
 #: Driven products sampled to size the first windows of the sorted search (sizing only: results are exact anyway).
 _SIZING_SAMPLE = 250_000
 #: Float errors closer than this are ranked together exactly (float error of an error is ~1e-15).
