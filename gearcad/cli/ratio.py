@@ -307,13 +307,16 @@ def run(args: argparse.Namespace) -> int:
 def _other_kinds(args: argparse.Namespace, trains: Sequence[Any], tolerance: float | None) -> str:
     """The note that another kind meets the tolerance (``--tolerance``, else design's default) the best misses."""
     from ..ratio.tolerance import DESIGN_TOLERANCE
-    from ._kinds import other_kinds_line
 
     if args.coaxial:
         return ""
     wanted = tolerance if tolerance is not None else DESIGN_TOLERANCE
     best = abs(trains[0].relative_error) if trains else None
-    return other_kinds_line(args, "compound", best, wanted) if best is None or best > wanted else ""
+    if best is not None and best <= wanted:
+        return ""
+    from ._kinds import other_kinds_line
+
+    return other_kinds_line(args, "compound", best, wanted)
 
 
 def _counts_text(counts: Sequence[int]) -> str:
