@@ -28,8 +28,12 @@ def test_json_layout_and_optimum(capsys):
     assert code == 0
     assert out["target"] == {"expression": "29.530588853", "value": 29.530588853}
     assert all(set(r) >= KEYS for r in out["results"])
-    got = [(r["numerator"], r["denominator"], r["total_teeth"]) for r in out["results"]]
-    assert got == exhaustive(parse_target("29.530588853"), 2, make_limits(), 4)  # exhaustive reference
+    reference = exhaustive(parse_target("29.530588853"), 2, make_limits(), 4)  # exhaustive reference
+    ratios = [(r["numerator"], r["denominator"]) for r in out["results"]]
+    assert ratios[0] == reference[0][:2]  # the best ratio first
+    # distinct trains, one ratio may come several times: the ratios listed are the best ones, in their order
+    assert list(dict.fromkeys(ratios)) == [(p, q) for p, q, _ in reference][:len(set(ratios))]
+    assert len({tuple((s["driver"], s["driven"]) for s in r["stages"]) for r in out["results"]}) == 4
     for r in out["results"]:
         assert Fraction(r["numerator"], r["denominator"]) == Fraction(
             eval_product([(s["driver"], s["driven"]) for s in r["stages"]]))
@@ -51,11 +55,13 @@ def test_default_searches_one_to_three_stages(capsys):
 
 
 def test_direction_and_idler(capsys):
-    code, out = run_json(capsys, "3", "--stages", "1", "--direction", "same", "--count", "1")
+    # from 20 teeth up every mesh passes without a warning, so the fewest teeth decide: 60/20 and a 20-tooth idler
+    code, out = run_json(capsys, "3", "--stages", "1", "--direction", "same", "--count", "1", "--min-teeth", "20")
     assert code == 0
     best = out["results"][0]
-    assert best["direction"] == "same" and best["idler"] == 10  # 1 mesh + idler = 2 meshes: same sense
-    assert best["total_teeth"] == sum(s["driver"] + s["driven"] for s in best["stages"]) + 10
+    assert best["direction"] == "same" and best["idler"] == 20  # 1 mesh + idler = 2 meshes: same sense
+    assert best["total_teeth"] == sum(s["driver"] + s["driven"] for s in best["stages"]) + 20
+    assert best["meshes_clean"] is True
 
 
 def test_inventory_127_exact(capsys):

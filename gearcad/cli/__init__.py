@@ -40,14 +40,16 @@ class OneLineParser(argparse.ArgumentParser):
         self.exit(2, f"{self.prog}: error: {message} (see {self.prog} --help)\n")
 
 
-def build_parser() -> argparse.ArgumentParser:
-    """The top-level parser with every available command."""
+def build_parser(only: str | None = None) -> argparse.ArgumentParser:
+    """The top-level parser with every available command (or, with ``only``, that one: a faster start)."""
     parser = OneLineParser(prog="gearcad", description="From a gear ratio to meshing involute gears and files a machine accepts.")
     from .. import __version__
 
     parser.add_argument("--version", action="version", version=f"gearcad {__version__}")
     subparsers = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=OneLineParser)
     for name, module_name in COMMANDS.items():
+        if only is not None and name != only:
+            continue
         try:
             module = importlib.import_module(module_name)
         except ModuleNotFoundError as exc:  # a command still being built
@@ -61,7 +63,8 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``gearcad`` command; returns the exit code."""
-    parser = build_parser()
+    argv = list(sys.argv[1:] if argv is None else argv)
+    parser = build_parser(argv[0] if argv and argv[0] in COMMANDS else None)  # one command: import only its module
     try:
         args = parser.parse_args(argv)
     except SystemExit as exc:  # argparse: --help (0) or a usage error (2, already printed as one line)

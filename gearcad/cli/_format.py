@@ -2,17 +2,19 @@
 
 from __future__ import annotations
 
-import json
 import sys
 from typing import Any, Iterable, Sequence
 
-from ..export.jsonable import jsonable
 
 __all__ = ["print_json", "table", "fmt"]
 
 
 def print_json(obj: Any) -> None:
     """Print ``obj`` as indented JSON on stdout (the only thing on stdout with --json)."""
+    import json
+
+    from ..export.jsonable import jsonable  # here, not at the top: building the parser must stay light
+
     sys.stdout.write(json.dumps(jsonable(obj), indent=2, ensure_ascii=False) + "\n")
 
 

@@ -96,11 +96,17 @@ MEMBERS = ("sun", "ring", "carrier")
 DEFAULT_PLANETS, MAX_PLANETS, DEFAULT_MAX_RING_TEETH, NEIGHBOUR_MARGIN = 3, 24, 200, 0.5
 
 
-def add_planetary_options(parser: argparse.ArgumentParser) -> None:
-    """Planetary options: --kind, --planets, --fixed, --input, --stepped, --max-ring-teeth, --neighbour-margin."""
-    parser.add_argument("--kind", choices=("compound", "planetary", "summing"), default="compound",
+def add_planetary_options(parser: argparse.ArgumentParser, any_kind: bool = False) -> None:
+    """Planetary options: --kind, --planets, --fixed, --input, --stepped, --max-ring-teeth, --neighbour-margin.
+
+    ``any_kind`` adds ``--kind any`` (the best of each kind side by side; ``gearcad ratio`` only).
+    """
+    kinds = ("compound", "planetary", "summing") + (("any",) if any_kind else ())
+    parser.add_argument("--kind", choices=kinds, default="compound",
                         help="a compound train (default), a planetary set, or a summing train (two paths and a "
-                             "differential: reaches fractions with primes above the largest tooth count)")
+                             "differential: reaches fractions with primes above the largest tooth count)"
+                             + ("; any: the best of each kind side by side, with the diameter each takes"
+                                if any_kind else ""))
     parser.add_argument("--planets", type=int, metavar="N",
                         help=f"planetary: number of planets, 1 to {MAX_PLANETS} (default {DEFAULT_PLANETS}); summing: the "
                              "differential's planets (planet pairs of --differential mean)")

@@ -6,7 +6,7 @@ import argparse
 
 from ._format import print_json, table
 
-__all__ = ["add_summing_options", "run_summing", "on_the_shelf"]
+__all__ = ["add_summing_options", "run_summing", "on_the_shelf", "summing_json"]
 
 
 def add_summing_options(parser: argparse.ArgumentParser) -> None:
@@ -19,7 +19,7 @@ def add_summing_options(parser: argparse.ArgumentParser) -> None:
                              "default both reach one differential axle from one input shaft, as gearcad build needs)")
 
 
-def _json(train, check) -> dict:
+def summing_json(train, check) -> dict:
     paths = [{"driver": d, "driven": n, "idler": s > 0} for (d, n), s in ((train.path_a, train.sign_a), (train.path_b, train.sign_b))]
     members = {"differential": train.kind, "paths": paths, "kinematic_check": str(check), "axis_teeth": train.axis_teeth}
     if train.planetary:
@@ -83,7 +83,7 @@ def run_summing(args: argparse.Namespace, limits) -> int:
     shown = [(t, m) for t, m in checked if args.tolerance is None or abs(t.relative_error) <= args.tolerance]
     if args.json:
         print_json({"target": {"expression": target.expression, "value": target.value},
-                    "results": [_json(t, m) for t, m in shown]})
+                    "results": [summing_json(t, m) for t, m in shown]})
         return 0 if shown else 1
     print(f"target {target.expression} = {target.digits(20)}")
     print(f"summing train: two one-stage paths from the input into a {kind} differential; "

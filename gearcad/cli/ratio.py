@@ -18,8 +18,12 @@ CONVENTION = ("Ratio = output turns per input turn = the product over stages of 
 DESCRIPTION = """\
 Find the tooth counts of a compound gear train that reaches TARGET as closely as
 the limits allow.  The search is exact: for each stage count the first train is
-the best there is within the limits (least |relative error|, ties to fewer
-teeth).  One train is shown per distinct ratio, the one with the fewest teeth.
+the best there is within the limits (least |relative error|).  --count K
+lists K distinct trains per stage count, different trains of one ratio
+included; trains of equal error are ranked meshes first that pass the pair
+checks without a warning (no thin tips, no undercut left after the least
+shift; judged at module 1 with the shifts, tooth system and backlash that
+gearcad design uses by default), then fewer teeth.
 
 Ratio = output turns per input turn = the product over stages of driver
 teeth / driven teeth.  Each external mesh reverses the direction of rotation;
@@ -60,12 +64,13 @@ def add_parser(subparsers: Any) -> argparse.ArgumentParser:
     parser.add_argument("--tolerance", type=float, metavar="REL",
                         help="list every train with |relative error| <= REL (up to --count); exit 1 if none")
     parser.add_argument("--count", type=int, metavar="K",
-                        help="trains listed per stage count (default 5; 1 when --stages is left out)")
+                        help="distinct trains listed per stage count, trains of one ratio included (default 5; 1 when "
+                             "--stages is left out)")
     add_solver_options(parser)
     parser.add_argument("--fractions", action="store_true",
                         help="list the continued-fraction convergents and semiconvergents of the target and mark "
                              "those that a train of at most N stages realises exactly")
-    add_planetary_options(parser)
+    add_planetary_options(parser, any_kind=True)
     from ._summing import add_summing_options
 
     add_summing_options(parser)
@@ -91,8 +96,8 @@ def _refuse(args: argparse.Namespace, options: Sequence[tuple[str, str]], kind: 
 
     for attr, flag in options:
         if getattr(args, attr, None) not in (None, False):
-            raise InputError(f"{flag} does not apply to --kind {kind}; allowed: "
-                             f"{'--kind planetary' if kind == 'compound' else '--kind compound'} for it")
+            other = {"compound": "--kind planetary", "any": "one --kind of train"}.get(kind, "--kind compound")
+            raise InputError(f"{flag} does not apply to --kind {kind}; allowed: {other} for it")
 
 
 class _LazyProgress:
@@ -129,14 +134,16 @@ def _query(args: argparse.Namespace, target: Any, limits: Any, counts: tuple[int
     return RatioQuery(target, counts, limits, count, args.coaxial, args.shift_limit)
 
 
-def _train_json(train: Any, tolerance: float | None = None) -> dict[str, Any]:
+def _train_json(train: Any, tolerance: float | None = None, clean: Any = None) -> dict[str, Any]:
     within = tolerance is None or abs(train.relative_error) <= tolerance
-    out = {"numerator": train.numerator, "denominator": train.denominator, "ratio": train.ratio,
+    out: dict[str, Any] = {"numerator": train.numerator, "denominator": train.denominator, "ratio": train.ratio,
            "relative_error": train.relative_error, "direction": train.direction,
            "stages": [{"driver": d, "driven": n} for d, n in train.stages], "idler": train.idler,
            "total_teeth": train.total_teeth, "within_tolerance": within}
     if train.shifts is not None:
         out["shifts"] = [{"driver": a, "driven": b} for a, b in train.shifts]
+    if clean is not None:
+        out["meshes_clean"] = clean(train)
     return out
 
 
@@ -147,15 +154,19 @@ def _stages_text(train: Any) -> str:
     return text
 
 
-def _rows(trains: Sequence[Any]) -> list[list[str]]:
+def _rows(trains: Sequence[Any], clean: Any = None) -> list[list[str]]:
     return [[str(i), str(len(t.stages)), _stages_text(t), f"{t.numerator}/{t.denominator}", f"{t.ratio:.15g}",
              f"{t.relative_error * 1e6:+.6f}", f"{t.relative_error:+.3e}", t.direction,
              str(t.idler) if t.idler is not None else "-", str(t.total_teeth)]
+            + ([("clean" if clean(t) else "warning")] if clean is not None else [])
             for i, t in enumerate(trains, 1)]
 
 
 _HEADER = ["#", "stages", "driver/driven per stage", "exact ratio", "decimal", "error ppm", "rel. error",
            "output", "idler", "teeth"]
+#: The column of the mesh judgement (see gearcad.ratio.clean).
+_MESHES = "meshes"
+
 
 
 def _heading(target: Any, limits: Any) -> str:
@@ -183,14 +194,15 @@ def _print_fractions(args: argparse.Namespace, target: Any, limits: Any) -> int:
     return 0
 
 
-def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any], reach: Any) -> int:
+def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any], reach: Any, other: str = "") -> int:
     from ..ratio.solve import binding_limits
 
     binding = binding_limits(query, args.tolerance) if trains else []
     if args.json:
         print_json({"target": {"expression": query.target.expression, "value": query.target.value}, "results": [],
                     "tolerance": args.tolerance, "reach": reach.as_json(),
-                    "best": _train_json(trains[0], args.tolerance) if trains else None, "binding": binding})
+                    "best": _train_json(trains[0], args.tolerance) if trains else None, "binding": binding,
+                    **({"other_kinds": other} if other else {})})
         return 1
     print(_heading(query.target, query.limits))
     if not trains:
@@ -203,6 +215,8 @@ def _report_miss(args: argparse.Namespace, query: Any, trains: Sequence[Any], re
     else:
         print("binding: the limits together; no single relaxation of the stage ratio, hunting, exclusions, "
               "tooth range or stage count meets the tolerance")
+    if other:
+        print(other)
     return 1
 
 
@@ -211,6 +225,11 @@ def run(args: argparse.Namespace) -> int:
     from ..ratio.target import parse_target
     from ..ratio.tolerance import tolerance_value
 
+    if args.kind == "any":
+        from ._kinds import ANY_REFUSED, run_any
+
+        _refuse(args, ANY_REFUSED, "any")
+        return run_any(args, _train_json, _planetary_json)
     if args.kind == "planetary":
         _refuse(args, _COMPOUND_ONLY + (("differential", "--differential"), ("separate_axes", "--separate-axes")), "planetary")
         return _run_planetary(args)
@@ -231,6 +250,10 @@ def run(args: argparse.Namespace) -> int:
     limits = limits_from_args(args)
     tolerance = tolerance_value(args.tolerance) if args.tolerance is not None else None
     counts = stage_counts_from_args(args)
+    if args.count is not None:  # bad input is refused before anything else is said
+        from ..ratio.tolerance import count_value
+
+        count_value(args.count)
     reach = reach_of(limits, counts)
     reachable = tuple(k for k in counts if reach_of(limits, (k,)).holds(target.approx))
     if args.fractions:
@@ -243,31 +266,57 @@ def run(args: argparse.Namespace) -> int:
         else:
             print(note)
         return 1
-    from ..ratio.solve import solve_ratio, within_tolerance
+    from ..ratio.clean import MeshJudge
+    from ..ratio.listing import distinct_trains
+    from ..ratio.solve import within_tolerance
 
     query = _query(args, target, limits, reachable)
     progress = _LazyProgress(enabled=not args.json and sys.stderr.isatty())
+    clean = MeshJudge().clean
     try:
-        trains = solve_ratio(query, progress)
+        trains = distinct_trains(query, clean, progress)
     finally:
         progress.close()
     shown = within_tolerance(trains, tolerance) if tolerance is not None else trains
+    other = _other_kinds(args, trains, tolerance)
     if not shown:
-        return _report_miss(args, query, trains, reach)
+        return _report_miss(args, query, trains, reach, other)
     left_out = [k for k in counts if k not in reachable]
     if args.json:
         out = {"target": {"expression": target.expression, "value": target.value},
-               "results": [_train_json(t, tolerance) for t in shown], "tolerance": tolerance, "reach": reach.as_json()}
+               "results": [_train_json(t, tolerance, clean) for t in shown], "tolerance": tolerance,
+               "reach": reach.as_json()}
         if left_out:
             out["stage_counts_beyond_reach"] = left_out
+        if other:
+            out["other_kinds"] = other
         print_json(out)
         return 0
     print(_heading(target, limits))
     if left_out:
         print(f"left out: {_counts_text(left_out)} cannot reach {target.expression} "
               f"(they reach {reach_of(limits, (max(left_out),)).describe()})")
-    print(table(_rows(shown), _HEADER))
+    print(table(_rows(shown, clean), _HEADER + [_MESHES]))
+    print("meshes: clean = every mesh passes the pair checks without a warning at module 1 (shifts against "
+          "undercut, backlash of the default fabrication profile)")
+    if other:
+        print(other)
     return 0
+
+
+def _other_kinds(args: argparse.Namespace, trains: Sequence[Any], tolerance: float | None) -> str:
+    """The note that another kind meets the tolerance (``--tolerance``, else design's default) the best misses."""
+    from ..ratio.tolerance import DESIGN_TOLERANCE
+
+    if args.coaxial:
+        return ""
+    wanted = tolerance if tolerance is not None else DESIGN_TOLERANCE
+    best = abs(trains[0].relative_error) if trains else None
+    if best is not None and best <= wanted:
+        return ""
+    from ._kinds import other_kinds_line
+
+    return other_kinds_line(args, "compound", best, wanted)
 
 
 def _counts_text(counts: Sequence[int]) -> str:
@@ -351,11 +400,16 @@ def _run_planetary(args: argparse.Namespace) -> int:
     shown = within_tolerance(results, args.tolerance) if args.tolerance is not None else results
     head = {"expression": target.expression, "value": target.value}
     wanted = args.tolerance if args.tolerance is not None else DESIGN_TOLERANCE
-    hint = planetary_alternatives(query, wanted) if not results or abs(results[0].relative_error) > wanted else ""
+    missed = not results or abs(results[0].relative_error) > wanted
+    hint = planetary_alternatives(query, wanted) if missed else ""
+    from ._kinds import other_kinds_line
+
+    other = other_kinds_line(args, "planetary", abs(results[0].relative_error) if results else None, wanted) \
+        if missed else ""
     if not shown:
         if args.json:
             print_json({"target": head, "results": [], "best": _planetary_json(results[0]) if results else None,
-                        "alternatives": hint})
+                        "alternatives": hint, **({"other_kinds": other} if other else {})})
             return 1
         print(_planetary_heading(query))
         if not results:
@@ -363,17 +417,21 @@ def _run_planetary(args: argparse.Namespace) -> int:
         else:
             print(f"no set within tolerance {args.tolerance:g}; the best found:")
             print(table(_planetary_rows(results[:1]), _PLANETARY_HEADER))
-        if hint:
-            print(hint)
+        for line in (hint, other):
+            if line:
+                print(line)
         return 1
     if args.json:
         out = {"target": head, "results": [_planetary_json(r) for r in shown]}
         if hint:
             out["alternatives"] = hint
+        if other:
+            out["other_kinds"] = other
         print_json(out)
         return 0
     print(_planetary_heading(query))
     print(table(_planetary_rows(shown), _PLANETARY_HEADER))
-    if hint:
-        print(hint)
+    for line in (hint, other):
+        if line:
+            print(line)
     return 0

@@ -11,7 +11,10 @@ and each pair is split exhaustively (:meth:`gearcad.ratio.split.Splitter.every_f
 
 from __future__ import annotations
 
+import numpy as np
+
 from .limits import Limits
+from .products import smooth_mask
 from .reach import largest_stage_ratio
 from .split import Splitter
 from .target import Target
@@ -21,6 +24,7 @@ __all__ = ["same_ratio_trains"]
 
 #: Most multiples ``g`` tried (bounded work whatever the ratio).
 MAX_MULTIPLES = 200_000
+_CHUNK = 4096
 
 
 def same_ratio_trains(numerator: int, denominator: int, k: int, limits: Limits, target: Target, count: int,
@@ -59,14 +63,23 @@ def same_ratio_trains(numerator: int, denominator: int, k: int, limits: Limits, 
     best = None
     g_low = max(-(-low ** k // numerator), -(-low ** k // denominator), 1)
     g_high = min(high ** k // numerator, high ** k // denominator, g_low + MAX_MULTIPLES)
-    for g in range(g_low, g_high + 1):
-        p, q = numerator * g, denominator * g
-        bound = k * (p ** (1 / k) + q ** (1 / k)) * (1 - 1e-12) + floor
-        if best is not None and bound > best + extra_teeth:
+    for start in range(g_low, g_high + 1, _CHUNK):
+        g = np.arange(start, min(start + _CHUNK, g_high + 1), dtype=np.int64)
+        # only products whose every prime factor is a possible tooth count can split (a vectorised screen)
+        smooth = smooth_mask(numerator * g, high) & smooth_mask(denominator * g, high)
+        stop = False
+        for multiple in g[smooth].tolist():
+            p, q = numerator * multiple, denominator * multiple
+            bound = k * (p ** (1 / k) + q ** (1 / k)) * (1 - 1e-12) + floor
+            limit = float("inf") if best is None else best + extra_teeth
+            if len(found) >= count:  # only trains as light as the count-th held can still enter
+                limit = min(limit, found[count - 1][0])
+            if bound > limit:
+                stop = True
+                break
+            found = sorted(set(found + splitter.every_for(p, q, limit, keep=count)))
+            best = found[0][0] if found else None
+        if stop:
             break
-        for total, stages, idler_teeth in splitter.every_for(p, q, float("inf") if best is None
-                                                             else best + extra_teeth):
-            found.append((total, stages, idler_teeth))
-            best = total if best is None else min(best, total)
-    found = sorted(set(t for t in found if best is not None and t[0] <= best + extra_teeth))
+    found = [t for t in found if t[0] <= best + extra_teeth] if best is not None else []
     return [make_train(stages, target, idler_teeth) for _, stages, idler_teeth in found[:count]]

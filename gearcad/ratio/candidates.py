@@ -8,25 +8,34 @@ margin), where ``T`` is the target:
   every driven product ``Q``, the range of driver products within the window
   by binary search (numpy ``searchsorted``, vectorised over all ``Q``).
 * :class:`ScanCandidates` never builds the (large) set of ``k``-products.  It
-  streams every driven product ``Q`` and, as long as ``eps * P < 1/2``, keeps
-  only the one integer ``P = round(T Q)`` that can lie in the window; those
-  ``P`` are then screened for having no prime factor above the largest tooth
-  count (a vectorised test) and later split into tooth counts exactly.
+  streams every product of the smaller side (``Q`` for a target of 1 or more,
+  else ``P``) and tries the few integers of the other side that lie in the
+  window (only ``round(T Q)`` while ``eps * P < 1/2``); those are screened for
+  having no prime factor above the largest tooth count (a vectorised test) and
+  later split into tooth counts exactly.
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Callable, Sequence
 
 import numpy as np
 
-from .products import product_blocks, product_set, product_sum, smooth_mask
+from .products import product_blocks, product_set, product_sum, products_upto, smooth_mask
 
 __all__ = ["SortedCandidates", "ScanCandidates", "FLOAT_MARGIN", "Progress", "not_exact"]
 
 #: Relative float margin added to every window (float products are good to ~1e-16).
 FLOAT_MARGIN = 1e-14
+#: The scan tries every integer of a window while eps times the largest product is below this.
+MAX_SPAN = 40.0
+#: Four-stage scans whose streamed products stay below this list them once (a bit sieve of 32 MB at most).
+DISTINCT_LIMIT = 1 << 28
+_DISTINCT_BLOCK = 1 << 16
+#: Most raw candidates one scan round may produce (bounds its time; memory is per block, screened at once).
+MAX_RAW = 2e7
 Progress = Callable[[float], None]
 
 
@@ -34,6 +43,12 @@ def _unique_pairs(p: np.ndarray, q: np.ndarray) -> tuple[np.ndarray, np.ndarray]
     """The distinct (p, q) pairs, sorted by p then q."""
     if len(p) == 0:
         return p, q
+    if int(p.max()) < 2 ** 31 and int(q.max()) < 2 ** 31 and int(p.min()) >= 0 and int(q.min()) >= 0:
+        packed = np.sort((p << 31) | q)  # one int64 key per pair: a 1-D sort, much faster than lexsort
+        first = np.ones(len(packed), dtype=bool)
+        first[1:] = packed[1:] != packed[:-1]
+        packed = packed[first]
+        return packed >> 31, packed & (2 ** 31 - 1)
     order = np.lexsort((q, p))
     p, q = p[order], q[order]
     first = np.ones(len(p), dtype=bool)
@@ -67,12 +82,13 @@ class SortedCandidates:
         self.products = product_set(self.teeth, self.k)
         self.floats = self.products.astype(float)
 
-    def nearest_errors(self) -> np.ndarray:
-        """For each driven product, the least non-zero |relative error| of its nearest driver products.
+    def nearest_errors(self, stride: int = 1) -> np.ndarray:
+        """For every ``stride``-th driven product, the least non-zero |relative error| of its nearest drivers.
 
-        Only sizes the first windows (so errors below 1e-14, exact hits, are passed over).
+        Only sizes the first windows (so errors below 1e-14, exact hits, are passed over; a sample
+        of the driven products is enough for that).
         """
-        wanted = self.floats * self.target
+        wanted = self.floats[::stride] * self.target
         index = np.searchsorted(self.floats, wanted)
         best = np.full(len(wanted), np.inf)
         for shift in (-2, -1, 0, 1):
@@ -105,7 +121,18 @@ class SortedCandidates:
 
 @dataclass
 class ScanCandidates:
-    """Streaming search that needs no set of ``k``-products (see module notes)."""
+    """Streaming search that needs no set of ``k``-products (see module notes).
+
+    The side of the ratio with the smaller products is streamed: for a target
+    below 1 the driver products ``P`` are streamed and the integers ``Q`` near
+    ``P / T`` computed (the window ``|P / (T Q) - 1| <= eps`` reads
+    ``|P/T - Q| <= eps Q`` either way), which keeps the stream as short for
+    ``1/T`` as for ``T``.  While ``eps`` times the largest product stays below
+    :data:`MAX_SPAN` every integer of the window is tried (a few per streamed
+    product), so the scan can go on where one integer per product no longer
+    suffices; the computed side is screened for prime factors above the largest
+    tooth count in each block, so memory stays small.
+    """
 
     teeth: Sequence[int]
     k: int
@@ -114,24 +141,42 @@ class ScanCandidates:
     exact: tuple[int, int] | None = None
 
     def __post_init__(self) -> None:
+        self.swap = self.target < 1
+        self.t = 1 / self.target if self.swap else self.target
         self.largest = max(self.teeth)
         self.p_min, self.p_max = min(self.teeth) ** self.k, self.largest ** self.k
-        self.q_range = (self.p_min / self.target * (1 - 1e-6), self.p_max / self.target * (1 + 1e-6))
-        self.blocks = sum(1 for _ in product_blocks(self.teeth, self.k, self.q_range))
-        self.total = max(product_sum(self.teeth, self.k, self.q_range), 1.0)
+        self.q_range = (self.p_min / self.t * (1 - 1e-6), self.p_max / self.t * (1 + 1e-6))
+        self.distinct = None
+        if self.k == 4 and self.q_range[1] <= DISTINCT_LIMIT:  # few enough to list once, each product once
+            found = products_upto(self.teeth, self.k, int(self.q_range[1]))
+            self.distinct = found[found >= self.q_range[0]]
+            self.blocks = -(-len(self.distinct) // _DISTINCT_BLOCK)
+            self.total = max(float(self.distinct.astype(float).sum()), 1.0)
+        else:
+            self.blocks = sum(1 for _ in product_blocks(self.teeth, self.k, self.q_range))
+            self.total = max(product_sum(self.teeth, self.k, self.q_range), 1.0)
+
+    def _streamed(self):
+        """The streamed products as (rows, cols) blocks: each product is ``rows[i] * cols[j]``."""
+        if self.distinct is None:
+            yield from product_blocks(self.teeth, self.k, self.q_range)
+            return
+        one = np.ones(1, dtype=np.int64)
+        for start in range(0, len(self.distinct), _DISTINCT_BLOCK):
+            yield self.distinct[start:start + _DISTINCT_BLOCK], one
 
     def eps_for_budget(self, count: float) -> float:
         """An eps that yields about ``count`` raw candidates."""
-        return count / (2 * self.target * self.total)
+        return count / (2 * self.t * self.total)
 
     def usable(self, eps: float) -> bool:
-        """Whether the one-integer rule holds for ``eps`` (``eps P < 0.45``)."""
-        return eps * self.p_max < 0.45
+        """Whether the scan may take ``eps``: a few integers per product, and a bounded number of raw candidates."""
+        return eps * self.p_max < MAX_SPAN and eps <= self.eps_for_budget(MAX_RAW)
 
     def within(self, eps: float, progress: Progress | None = None) -> tuple[np.ndarray, np.ndarray]:
-        """Every (P, Q) with |P/(T Q) - 1| <= eps, P screened as smooth; see :meth:`usable`."""
+        """Every (P, Q) with |P/(T Q) - 1| <= eps whose computed side is smooth; see :meth:`usable`."""
         found_p, found_q = [], []
-        for done, (rows, cols) in enumerate(product_blocks(self.teeth, self.k, self.q_range)):
+        for done, (rows, cols) in enumerate(self._streamed()):
             p, q = self._block_hits(rows, cols, eps)
             found_p.append(p)
             found_q.append(q)
@@ -139,22 +184,36 @@ class ScanCandidates:
                 progress((done + 1) / max(1, self.blocks))
         if not found_p:
             return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64)
-        p, q = _unique_pairs(np.concatenate(found_p), np.concatenate(found_q))
-        smooth = smooth_mask(p, self.largest)
-        return p[smooth], q[smooth]
+        return _unique_pairs(np.concatenate(found_p), np.concatenate(found_q))
 
     def _block_hits(self, rows: np.ndarray, cols: np.ndarray, eps: float) -> tuple[np.ndarray, np.ndarray]:
-        """Pairs of one block: ``T Q`` within ``eps T Q`` of an integer ``P`` (one-integer rule)."""
-        rows_t, cols_f = rows * self.target, cols.astype(float)
-        x = np.multiply.outer(rows_t, cols_f)
-        nearest = np.rint(x)
-        np.subtract(x, nearest, out=x)
-        np.abs(x, out=x)
-        i, j = np.nonzero(x <= nearest * (eps + FLOAT_MARGIN) + 1e-9)
-        p, q = nearest[i, j].astype(np.int64), rows[i] * cols[j]
+        """Pairs of one block: every integer ``C`` within ``eps C`` of ``t E`` (``E`` a streamed product)."""
+        x = np.multiply.outer(rows * self.t, cols.astype(float)).ravel()
+        width = len(cols)
+        if eps * (float(x.max()) if x.size else 0.0) < 0.45:  # one integer per product can lie in the window
+            nearest = np.rint(x)
+            limit = nearest * (eps + FLOAT_MARGIN)
+            limit += 1e-9
+            np.subtract(x, nearest, out=x)
+            np.abs(x, out=x)
+            at = np.flatnonzero(x <= limit)
+            c = nearest[at]
+        else:  # every integer of [x - w, x + w] (w bounds eps C from above), listed without a loop over offsets
+            w = x * (eps * (1 + 2 * eps) + FLOAT_MARGIN) + 1e-9
+            low, high = np.ceil(x - w), np.floor(x + w)
+            counts = np.maximum(high - low + 1, 0).astype(np.int64)
+            owner = np.repeat(np.arange(len(x)), counts)
+            c = low[owner] + (np.arange(len(owner)) - np.repeat(np.cumsum(counts) - counts, counts))
+            keep = np.flatnonzero(np.abs(c - x[owner]) <= c * (eps + FLOAT_MARGIN) + 1e-9)
+            at, c = owner[keep], c[keep]
+        found_c, found_e = [c.astype(np.int64)], [rows[at // width] * cols[at % width]]
+        c, e = np.concatenate(found_c), np.concatenate(found_e)
+        p, q = (e, c) if self.swap else (c, e)
         lo_ratio, hi_ratio = self.ratio_range
-        keep = ((p >= self.p_min) & (p <= self.p_max)
+        keep = ((c >= self.p_min) & (c <= self.p_max)
                 & (p >= q * lo_ratio * (1 - FLOAT_MARGIN)) & (p <= q * hi_ratio * (1 + FLOAT_MARGIN)))
-        p, q = p[keep], q[keep]
-        keep = not_exact(p, q, self.exact)
+        p, q, c = p[keep], q[keep], c[keep]
+        keep = not_exact(p, q, self.exact)  # first: at a whole-number target most hits are exact (settled apart)
+        p, q, c = p[keep], q[keep], c[keep]
+        keep = smooth_mask(c, self.largest)
         return p[keep], q[keep]

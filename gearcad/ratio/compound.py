@@ -47,7 +47,9 @@ __all__ = ["solve_compound", "stage_ratio_range", "check_stages", "needs_idler",
 
 #: Up to this many multisets of k tooth counts the sorted product set is built.
 SORTED_LIMIT = 3_000_000
-_SCAN_BUDGET = 200_000
+_SCAN_BUDGET = 2_000_000
+#: Driven products sampled to size the first windows of the sorted search (sizing only: results are exact anyway).
+_SIZING_SAMPLE = 250_000
 #: Float errors closer than this are ranked together exactly (float error of an error is ~1e-15).
 _CLUSTER = 1e-12
 Progress = Callable[[float], None]
@@ -241,11 +243,12 @@ class _Search:
     def run_sorted(self, generator: SortedCandidates, start_eps: float = 0.0) -> None:
         if len(self.found) >= self.count:
             return
-        nearest = np.sort(generator.nearest_errors())
+        stride = max(1, len(generator.products) // _SIZING_SAMPLE)  # a sample sizes the windows as well
+        nearest = np.sort(generator.nearest_errors(stride))
         eps_all = generator.max_eps()
         eps, m = start_eps, 32 * self.count
         while True:
-            proposal = float(nearest[min(m, len(nearest) - 1)])
+            proposal = float(nearest[min(m // stride, len(nearest) - 1)])
             if not math.isfinite(proposal) or proposal <= eps:
                 positive = nearest[nearest > eps]
                 proposal = max(eps * 8, float(positive[0]) if len(positive) else eps_all)
@@ -260,11 +263,15 @@ class _Search:
         if len(self.found) >= self.count:
             return None
         eps = generator.eps_for_budget(_SCAN_BUDGET)
+        done = 0.0
         while generator.usable(eps):
             if self.window(*generator.within(eps, self.progress), eps):
                 return None
-            eps *= 4
-        return eps / 4
+            done = eps
+            # ratios found grow about linearly with eps: aim at the count with a margin (x2 to x8 a round)
+            have = len(self.found)
+            eps *= 4 if have == 0 else min(8.0, max(2.0, 1.5 * self.count / have))
+        return done
 
     def _report(self, fraction: float) -> None:
         if self.progress is not None:

@@ -14,7 +14,7 @@ from typing import Iterator, Sequence
 import numpy as np
 
 __all__ = [
-    "multiset_count", "product_set", "sieve_square_products", "product_blocks", "product_sum",
+    "multiset_count", "product_set", "sieve_square_products", "products_upto", "product_blocks", "product_sum",
     "smooth_mask", "Factorizer", "sum_lower_bound",
 ]
 
@@ -38,17 +38,24 @@ def _outer_unique(left: np.ndarray, right: np.ndarray) -> np.ndarray:
         seen = np.zeros(top + 1, dtype=bool)
         seen[products] = True
         return np.flatnonzero(seen).astype(np.int64)
-    return np.unique(products)
+    products.sort()  # sort and drop repeats (numpy's hash-based unique is slower on these arrays)
+    first = np.ones(len(products), dtype=bool)
+    first[1:] = products[1:] != products[:-1]
+    return products[first]
 
 
-def sieve_square_products(values: np.ndarray, segment_bits: int = 1 << 30) -> np.ndarray:
-    """Sorted distinct products ``a * b`` of a sorted array with itself, by a bit sieve.
+def sieve_square_products(values: np.ndarray, segment_bits: int = 1 << 30, upto: int | None = None) -> np.ndarray:
+    """Sorted distinct products ``a * b`` of a sorted array with itself (at most ``upto``), by a bit sieve.
 
     Used instead of sorting when the products are many: it marks each product
     in a bitmap (segment by segment, so memory stays at ``segment_bits / 8``
     bytes) and reads the set bits back in order.
     """
     low, high = int(values[0]) ** 2, int(values[-1]) ** 2
+    if upto is not None:
+        high = min(high, int(upto))
+    if high < low:
+        return np.zeros(0, dtype=np.int64)
     masks = (np.uint8(1) << np.arange(8, dtype=np.uint8))
     rows = np.arange(len(values))
     found = []
@@ -61,8 +68,8 @@ def sieve_square_products(values: np.ndarray, segment_bits: int = 1 << 30) -> np
             offsets = values[first[i]:last[i]] * values[i] - start
             bits[offsets >> 3] |= masks[offsets & 7]  # one row never hits a byte twice (steps >= 8)
         nonzero = np.flatnonzero(bits)
-        r, c = np.nonzero(np.unpackbits(bits[nonzero][:, None], axis=1, bitorder="little"))
-        found.append(nonzero[r] * 8 + c + start)
+        at = np.flatnonzero(np.unpackbits(bits[nonzero], bitorder="little"))  # 1-D: far faster than a 2-D nonzero
+        found.append(nonzero[at >> 3] * 8 + (at & 7) + start)
     return np.concatenate(found)
 
 
@@ -77,6 +84,14 @@ def product_set(teeth: Sequence[int], k: int) -> np.ndarray:
     for _ in range(k - 1):
         result = _outer_unique(result, base)
     return result
+
+
+def products_upto(teeth: Sequence[int], k: int, upto: int) -> np.ndarray:
+    """Sorted distinct products of ``k`` tooth counts that are at most ``upto``."""
+    if k == 4:
+        return sieve_square_products(product_set(teeth, 2), upto=upto)
+    found = product_set(teeth, k)
+    return found[found <= upto]
 
 
 def _split(k: int) -> tuple[int, int]:
@@ -120,11 +135,10 @@ def smooth_mask(values: np.ndarray, largest_factor: int) -> np.ndarray:
     """True where every prime factor of ``values`` is at most ``largest_factor``."""
     rest = values.astype(np.int64).copy()
     for prime in _primes_up_to(largest_factor):
-        while True:
-            divisible = rest % prime == 0
-            if not divisible.any():
-                break
-            rest[divisible] //= prime
+        at = np.flatnonzero(rest % prime == 0)  # one pass over all; then only the divisible ones again
+        while len(at):
+            rest[at] //= prime
+            at = at[rest[at] % prime == 0]
     return rest == 1
 
 

@@ -4,16 +4,18 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 from fractions import Fraction
-from typing import Callable, Sequence
+from typing import TYPE_CHECKING, Callable, Sequence
 
 from ..errors import InputError
 from ..validate import as_int, finite
 from .compound import check_stages, solve_compound
-from .convergents import Approximant, best_approximations
 from .limits import MAX_STAGES, TEETH_BOUNDS, Limits
 from .target import Target, parse_target
 from .tolerance import count_value, tolerance_value
 from .train import Train
+
+if TYPE_CHECKING:  # the convergents are loaded only by --fractions
+    from .convergents import Approximant
 
 __all__ = ["RatioQuery", "solve_ratio", "within_tolerance", "binding_limits", "realising_stages",
            "approximations_with_trains", "tolerance_value", "count_value", "DEFAULT_STAGE_COUNTS"]
@@ -113,6 +115,8 @@ def realising_stages(numerator: int, denominator: int, limits: Limits, max_stage
 
 def approximations_with_trains(target: Target, limits: Limits, max_stages: int) -> list[tuple[Approximant, Train | None]]:
     """Best rational approximations up to the largest train denominator, each with a realising train."""
+    from .convergents import best_approximations
+
     max_stages = check_stages(max_stages)
     largest = max(limits.teeth)
     return [(a, realising_stages(a.numerator, a.denominator, limits, max_stages))

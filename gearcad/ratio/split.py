@@ -13,6 +13,7 @@ largest ratio survive.
 
 from __future__ import annotations
 
+import heapq
 from bisect import bisect_left, bisect_right
 from collections import Counter
 from fractions import Fraction
@@ -37,7 +38,8 @@ class _Splitter:
         self.s = largest_ratio
         self.best: tuple[int, tuple, int | None] | None = None
         self.bound = 0.0
-        self.collect: list[tuple[int, tuple, int | None]] | None = None
+        self.collect: list | None = None
+        self.keep: int | None = None
         self.powers = [(largest_ratio.numerator ** j, largest_ratio.denominator ** j, self.low ** j, self.high ** j)
                        for j in range(k + 1)]
         self.partners: dict[int, list[int]] = {}
@@ -85,7 +87,11 @@ class _Splitter:
         key = tuple(stages)
         if self.collect is not None:
             if total <= self.bound:
-                self.collect.append((total, key, idler))
+                heapq.heappush(self.collect, (-total, tuple((-d, -n) for d, n in key), key, idler))
+                if self.keep is not None and len(self.collect) > self.keep:
+                    heapq.heappop(self.collect)  # the worst (most teeth, then last stages) leaves
+                if self.keep is not None and len(self.collect) == self.keep:
+                    self.bound = -self.collect[0][0]  # only as few teeth as the worst held can still enter
             return
         if total <= self.bound and (self.best is None or (total, key) < (self.best[0], self.best[1])):
             self.best = (total, key, idler)
@@ -127,15 +133,19 @@ class Splitter(_Splitter):
             self.walk(p, q, self.k, [], 0)
         return self.best
 
-    def every_for(self, p: int, q: int, bound: float) -> list[tuple[int, tuple, int | None]]:
-        """Every train of ``k`` stages with products ``p``, ``q`` and at most ``bound`` teeth, fewest first."""
-        self.best, self.bound, self.collect = None, bound, []
+    def every_for(self, p: int, q: int, bound: float, keep: int | None = None) -> list[tuple[int, tuple, int | None]]:
+        """Every train of ``k`` stages with products ``p``, ``q`` and at most ``bound`` teeth, fewest first.
+
+        With ``keep``, only the first ``keep`` of them (fewest teeth, then stages); the bound
+        tightens as they are found.
+        """
+        self.best, self.bound, self.collect, self.keep = None, bound, [], keep
         try:
             if self.possible(p, q, self.k, self.low, 0):
                 self.walk(p, q, self.k, [], 0)
-            return sorted(self.collect)
+            return sorted((-total, key, idler) for total, _, key, idler in self.collect)
         finally:
-            self.collect = None
+            self.collect, self.keep = None, None
 
 
 def best_split(p: int, q: int, k: int, limits: Limits, bound: float, *, shelf: Counter | None = None,
