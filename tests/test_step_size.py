@@ -82,16 +82,17 @@ def test_sharing_changes_no_shape(tmp_path):
     from OCP.BRepBndLib import BRepBndLib
 
     import gearcad.export.step as step
+    import gearcad.export.step_files as files
 
     plan = plan_train(parse_train(GEAR_91.replace("91", "37")))
     built = step.build_solid(plan.gears[1].part, 3.0, plan.tolerance)
     shared = step.write_step(built.solid, tmp_path / "shared.step")
-    original = step.share_geometry
+    original = files.share_geometry
     try:
-        step.share_geometry = lambda text: text
+        files.share_geometry = lambda text: text
         plain = step.write_step(built.solid, tmp_path / "plain.step")
     finally:
-        step.share_geometry = original
+        files.share_geometry = original
     assert shared.stat().st_size < 0.75 * plain.stat().st_size
     boxes = []
     for path in (shared, plain):

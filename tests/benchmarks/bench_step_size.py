@@ -23,7 +23,7 @@ def as_before():
     """The writer's settings before issue 12: pcurves written, nothing shared."""
     from OCP.Interface import Interface_Static
 
-    import gearcad.export.step as step
+    import gearcad.export.step_files as step
 
     settings, share = step._step_settings, step.share_geometry
 
