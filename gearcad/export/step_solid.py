@@ -42,12 +42,13 @@ def _check_inputs(part: "Part", thickness: float, tolerance: float) -> None:
             raise InputError(f"part {part.name!r}: hole {k} must run clockwise")
 
 
-def _face(part: "Part", tolerance: float, stats: _Stats) -> "TopoDS_Face":
+def _face(part: "Part", tolerance: float, stats: _Stats, join: bool = False) -> "TopoDS_Face":
+    """The part's planar face; ``join``: each tooth space's bottom one edge (see ``step_edges._runs``)."""
     from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace
 
-    maker = BRepBuilderAPI_MakeFace(_loop_wire(part.outer, tolerance, stats, f"{part.name} outer"), True)
+    maker = BRepBuilderAPI_MakeFace(_loop_wire(part.outer, tolerance, stats, f"{part.name} outer", join), True)
     for k, hole in enumerate(part.holes):
-        maker.Add(_loop_wire(hole, tolerance, stats, f"{part.name} hole {k}"))
+        maker.Add(_loop_wire(hole, tolerance, stats, f"{part.name} hole {k}", join))
     for x, y, d in part.circles:
         maker.Add(_circle_wire(x, y, d))
     if not maker.IsDone():
@@ -116,7 +117,7 @@ def build_solid(part: "Part", thickness: float, tolerance: float) -> SolidBuild:
     _check_inputs(part, thickness, tolerance)
     stats = _Stats()
     with kernel_quiet():
-        face = _face(part, tolerance, stats)
+        face = _face(part, tolerance, stats, join=True)
         prism = BRepPrimAPI_MakePrism(face, gp_Vec(0.0, 0.0, float(thickness)))
         solid = TopoDS.Solid_s(prism.Shape())
         volume = _check_solid(solid, part, thickness)
