@@ -5,7 +5,10 @@ curves (``radius > 0``) exact circular arcs, ``"line"``/``"chamfer"`` curves
 straight segments, every other curve (involute, fillet) one B-spline edge
 interpolated through a subset of the curve's points with the curve's end
 tangents, the subset grown until the spline passes within ``tolerance`` of
-every given point.  Nothing is faceted.  The kernel (cadquery / OCP) is
+every given point.  For straight solids a tooth space's bottom (fillet, root
+arc, fillet, tangent to each other) is joined into one B-spline edge within the
+same tolerance, so the file holds one face there instead of three.  Nothing is
+faceted.  The kernel (cadquery / OCP) is
 imported inside the functions; :func:`kernel_quiet` keeps its statistics off
 standard output.  Lengths in mm.
 """
