@@ -200,4 +200,5 @@ def check_assembly(plan, mechanism) -> AssemblyCheck:
             depth = min(w.outer + r.diameter / 2 - d, d + r.diameter / 2 - w.inner if w.inner > 0 else math.inf)
             if depth > TOL:
                 found.append((r.name, f"the sweep of {w.name}", depth))
-    return AssemblyCheck(len({s.part or s.name for s in solids}), tuple(dict.fromkeys(found)))
+    pieces = sum(1 for s in solids if not s.part) + len({s.part for s in solids if s.part})  # a fused part is one
+    return AssemblyCheck(pieces, tuple(dict.fromkeys(found)))
