@@ -256,7 +256,9 @@ def _write_solids(plan, options: BuildOptions, put, note) -> None:
             if "step" in options.formats:
                 write_step(solid, put(p.name, "step", f"{p.name}.step"), names=[p.name])
             items.append(AssemblyItem(p.name, solid, 0.0, 0.0, p.z, 0.0))
-        items += _fused_compounds(plan, options, put, note, items)
+        fused = _fused_compounds(plan, options, put, note, items)
+        joined = {name for j in (plan.mechanism.joins if plan.mechanism else ()) if j.hub is not None for name in j.gears}
+        items = [it for it in items if it.name not in joined] + fused  # a fused pair is one solid in the assembly
         items += _rod_items(plan)
         if options.assembly and "step" in options.formats:
             from .step import assembly_step
@@ -286,26 +288,24 @@ def _rod_items(plan) -> list:
 
 
 def _fused_compounds(plan, options: BuildOptions, put, note, items) -> list:
-    """FDM: the gears of each compound shaft fused into one part with a hub across the layer gap (STEP and STL)."""
-    from .step import fuse_placed, write_step, write_stl
+    """FDM: the gears of each compound shaft fused into one part with a hub across the layer gap (STEP and STL);
+    the fused parts as assembly items, placed on their shafts."""
+    from .step import AssemblyItem, fuse_placed, write_step, write_stl
 
     mech = plan.mechanism
     out: list = []
     for j in (mech.joins if mech else ()):
-        if j.method != "fused" or not j.file:
+        if j.hub is None or not j.file:
             continue
         note(f"solid {j.file}")
         members = [it for it in items if it.name in j.gears]
-        gears = [plan.gear(n) for n in j.gears]
-        shaft = plan.shafts[gears[0].shaft]
-        low = min(gears, key=lambda g: g.z)
-        hub_d = min(min(g.gear.root_diameter for g in gears) - 2 * max(g.gear.module for g in gears),
-                    2.5 * low.bore + 2.0)
-        solid = fuse_placed(members, shaft.x, shaft.y, low.z + plan.spec.thickness,
-                            max(g.z for g in gears) - (low.z + plan.spec.thickness), hub_d,
-                            low.bore + plan.fabrication.bore_clearance, plan.tolerance)
+        shaft = plan.shafts[plan.gear(j.gears[0]).shaft]
+        low = min(it.z for it in members)
+        diameter, hole, z0, z1 = j.hub
+        solid = fuse_placed(members, shaft.x, shaft.y, z0, z1 - z0, diameter, hole, plan.tolerance)
         if "step" in options.formats:
             write_step(solid, put(j.file, "step", f"{j.file}.step"), names=[j.file])
         if "stl" in options.formats:
             write_stl(solid, put(j.file, "stl", f"{j.file}.stl"), options.stl_tolerance, options.stl_angle)
+        out.append(AssemblyItem(j.file, solid, shaft.x, shaft.y, low, 0.0))
     return out

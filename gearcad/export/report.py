@@ -160,8 +160,8 @@ def _pillars(plan: Plan) -> list[dict[str, Any]]:
 def _joins(plan: Plan) -> list[dict[str, Any]]:
     if plan.mechanism is None:
         return []
-    return [{"shaft": j.shaft, "gears": list(j.gears), "method": j.method, "note": j.note, "pin": j.pin or None}
-            for j in plan.mechanism.joins]
+    return [{"shaft": j.shaft, "gears": list(j.gears), "method": j.method, "note": j.note, "pin": j.pin or None,
+             "file": j.file} for j in plan.mechanism.joins]
 
 
 def _assembly(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str, Any]:

@@ -29,6 +29,9 @@ __all__ = [
     "MIN_CONTACT_RATIO",
     "MIN_TIP_THICKNESS",
     "process_findings",
+    "ring_process_findings",
+    "ring_tool_reach",
+    "ring_largest_tool",
     "tool_reach",
     "largest_tool",
     "space_direction",
@@ -238,20 +241,29 @@ def backlash_finding(backlash: float, operating_pressure_angle: float) -> Findin
 
 # -- can the process make the part? ---------------------------------------------------------------
 
+def _distance(points: np.ndarray, centre: np.ndarray) -> float:
+    """Distance from ``centre`` to the closed polygon through ``points`` (its segments, not only its vertices), mm."""
+    a, b = points, np.roll(points, -1, axis=0)
+    ab = b - a
+    length2 = np.einsum("ij,ij->i", ab, ab)
+    k = np.clip(np.einsum("ij,ij->i", centre - a, ab) / np.where(length2 > 0, length2, 1.0), 0.0, 1.0)
+    return float(np.min(np.hypot(*(a + k[:, None] * ab - centre).T)))
+
+
 def _clear(points: np.ndarray, direction: np.ndarray, bottom: float, radius: float) -> bool:
-    """Whether a disc of ``radius`` whose lowest point on the ray ``direction`` is at ``bottom`` misses ``points``."""
-    centre = direction * (bottom + radius)
-    return bool(np.min(np.hypot(*(points - centre).T)) >= radius * (1 - 1e-9))
+    """Whether a disc of ``radius`` whose lowest point on the ray ``direction`` is at ``bottom`` misses the outline."""
+    return _distance(points, direction * (bottom + radius)) >= radius * (1 - 1e-9)
 
 
-def space_direction(points: np.ndarray) -> np.ndarray:
+def space_direction(points: np.ndarray, internal: bool = False) -> np.ndarray:
     """Unit vector along the centre line of one tooth space of a gear outline centred at the origin.
 
-    The space is the one holding the outline's point nearest the centre; a flat root
-    arc is split in its middle (the spaces of a generated gear are symmetric).
+    The space is the one holding the outline's point nearest the centre (``internal``: a
+    ring's tooth loop, the point farthest from it); a flat root arc is split in its middle
+    (the spaces of a generated gear are symmetric).
     """
     r = np.hypot(*points.T)
-    i = int(np.argmin(r))
+    i = int(np.argmax(r) if internal else np.argmin(r))
     n = len(points)
     near = lambda k: abs(r[k % n] - r[i]) <= 1e-6 * max(r[i], 1.0)  # noqa: E731
     first, last = i, i
@@ -269,8 +281,8 @@ def tool_reach(points: np.ndarray, tool_radius: float) -> float:
     """Lowest radius (mm) an end mill of ``tool_radius`` mm reaches in the tooth spaces of a gear outline.
 
     The mill goes down the centre line of a space until it touches a flank
-    (bisection on the outline's points; the outline's chord error is the
-    accuracy).  Parameters: ``points`` (N, 2) outline of a gear centred at the
+    (bisection; the distance is taken to the outline's segments, so the
+    outline's chord error is the accuracy).  Parameters: ``points`` (N, 2) outline of a gear centred at the
     origin, mm.
     """
     direction = space_direction(points)
@@ -292,6 +304,97 @@ def largest_tool(points: np.ndarray, depth_radius: float) -> float:
         mid = 0.5 * (low + high)
         low, high = (mid, high) if _clear(points, direction, depth_radius, mid) else (low, mid)
     return low
+
+
+def _clear_out(points: np.ndarray, direction: np.ndarray, top: float, radius: float) -> bool:
+    """Whether a disc of ``radius`` whose outermost point on the ray ``direction`` is at ``top`` misses the loop."""
+    return _distance(points, direction * (top - radius)) >= radius * (1 - 1e-9)
+
+
+def ring_tool_reach(points: np.ndarray, tool_radius: float) -> float:
+    """Highest radius (mm) an end mill of ``tool_radius`` mm reaches in the tooth spaces of a ring's tooth loop.
+
+    The mill comes from the ring's centre and goes out along the centre line of a
+    space until it touches a flank (bisection; distances to the loop's segments).  A mill wider
+    than the tip circle cannot enter the spaces: the tip radius is returned.
+    Parameters: ``points`` (N, 2) tooth loop of a ring centred at the origin, mm.
+    """
+    direction = space_direction(points, internal=True)
+    r = np.hypot(*points.T)
+    low, high = float(r.min()), float(r.max())
+    if not _clear_out(points, direction, max(low, tool_radius), tool_radius):
+        return low
+    low = max(low, tool_radius)
+    if _clear_out(points, direction, high, tool_radius):
+        return high
+    for _ in range(60):
+        mid = 0.5 * (low + high)
+        low, high = (mid, high) if _clear_out(points, direction, mid, tool_radius) else (low, mid)
+    return low
+
+
+def ring_largest_tool(points: np.ndarray, reach_radius: float) -> float:
+    """Radius (mm) of the largest end mill that reaches ``reach_radius`` mm on a ring space's centre line."""
+    direction = space_direction(points, internal=True)
+    low, high = 0.0, float(reach_radius)
+    for _ in range(60):
+        mid = 0.5 * (low + high)
+        low, high = (mid, high) if _clear_out(points, direction, reach_radius, mid) else (low, mid)
+    return low
+
+
+def _tip_findings(name: str, tip: float, process: str, min_feature: float) -> list[Finding]:
+    if tip < min_feature:
+        return [Finding(f"tip width {name}", "failure", tip, min_feature,
+                        f"{name}: the tip is {tip:.3f} mm thick, thinner than the {min_feature:g} mm the "
+                        f"{process} process holds; reduce the profile shift or shorten the tips")]
+    return [Finding(f"tip width {name}", "ok", tip, min_feature,
+                    f"{name}: the tip ({tip:.3f} mm) is not thinner than the {min_feature:g} mm the "
+                    f"{process} process holds")]
+
+
+def ring_process_findings(name: str, ring, loop: np.ndarray, process: str, tool_radius: float,
+                          min_feature: float) -> list[Finding]:
+    """Whether the fabrication process can make a ring's internal teeth: failures name the reason.
+
+    As :func:`process_findings` for an external gear, with the end mill entering the
+    ring's tooth spaces from its centre: it must reach out to the ring's form circle
+    (where the involute ends and the root fillet begins).
+
+    Parameters
+    ----------
+    name : str
+        The ring's name, for messages.
+    ring : gearcad.geometry.internal.RingGear
+        The ring (its tip thickness, tip and form circles), mm.
+    loop : numpy.ndarray
+        (N, 2) the ring's tooth loop at the origin as it is drawn, mm.
+    process, tool_radius, min_feature
+        As for :func:`process_findings` (mm).
+
+    Returns
+    -------
+    list of Finding
+    """
+    out: list[Finding] = []
+    if process == "cnc" and tool_radius > 0:
+        form = ring.form_diameter / 2
+        reach = ring_tool_reach(loop, tool_radius)
+        if reach < form - 1e-3:
+            biggest = 2 * ring_largest_tool(loop, form)
+            where = ("cannot enter the tooth spaces at all" if reach <= ring.tip_diameter / 2 + 1e-6 else
+                     f"goes no farther out than diameter {2 * reach:.3f} mm in the tooth spaces")
+            out.append(Finding(f"tool reach {name}", "failure", 2 * reach, 2 * form,
+                               f"{name}: the {2 * tool_radius:g} mm end mill {where}, short of the form diameter "
+                               f"{2 * form:.3f} mm where the involute ends, so the flanks cannot be cut; use an "
+                               f"end mill of at most {biggest:.2f} mm or a larger module"))
+        else:
+            out.append(Finding(f"tool reach {name}", "ok", 2 * reach, 2 * form,
+                               f"{name}: the {2 * tool_radius:g} mm end mill reaches the whole involute flank "
+                               f"(out to diameter {2 * reach:.3f} mm)"))
+    if min_feature > 0:
+        out += _tip_findings(name, ring.tip_thickness, process, min_feature)
+    return out
 
 
 def process_findings(name: str, gear: SpurGear, outline: np.ndarray, process: str, tool_radius: float,
@@ -341,13 +444,5 @@ def process_findings(name: str, gear: SpurGear, outline: np.ndarray, process: st
                                f"{name}: the {2 * tool_radius:g} mm end mill reaches the whole involute flank "
                                f"(down to diameter {2 * reach:.3f} mm)"))
     if min_feature > 0:
-        tip = gear.tip_thickness
-        if tip < min_feature:
-            out.append(Finding(f"tip width {name}", "failure", tip, min_feature,
-                               f"{name}: the tip is {tip:.3f} mm thick, thinner than the {min_feature:g} mm the "
-                               f"{process} process holds; reduce the profile shift or shorten the tips"))
-        else:
-            out.append(Finding(f"tip width {name}", "ok", tip, min_feature,
-                               f"{name}: the tip ({tip:.3f} mm) is not thinner than the {min_feature:g} mm the "
-                               f"{process} process holds"))
+        out += _tip_findings(name, gear.tip_thickness, process, min_feature)
     return out

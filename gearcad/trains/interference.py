@@ -7,6 +7,9 @@ Pure numpy.  Every solid of the assembly is one of two shapes over a range of z:
   annulus from its tip circle to its rim) or a plate, bridge or carrier (its outline polygon
   and its round holes).
 
+A fused compound (two gears printed as one part with a hub between them) is one solid of
+the assembly: its gears and its hub are pieces of that part, never checked against each other.
+
 Two solids that share some z interfere when their material overlaps in the plane, except at
 designed fits: a rod inside a hole or a pipe (nested annuli), and meshing gears (their teeth
 are checked by the mesh checks).  Rods that stay put (pillars, screws) are also checked
@@ -16,6 +19,7 @@ Lengths in mm.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -42,6 +46,7 @@ class Solid:
     z1: float
     holes: tuple[tuple[float, float, float], ...] = ()  # (x, y, radius) in plate coordinates
     polygon: np.ndarray | None = None
+    part: str = ""  # the made part it belongs to when that part is more than one piece (a fused compound)
 
 
 @dataclass(frozen=True)
@@ -88,7 +93,20 @@ def solids_of(plan, mechanism) -> list[Solid]:
                          tuple((x, y, d / 2) for x, y, d in p.part.circles), pts))
     for r in mechanism.rods:
         out.append(Solid(r.name, "rod", r.x, r.y, r.diameter / 2, r.bore / 2, r.z0, r.z1))
-    return out
+    return _fused(plan, mechanism, out)
+
+
+def _fused(plan, mechanism, solids: list[Solid]) -> list[Solid]:
+    """The gears of each fused compound and its hub as pieces of one part (one solid of the assembly)."""
+    for j in getattr(mechanism, "joins", ()):
+        if j.hub is None:
+            continue
+        solids = [dataclasses.replace(s, part=j.file) if s.name in j.gears else s for s in solids]
+        d, hole, z0, z1 = j.hub
+        if z1 - z0 > TOL:
+            s = plan.shafts[plan.gear(j.gears[0]).shaft]
+            solids.append(Solid(f"{j.file} hub", "gear", s.x, s.y, d / 2, hole / 2, z0, z1, part=j.file))
+    return solids
 
 
 def _inside_hole(x: float, y: float, r: float, holes) -> bool:
@@ -159,7 +177,7 @@ def check_assembly(plan, mechanism) -> AssemblyCheck:
     found: list[tuple[str, str, float]] = []
     for i, a in enumerate(solids):
         for b in solids[i + 1:]:
-            if min(a.z1, b.z1) - max(a.z0, b.z0) <= TOL:
+            if min(a.z1, b.z1) - max(a.z0, b.z0) <= TOL or (a.part and a.part == b.part):
                 continue
             if a.kind == b.kind == "plate":
                 depth = _plate_vs_plate(a, b)
@@ -182,4 +200,5 @@ def check_assembly(plan, mechanism) -> AssemblyCheck:
             depth = min(w.outer + r.diameter / 2 - d, d + r.diameter / 2 - w.inner if w.inner > 0 else math.inf)
             if depth > TOL:
                 found.append((r.name, f"the sweep of {w.name}", depth))
-    return AssemblyCheck(len(solids), tuple(dict.fromkeys(found)))
+    pieces = sum(1 for s in solids if not s.part) + len({s.part for s in solids if s.part})  # a fused part is one
+    return AssemblyCheck(pieces, tuple(dict.fromkeys(found)))

@@ -40,6 +40,7 @@ class Join:
     pin: float = 0.0
     pins: tuple[tuple[float, float], ...] = ()  # plate coordinates, mm
     file: str | None = None  # the fused part's file stem
+    hub: tuple[float, float, float, float] | None = None  # fused: the hub's diameter, bore, z0 and z1, mm
 
 
 def _method(plan) -> str:
@@ -101,6 +102,16 @@ def _flat(plan, gears):
         cut = dataclasses.replace(g.cut_part, holes=(cut_hole,), circles=cut_extra)
         out.append(dataclasses.replace(g, spec=spec, part=part, cut_part=cut))
     return out
+
+
+def _fused_hub(plan, gears) -> tuple[float, float, float, float]:
+    """The hub of a fused part across the layer gap: diameter (inside every root less two modules, at most
+    2.5 bores + 2 mm: common practice for printed hubs), bore (running fit), lower and upper z, mm."""
+    low = min(gears, key=lambda g: g.z)
+    diameter = min(min(g.gear.root_diameter for g in gears) - 2 * max(g.gear.module for g in gears),
+                   2.5 * low.bore + 2.0)
+    z0 = low.z + plan.spec.thickness
+    return diameter, low.bore + plan.fabrication.bore_clearance, z0, max(z0, max(g.z for g in gears))
 
 
 def _pipe_output(plan, index: int) -> bool:
@@ -166,5 +177,5 @@ def join_compounds(plan, rods) -> tuple[object, list[Join], list[Finding]]:
             continue
         joins.append(Join(s.name, names, "fused",
                           f"print {' and '.join(names)} as one part ({s.name}-compound.stl), teeth in phase, with a hub "
-                          "filling the gap between them", file=f"{s.name}-compound"))
+                          "filling the gap between them", file=f"{s.name}-compound", hub=_fused_hub(plan, members)))
     return dataclasses.replace(plan, gears=tuple(gears)), joins, findings

@@ -16,7 +16,7 @@ from fractions import Fraction
 
 import numpy as np
 
-from ..meshes.checks import Finding, PairAnalysis, analyse_pair, process_findings
+from ..meshes.checks import Finding, PairAnalysis, analyse_pair
 from ..errors import InputError
 from ..geometry.bore import bore_loop
 from ..geometry.gear import SpurGear
@@ -418,7 +418,6 @@ def plan_compound(spec: TrainSpec, tolerance: float, load: InputLoad | None) -> 
         finding = _tool_finding(name, part.outer, fab)
         if finding:
             extra.append(finding)
-        extra += process_findings(name, gear, part.outer.points(), fab.process, fab.tool_radius, fab.min_feature)
         gears.append(PlannedGear(name, role, stage, gear, gspec, shaft, layer, bore, part, cut, rotation[name],
                                  heights[layer], _hub_part(name, gear, gspec, part, tolerance),
                                  gspec.hub.length if gspec.hub else 0.0))

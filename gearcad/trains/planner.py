@@ -11,6 +11,7 @@ from ..geometry.generate import DEFAULT_TOLERANCE
 from .differential import plan_summing
 from .epicyclic import plan_planetary
 from .plan import InputLoad, Plan, plan_compound
+from .process import process_check
 from .spec import TrainSpec
 from .supports import complete_plan
 
@@ -20,12 +21,13 @@ __all__ = ["plan_train"]
 def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: InputLoad | None = None) -> Plan:
     """Every figure, outline, position and check of the train ``spec``; with ``load``, the load ratings too.
 
+    Every gear part is held against the fabrication process (``gearcad.trains.process``).
     The plan comes with its mechanism (``gearcad.trains.supports``): what holds every shaft, the
     bought parts, the frame plates with every hole, and the assembly's interference check.
     """
     if spec.planetary is not None:
-        return complete_plan(plan_planetary(spec, tolerance, load))
+        return complete_plan(process_check(plan_planetary(spec, tolerance, load)))
     if spec.summing is not None:
-        return complete_plan(plan_summing(spec, tolerance, load))
+        return complete_plan(process_check(plan_summing(spec, tolerance, load)))
     plan, wanted = plan_compound(spec, tolerance, load)
-    return complete_plan(plan, wanted)
+    return complete_plan(process_check(plan), wanted)

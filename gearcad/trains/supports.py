@@ -571,6 +571,9 @@ def complete_plan(plan, bridges_wanted: dict[int, str] | None = None):
     w.findings += join_findings
     for j in joins:
         members = [g for g in plan.gears if g.name in j.gears]
+        if j.hub is not None:  # a fused part's hub fills the gap between its gears: no spacer there
+            w.rods[:] = [r for r in w.rods if not (r.kind == "spacer" and r.name.startswith(f"{j.shaft}-spacer-")
+                                                   and r.z0 >= j.hub[2] - 1e-9 and r.z1 <= j.hub[3] + 1e-9)]
         for k, (x, y) in enumerate(j.pins, start=1):
             w.rods.append(Rod(f"{j.shaft}-dowel-{k}", "dowel", x, y, j.pin, 0.0, min(g.z for g in members),
                               max(g.z + t for g in members), (), j.gears))

@@ -23,7 +23,7 @@ def as_before():
     """The writer's settings before issue 12: pcurves written, nothing shared."""
     from OCP.Interface import Interface_Static
 
-    import gearcad.export.step as step
+    import gearcad.export.step_files as step
 
     settings, share = step._step_settings, step.share_geometry
 
@@ -70,6 +70,19 @@ def row(label: str, write, write_before=None) -> int:
     return sizes[1]
 
 
+def by_entity(path: Path) -> None:
+    """Bytes of the file by entity type (the ten largest), to see what takes the room."""
+    import re
+    from collections import Counter
+
+    sizes: Counter[str] = Counter()
+    for number, body in re.findall(r"#(\d+)\s*=\s*((?:'(?:[^']|'')*'|[^';])*);", path.read_text(encoding="latin-1")):
+        sizes[body.split("(", 1)[0].strip() or "(complex)"] += len(number) + len(body) + 4
+    total = sum(sizes.values())
+    for kind, size in sizes.most_common(10):
+        print(f"    {kind:<34} {size / 1e3:8.1f} kB {100 * size / total:5.1f} %")
+
+
 def main() -> None:
     from importlib import resources
 
@@ -94,6 +107,14 @@ def main() -> None:
         items.append(AssemblyItem(p.name, build_solid(p.part, demo.spec.thickness, demo.tolerance).solid, 0, 0, p.z))
     after = row("demo assembly (goal <= 2 MB)", lambda p: assembly_step(items, p, "demo"))
     print(f"  goal met: {after <= 2_000_000}")
+    with tempfile.TemporaryDirectory() as tmp:
+        print("  by part (each written alone):")
+        for item in items:
+            path = write_step(item.solid, Path(tmp) / f"{item.name}.step", names=[item.name])
+            print(f"    {item.name:<34} {path.stat().st_size / 1e3:8.1f} kB")
+        path = assembly_step(items, Path(tmp) / "assembly.step", "demo")
+        print("  by entity type (the assembly):")
+        by_entity(path)
 
     epi = plan_train(parse_train('name = "epi"\nmodule = 1.0\nthickness = 3.0\nfabrication = "fdm-pla-0.4mm"\n'
                                  '[planetary]\nsun = 18\nplanet = 24\nring = 66\nplanets = 3\nfixed = "ring"\n'))
