@@ -12,8 +12,10 @@ on it and is the output.
   thick (two laminations on one pin), so an ``a`` planet meshes sun A and its
   ``b`` mate but never sun B.  The carrier turns at the mean of the suns.
 - ``planetary``: layers 0 path A; 1 a web bonded under the ring (it rides on
-  sun A's tube); 2 sun, planets and ring, whose outside teeth are path B's
-  driven gear; 3 the carrier disc with the planet pins.
+  sun A's tube); 2 a spacer ring bonded between web and ring, and inside it the
+  lower carrier disc; 3 sun, planets and ring, whose outside teeth are path B's
+  driven gear; 4 the upper carrier disc.  Each planet pin is held at both ends,
+  in the two carrier discs (as in :mod:`.epicyclic`); the pins join the discs.
 
 Lengths in mm, angles in radians.
 """
@@ -438,7 +440,7 @@ class _PlanetaryDifferential:
     """A planetary set as differential: sun on side A, ring (with outside teeth) on side B, carrier the output."""
 
     kind = "planetary"
-    top_layer = 2
+    top_layer = 3
 
     def __init__(self, spec: TrainSpec, system, fab: Fabrication, tube: float, path_b: _Path) -> None:
         ss = spec.summing
@@ -466,13 +468,21 @@ class _PlanetaryDifferential:
         self.radius = self.sun_pair.centre_distance
         # The pin holes at least their own diameter from the disc's edge (gearcad.trains.supports.EDGE_RULE).
         self.carrier_radius = self.radius + max(self.pin / 2 + max(2.0, 2 * self.m), 1.5 * (self.pin + fab.bore_clearance))
+        # The lower carrier disc turns inside the spacer ring (whose bore is the ring's tip circle) with the gear
+        # clearance all round.
+        room = self.ring_pair.ring.tip_diameter / 2 - self.carrier_radius
+        if room < fab.gear_clearance:
+            raise InputError(f"the lower carrier disc ({2 * self.carrier_radius:.2f} mm) does not turn inside the "
+                             f"{ss.ring}-tooth ring's tip circle ({self.ring_pair.ring.tip_diameter:.2f} mm) with "
+                             f"{fab.gear_clearance:g} mm clearance: use larger planets or a smaller bore")
+        self.disc_room = room
 
     def room(self) -> float:
         return 0.0  # the ring's outside teeth set the axle distance; nothing else reaches the input shaft
 
     def envelope(self):
         web = self._web_diameter() / 2
-        return [(1, web), (3, self.carrier_radius)]
+        return [(1, web), (2, web), (4, self.carrier_radius)]
 
     def _web_diameter(self) -> float:
         return (self.outside.root_diameter + self.ring_pair.ring.root_diameter) / 2
@@ -486,8 +496,8 @@ class _PlanetaryDifferential:
         ring_rots = [ring_phase(r, ss.planet, ss.ring, a) for r, a in zip(rot_p, angles)]
         if not same_phase(ring_rots, ss.ring):
             raise InputError("the planets do not all mesh the ring at one ring position: the assembly condition fails")
-        build.add_gear("sun", "sun", 0, self.sun_pair.gear1, GearSpec(ss.sun, self.sun_pair.gear1.shift), "axle", 2,
-                       self.tube, 0.0)
+        build.add_gear("sun", "sun", 0, self.sun_pair.gear1, GearSpec(ss.sun, self.sun_pair.gear1.shift), "axle",
+                       self.top_layer, self.tube, 0.0)
         self.pins = []
         for k, (a, rot) in enumerate(zip(angles, rot_p), start=1):
             key = f"pin-{k}"
@@ -495,13 +505,13 @@ class _PlanetaryDifferential:
             build.positions[key], build.bores[key] = centre, self.pin
             self.pins.append((key, centre))
             build.add_gear(f"planet-{k}", "planet", 0, self.sun_pair.gear2, GearSpec(ss.planet, self.sun_pair.gear2.shift),
-                           key, 2, self.pin, rot)
+                           key, self.top_layer, self.pin, rot)
         ring = self.ring_pair.ring
         ring_part = Part("ring", gear_loop(self.outside, build.tolerance), (ring_loop(ring, build.tolerance),), (),
                          f"ring  z{ring.teeth}  m{ring.module:g}  x{ring.shift:+.3f}; outside z{self.outside.teeth} "
                          f"m{self.outside.module:g}", symmetry=self.outside.teeth)
         label_r = (ring.root_diameter + self.outside.root_diameter) / 4
-        build.add_gear("ring", "ring", 2, ring, GearSpec(ss.ring, ring.shift), "axle", 2, self.tube, ring_rots[0],
+        build.add_gear("ring", "ring", 2, ring, GearSpec(ss.ring, ring.shift), "axle", self.top_layer, self.tube, ring_rots[0],
                        part=ring_part, label_at=(0.0, -label_r))
         self.ring_rotation = ring_rots[0]
         build.meshes += [PlannedMesh(("sun", "planet-1"), self.sun_pair, analyse_pair(self.sun_pair), ()),
@@ -509,8 +519,13 @@ class _PlanetaryDifferential:
         build.findings += list(self.conditions.findings) + [
             Finding("assembly notes", "ok", self.tube, self.spec.bore,
                     f"the sun and path a's driven gear are fixed to one {self.tube:g} mm tube free on the "
-                    f"{self.spec.bore:g} mm axle; the ring web is bonded under the ring and rides on that tube; the "
-                    "carrier (the output) rides on the axle above the set"),
+                    f"{self.spec.bore:g} mm axle; the ring web and the spacer ring are bonded under the ring and the web "
+                    "rides on that tube; the planet pins are held at both ends, in the lower carrier disc (turning "
+                    "inside the spacer ring, on the tube) and the carrier (the output, on the axle above the set); "
+                    "the pins join the two discs"),
+            Finding("lower carrier disc", "ok", self.disc_room, self.fab.gear_clearance,
+                    f"the lower carrier disc clears the spacer ring by {self.disc_room:.3f} mm all round (at least "
+                    f"{self.fab.gear_clearance:g} mm)"),
             Finding("ring rim", "ok", self.rim, MIN_RIM * self.m,
                     f"the ring's outside teeth ({self.outside.teeth}, path b's driven gear) leave {self.rim:.3f} mm of rim "
                     f"below their root circle (at least {MIN_RIM:g} module)")]
@@ -529,14 +544,24 @@ class _PlanetaryDifferential:
             teeth, centre = gear.gear.teeth, placed[shaft]
 
     def plates(self, build: _Build, axle: np.ndarray, z_of) -> list[PlannedPlate]:
-        holes = ((*axle, self.spec.bore + self.fab.bore_clearance),) + tuple(
-            (*c, self.pin + self.fab.bore_clearance) for _, c in self.pins)
-        carrier = Part("carrier", circle_loop(*axle, 2 * self.carrier_radius, build.tolerance, clockwise=False), (), holes,
+        fab, tol = self.fab, build.tolerance
+        pins = tuple((*c, self.pin + fab.bore_clearance) for _, c in self.pins)
+        disc = circle_loop(*axle, 2 * self.carrier_radius, tol, clockwise=False)
+        carrier = Part("carrier", disc, (), ((*axle, self.spec.bore + fab.bore_clearance),) + pins,
                        f"{self.spec.name} carrier (the output), {len(self.pins)} planet pins")
-        web = Part("ring-web", circle_loop(*axle, self._web_diameter(), build.tolerance, clockwise=False), (),
-                   ((*axle, self.tube + self.fab.bore_clearance),), f"{self.spec.name} ring web (bond under the ring)")
-        return [PlannedPlate("ring-web", web, kerf_cut(web, self.fab, build.tolerance), z_of(1)),
-                PlannedPlate("carrier", carrier, kerf_cut(carrier, self.fab, build.tolerance), z_of(3))]
+        # Its mate under the set, on sun A's tube: each pin held at both ends (gearcad.trains.epicyclic does the same).
+        lower = Part("carrier-back", disc, (), ((*axle, self.tube + fab.bore_clearance),) + pins,
+                     f"{self.spec.name} carrier-back, {len(self.pins)} planet pins")
+        rim = circle_loop(*axle, self._web_diameter(), tol, clockwise=False)
+        web = Part("ring-web", rim, (), ((*axle, self.tube + fab.bore_clearance),),
+                   f"{self.spec.name} ring web (bond under the ring spacer)")
+        bore = circle_loop(*axle, self.ring_pair.ring.tip_diameter, tol, clockwise=True)  # an inner contour, not a hole
+        spacer = Part("ring-spacer", rim, (bore,), (),
+                      f"{self.spec.name} ring spacer (bond between web and ring)")
+        return [PlannedPlate("ring-web", web, kerf_cut(web, fab, tol), z_of(1)),
+                PlannedPlate("ring-spacer", spacer, kerf_cut(spacer, fab, tol), z_of(2)),
+                PlannedPlate("carrier-back", lower, kerf_cut(lower, fab, tol), z_of(2)),
+                PlannedPlate("carrier", carrier, kerf_cut(carrier, fab, tol), z_of(self.top_layer + 1))]
 
     def network(self, gears: list, meshes: list) -> None:
         ss = self.spec.summing
