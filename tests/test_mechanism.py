@@ -17,7 +17,7 @@ from gearcad.errors import InputError
 from gearcad.trains.planner import plan_train
 from gearcad.trains.trainfile import parse_train
 from gearcad.trains.interference import check_assembly
-from gearcad.trains.hardware import END_SHAKE, REACH, STUD_PIPE, Rod
+from gearcad.trains.hardware import END_SHAKE, REACH, STUD_PIPE, Rod, spacers_of
 
 COMPOUND = """name = "three"
 module = 1.0
@@ -230,7 +230,7 @@ def test_lengths_follow_the_layer_stack(name):
         assert rods[s.name].length == pytest.approx(hi + t - lo + reach, abs=1e-9)
         assert s.free_span == pytest.approx(hi - (lo + t), abs=1e-9)
         index = [p.name for p in plan.shafts].index(s.name)
-        filled = sum(r.length for r in mech.rods if r.kind == "spacer" and r.name.startswith(f"{s.name}-spacer-"))
+        filled = sum(r.length for r in spacers_of(mech.rods, s.name))
         filled += sum(g.z + t + g.hub_length - g.z for g in plan.gears if g.shaft == index and g.role != "ring"
                       and g.bore <= rods[s.name].diameter + 1e-9)
         filled += sum(r.length for r in mech.rods if r.kind == "pipe" and r.name.startswith(f"{s.name}-tube-"))
@@ -255,6 +255,32 @@ def test_parts_list_counts_every_rod_with_its_length(name):
         assert row["diameter"] == pytest.approx(r.diameter, abs=0.005)
     made = {r["name"] for r in rows if r["kind"] == "made"}
     assert made >= {g.name for g in plan.gears} | {p.name for p in plan.plates}
+
+
+@pytest.mark.parametrize("name", ["demo", "PLANETARY", "SUMMING", "COAXIAL"])
+def test_spacers_thinner_than_their_shaft_are_listed_as_washers(name):
+    # Common practice: a spacer shorter than its shaft's diameter is bought as a washer (a shim washer up to
+    # 0.5 mm), ordered by inner x outer diameter x thickness; longer ones are cut from tube.
+    from gearcad.trains.parts import PARTS_COLUMNS, assembly_steps, parts_list
+
+    plan = plan_of(name)
+    rows = parts_list(plan, {})
+    clearance = plan.fabrication.bore_clearance
+    spacers = [r for r in plan.mechanism.rods if r.kind == "spacer"]
+    assert any(r.length < r.bore - clearance for r in spacers)  # each example has thin ones
+    steps = " ".join(assembly_steps(plan))
+    for r in spacers:
+        row = next(b for b in rows if r.name in b.get("note", "").split(", "))
+        thin = r.length < r.bore - clearance - 1e-9
+        assert ("washer" in row["name"]) == thin and ("-washer-" in r.name) == thin, (r.name, row["name"])
+        if thin:
+            assert (row["inner_diameter"], row["outer_diameter"], row["thickness"]) == pytest.approx(
+                (r.bore, r.diameter, r.length), abs=0.005)
+            word = "shim washer" if r.length <= 0.5 + 1e-9 else "washer"
+            assert row["name"].startswith(word + " ") and f"{word} {r.name} (" in steps
+        else:
+            assert row["name"] == "spacer tube" and row.get("thickness") is None
+    assert "thickness" in PARTS_COLUMNS
 
 
 @pytest.mark.parametrize("name", ["PLANETARY", "STEPPED"])

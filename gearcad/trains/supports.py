@@ -35,7 +35,7 @@ from ..meshes.checks import Finding
 from ..errors import InputError
 from ..geometry.shape import Loop, Part, arc_curve, line_curve, rounded_rectangle
 from .hardware import (EDGE_RULE, END_SHAKE, FRAME, Mechanism, PIPE_WALL, REACH, Rod, SPACER_WALL, STUD_PIPE,
-                       ShaftSupport, Sweep, screw_length, screw_size)
+                       ShaftSupport, Sweep, screw_length, screw_size, spacer_name, spacers_of)
 
 __all__ = ["complete_plan"]
 
@@ -141,7 +141,10 @@ def _holding_discs(plan, s) -> list:
 
 def _spacers(w: _Work, name: str, x: float, y: float, d: float, occupied: list[tuple[float, float]],
              lo: float, hi: float) -> None:
-    """Spacer tubes on a shaft in every gap between ``occupied`` intervals from ``lo`` to ``hi``; the last one short by the end shake."""
+    """Spacers on a shaft in every gap between ``occupied`` intervals from ``lo`` to ``hi``; the last one short by the end shake.
+
+    Those shorter than the shaft's diameter are named washers (``hardware.spacer_word``).
+    """
     occupied = sorted((a, b) for a, b in occupied if b > lo - 1e-9 and a < hi + 1e-9)
     gaps, at = [], lo
     for a, b in occupied:
@@ -156,7 +159,7 @@ def _spacers(w: _Work, name: str, x: float, y: float, d: float, occupied: list[t
     outer = d + 2 * SPACER_WALL
     for k, (a, b) in enumerate(gaps, start=1):
         top = b - END_SHAKE if k == len(gaps) and b - a > 2 * END_SHAKE else b
-        w.rods.append(Rod(f"{name}-spacer-{k}", "spacer", x, y, outer, inner, a, top))
+        w.rods.append(Rod(spacer_name(name, k, top - a, d), "spacer", x, y, outer, inner, a, top))
 
 
 def _reach(name: str, d: float) -> tuple[float, float]:
@@ -219,8 +222,14 @@ def _axle_pipes(w: _Work, s, gears) -> list[tuple[float, float]]:
     for side, members in sorted(sides.items()):
         z0, z1 = min(g.z for g in members), max(_gear_top(g, t) for g in members)
         tube = max(g.bore for g in members)
-        w.rods.append(Rod(f"{s.name}-tube-{side}", "pipe", s.x, s.y, tube, s.diameter + w.fab.bore_clearance, z0, z1,
+        name = f"{s.name}-tube-{side}"
+        w.rods.append(Rod(name, "pipe", s.x, s.y, tube, s.diameter + w.fab.bore_clearance, z0, z1,
                           (s.name,), tuple(g.name for g in members)))
+        # Discs riding on the tube (a carrier disc, a ring's web) are kept in their layers by spacers and washers on
+        # the tube between them and the tube's gears.
+        riding = [p for p in _holding_discs(w.plan, s) if z0 - 1e-9 <= p.z and p.z + t <= z1 + 1e-9]
+        occupied = [(g.z, _gear_top(g, t)) for g in members] + [(p.z, p.z + t) for p in riding]
+        _spacers(w, name, s.x, s.y, tube, occupied, z0, z1)
         spans.append((z0, z1))
     return spans
 
@@ -271,7 +280,8 @@ def _one_shaft(w: _Work, i: int, s, bridges_wanted: dict[int, str]) -> ShaftSupp
 def _respace(w: _Work, s, spans, rest, frame) -> None:
     """An axle's spacers fill the gaps between its tubes (not its gears)."""
     t = w.t
-    w.rods[:] = [r for r in w.rods if not (r.kind == "spacer" and r.name.startswith(f"{s.name}-spacer-"))]
+    gone = spacers_of(w.rods, s.name)
+    w.rods[:] = [r for r in w.rods if r not in gone]
     occupied = [(z, z + t) for _, z in frame] + spans + [(g.z, _gear_top(g, t)) for g in rest]
     occupied += [(p.z, p.z + t) for p in _holding_discs(w.plan, s)]  # carrier discs riding on the axle
     zs = sorted(z for _, z in frame)
@@ -290,7 +300,8 @@ def _coaxial_pipe(w: _Work, s, gears) -> ShaftSupport:
     # The input stands out beyond the pipe by one diameter.
     idx = w.rods.index(inner)
     w.rods[idx] = dataclasses.replace(inner, z1=max(inner.z1, top + inner.diameter))
-    w.rods[:] = [r for r in w.rods if not (r.kind == "spacer" and r.name.startswith(f"{inner.name}-spacer-"))]
+    gone = spacers_of(w.rods, inner.name)
+    w.rods[:] = [r for r in w.rods if r not in gone]
     occupied = [(w.back_z, w.back_z + t)] + [(g.z, _gear_top(g, t)) for g in w.plan.gears if g.shaft == 0]
     _spacers(w, inner.name, s.x, s.y, inner.diameter, occupied + [(low, top)], w.back_z + t, low)
     # Between the output gear and the front plate, a spacer tube on the pipe.
