@@ -459,3 +459,84 @@ def test_every_readme_train_builds_with_every_shaft_held_at_two_points(index):
     assert all(len(s.supports) >= 2 for s in plan.mechanism.shafts)
     assert plan.mechanism.overlaps == ()
     assert not [f for f in plan.findings if f.severity == "failure"]
+
+
+def _train(*stages):
+    return 'name = "t"\nmodule = 1.0\nthickness = 3.0\n' + "".join(
+        f"[[stage]]\ndriver = {a}\ndriven = {b}\n" for a, b in stages)
+
+
+# Trains whose layouts put two one-plate shafts nearly on one axis, each blocked by the other's gear: both want a
+# bridge in the same room between their layers (found by trying trains; the shafts are 4.5 and 5.0 mm apart).
+NEAR = {"intermediate": ((20, 60), (19, 70), (10, 39)), "ends": ((15, 21), (10, 16))}
+
+
+@pytest.mark.parametrize("case", sorted(NEAR))
+def test_nearly_coaxial_shafts_that_both_want_a_bridge_give_one_of_them_a_stud(case):
+    plan = plan_train(parse_train(_train(*NEAR[case])))
+    mech = plan.mechanism
+    shafts = {s.name: s for s in plan.shafts}
+    studs = [s for s in mech.shafts if s.kind == "stud"]
+    assert len(studs) == 1
+    stud = studs[0]
+    finding = next(f for f in plan.findings if f.check == f"stud {stud.name}")
+    other = next(n for n in shafts if n != stud.name and f"would meet {n}," in finding.message)
+    a, b = shafts[stud.name], shafts[other]
+    assert math.hypot(a.x - b.x, a.y - b.y) < 6.0 and "nearly coaxial" in finding.message
+    assert finding.severity == "warning"
+    # The intermediate shaft takes the stud where there is one; the other keeps its bridge.
+    assert stud.name == ("shaft-2" if case == "intermediate" else "input")
+    kept = next(s for s in mech.shafts if s.name == other)
+    assert kept.kind == "arbor" and f"bridge-{other}" in kept.supports
+    # The stud's pipe: the gears turn on it, fixed in one plate (the documented alternative).
+    rods = {r.name: r for r in mech.rods}
+    assert rods[stud.pipe].kind == "pipe" and rods[stud.name].kind == "stud" and len(stud.supports) == 1
+    if case == "intermediate":
+        assert rods[stud.pipe].length >= STUD_PIPE * a.diameter
+    assert check_assembly(plan, mech).overlaps == ()
+
+
+@pytest.mark.parametrize("stages", [((18, 67), (20, 48), (11, 44)), ((12, 49), (13, 18), (13, 52)),
+                                    ((17, 63), (16, 34), (11, 47), (10, 68)), ((16, 53), (15, 56), (15, 49))])
+def test_bridges_keep_clear_of_every_rod_and_bridge_placed_after_them(stages):
+    # Trains where bridges placed in turn used to meet a shaft, a pillar or a bridge placed later.
+    # shapely: each bridge's outline against every rod (circle) and every other bridge at its height.
+    plan = plan_train(parse_train(_train(*stages)))
+    mech = plan.mechanism
+    t = plan.spec.thickness
+    bridges = [p for p in plan.plates if p.name.startswith("bridge-")]
+    assert bridges
+    for p in bridges:
+        outline = shapely.Polygon(p.part.outer.points())
+        own = p.name[len("bridge-"):]
+        for r in mech.rods:
+            if min(p.z + t, r.z1) - max(p.z, r.z0) <= 1e-9 or r.name == own or r.name.startswith(f"{p.name}-pillar-"):
+                continue
+            assert outline.distance(shapely.Point(r.x, r.y).buffer(r.diameter / 2, 64)) > 0, (p.name, r.name)
+        for q in bridges:
+            if q is not p and abs(q.z - p.z) < t:
+                assert not outline.intersects(shapely.Polygon(q.part.outer.points())), (p.name, q.name)
+    assert check_assembly(plan, mech).overlaps == ()
+
+
+def test_two_bridges_crossing_like_an_x_are_caught():
+    # A bridge turned a quarter turn about its shaft and laid at the same height crosses the original at mid-length,
+    # where neither has a vertex inside the other (shapely: they intersect).
+    from gearcad.geometry.shape import Part
+    from gearcad.trains.plan import PlannedPlate
+
+    plan = plan_of("BRIDGED")
+    bridge = next(p for p in plan.plates if p.name.startswith("bridge-"))
+    cx, cy, _ = bridge.part.circles[0]
+    pts = bridge.part.outer.points() - (cx, cy)
+    turned = pts[:, ::-1] * (-1, 1) + (cx, cy)
+    assert shapely.Polygon(turned).intersects(shapely.Polygon(bridge.part.outer.points()))
+
+    class Outline:
+        def points(self):
+            return turned
+
+    ghost = PlannedPlate("bridge-ghost", Part("bridge-ghost", Outline(), (), ()), None, bridge.z)
+    moved = dataclasses.replace(plan, plates=plan.plates + (ghost,))
+    check = check_assembly(moved, plan.mechanism)
+    assert any({"bridge-ghost", bridge.name} == {a, b} for a, b, _ in check.overlaps)

@@ -141,10 +141,23 @@ def _round_vs_plate(a: Solid, p: Solid) -> float:
 def _plate_vs_plate(a: Solid, b: Solid) -> float:
     """1 when an outline point of one plate lies in the other's material (inside its outline, outside its round holes:
     a carrier disc turning inside a spacer ring is clear), else 0."""
+    if _outlines_cross(a.polygon, b.polygon):  # two bars crossing like an X: no vertex of either inside the other
+        return 1.0
     for p, q in ((a, b), (b, a)):
         if any(_polygon_gap(q.polygon, x, y)[0] and not _inside_hole(x, y, 0.0, q.holes) for x, y in p.polygon[::3]):
             return 1.0
     return 0.0
+
+
+def _outlines_cross(p: np.ndarray, q: np.ndarray) -> bool:
+    """Whether an edge of outline ``p`` properly crosses an edge of outline ``q`` (orientation test, every pair)."""
+    a, b = p[:, None, :], np.roll(p, -1, axis=0)[:, None, :]
+    c, d = q[None, :, :], np.roll(q, -1, axis=0)[None, :, :]
+
+    def orient(u, v, w):
+        return (v[..., 0] - u[..., 0]) * (w[..., 1] - u[..., 1]) - (v[..., 1] - u[..., 1]) * (w[..., 0] - u[..., 0])
+
+    return bool(np.any((orient(a, b, c) * orient(a, b, d) < -TOL) & (orient(c, d, a) * orient(c, d, b) < -TOL)))
 
 
 def _meshing(plan) -> set[frozenset[str]]:

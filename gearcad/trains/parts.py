@@ -114,7 +114,14 @@ def assembly_steps(plan) -> list[str]:
         return []
     steps = [(f"Join {' and '.join(j.gears)}: " if len(j.gears) > 1 else "") + f"{j.note}." for j in mech.joins]
     front_bridges = [b for b in mech.bridges if _bridge_side(plan, b) == "front"]
-    held_front = {s.name for s in mech.shafts if any(b in s.supports for b in front_bridges)}
+    front_studs = sorted(s.name for s in mech.shafts if s.kind == "stud" and s.supports == ("front-plate",))
+    held_front = {s.name for s in mech.shafts if any(b in s.supports for b in front_bridges)} | set(front_studs)
+    rods = {r.name: r for r in mech.rods}
+    for name in front_studs:  # a stud fixed in the front plate hangs its pipe and gears from it
+        steps.append(f"Front plate first: lay it inner face up and fix the stud {name} ({rods[name].diameter:g} mm, "
+                     f"{rods[name].length:.2f} mm long) in its hole, flush with the plate's outer face; slide on, in this "
+                     "order, " + "; ".join(_stack(plan, {name}, reverse=True)) + "; keep the pipe on by peening the "
+                     "stud's end or gluing a washer to it (not to the pipe).")
     for b in front_bridges:
         shafts = sorted(s.name for s in mech.shafts if b in s.supports)
         steps.append(f"Front plate first: lay it inner face up and put the {', '.join(shafts)} shaft(s) into their "
@@ -152,7 +159,7 @@ def assembly_steps(plan) -> list[str]:
     if layer:
         steps.append(f"At {layer[0]:.2f} mm above the back plate: " + "; ".join(layer[1]) + ".")
     steps.append("Check that every gear turns freely and meshes in the phase the assembly drawing shows (assembly.step).")
-    what = "the front plate" + (" with its bridge(s) and what they hold" if front_bridges else "")
+    what = "the front plate" + (" with its bridge(s), stud(s) and what they hold" if front_bridges or front_studs else "")
     steps.append(f"Lower {what} over the shaft ends and the screws, the gears it carries meshing as they go down; fit "
                  "washers and nuts and tighten evenly.")
     steps.append("Turn the input by hand through a full turn of the output: nothing may bind or rub.")

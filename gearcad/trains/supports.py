@@ -122,6 +122,7 @@ class _Work:
     margin: float
     screw: str = "M3"
     nominal: float = 3.0
+    future: dict = dataclasses.field(default_factory=dict)  # bridged shafts not built yet: name -> _Ahead
 
 
 def _plate(plan, name):
@@ -234,14 +235,53 @@ def _axle_pipes(w: _Work, s, gears) -> list[tuple[float, float]]:
     return spans
 
 
+@dataclass(frozen=True)
+class _Ahead:
+    """A bridged shaft not built yet, as its rod will stand (spacers included): bridges placed before it keep clear."""
+
+    name: str
+    x: float
+    y: float
+    radius: float
+    z0: float
+    z1: float
+
+
 def _shafts(w: _Work, bridges_wanted: dict[int, str]) -> None:
-    """Every shaft's support; the bridged ones last, so their pillars see every other shaft's rods."""
+    """Every shaft's support; the bridged ones last, so their pillars see every other shaft's rods.
+
+    The bridged shafts go intermediate shafts first, the input and output last: a bridge keeps clear of the rods
+    of the bridged shafts still to come, so where two nearly coaxial shafts both want a bridge in one room, the
+    first (an intermediate shaft where there is one) becomes the stud and the other keeps its bridge.
+    """
     plan = w.plan
     one_plate = [i for i, s in enumerate(plan.shafts)
                  if s.back != s.front and i in bridges_wanted and any(g.shaft == i for g in plan.gears)]
+    one_plate.sort(key=lambda i: (plan.shafts[i].name in ("input", "output", "centre"), i))
     done = {i: _one_shaft(w, i, s, bridges_wanted) for i, s in enumerate(plan.shafts) if i not in one_plate}
-    done.update({i: _one_shaft(w, i, plan.shafts[i], bridges_wanted) for i in one_plate})
+    for i in one_plate:
+        s = plan.shafts[i]
+        z0, z1 = _bridged_span(w, [g for g in plan.gears if g.shaft == i], bridges_wanted[i])
+        w.future[s.name] = _Ahead(s.name, s.x, s.y, s.diameter / 2 + SPACER_WALL, z0, z1)
+    for i in one_plate:
+        w.future.pop(plan.shafts[i].name)
+        done[i] = _one_shaft(w, i, plan.shafts[i], bridges_wanted)
     w.shafts = [done[i] for i in range(len(plan.shafts))]
+
+
+def _bridge_z(w: _Work, gears, side: str) -> float:
+    """Lower face of the bridge that holds a shaft's ``side`` end: in the room the plan left beyond its layer, mm."""
+    t, plan = w.t, w.plan
+    if side == "front":  # above the top of its layer (hubs included)
+        layer = max(g.layer for g in gears)
+        return max(_gear_top(g, t) for g in plan.gears if g.layer == layer) + w.fab.layer_gap
+    return min(g.z for g in gears) - w.fab.layer_gap - w.t
+
+
+def _bridged_span(w: _Work, gears, side: str) -> tuple[float, float]:
+    """From where to where the rod of a shaft held by a plate and a bridge will stand, mm."""
+    zb = _bridge_z(w, gears, side)
+    return (w.back_z, zb + w.t) if side == "front" else (zb, w.front_z + w.t)
 
 
 def _one_shaft(w: _Work, i: int, s, bridges_wanted: dict[int, str]) -> ShaftSupport:
@@ -323,10 +363,32 @@ def _stadium(p1: np.ndarray, p2: np.ndarray, half: float, tolerance: float) -> L
                  line_curve(tuple(a1.points[-1]), tuple(a2.points[0]))))
 
 
+def _near_outline(pts: np.ndarray, p: np.ndarray, reach: float) -> bool:
+    """Whether point ``p`` lies inside the closed outline ``pts`` or within ``reach`` of its edge, mm."""
+    a, b = pts, np.roll(pts, -1, axis=0)
+    ab = b - a
+    k = np.clip(np.einsum("ij,ij->i", p - a, ab) / np.einsum("ij,ij->i", ab, ab), 0, 1)
+    if float(np.min(np.hypot(*(p - (a + k[:, None] * ab)).T))) < reach:
+        return True
+    crosses = ((a[:, 1] > p[1]) != (b[:, 1] > p[1])) & (
+        p[0] < a[:, 0] + (p[1] - a[:, 1]) * ab[:, 0] / np.where(ab[:, 1] == 0, 1, ab[:, 1]))
+    return bool(np.count_nonzero(crosses) % 2)
+
+
 def _segment_distance(p: np.ndarray, a: np.ndarray, b: np.ndarray) -> float:
     ab = b - a
     k = float(np.clip(np.dot(p - a, ab) / np.dot(ab, ab), 0.0, 1.0))
     return float(np.linalg.norm(p - (a + k * ab)))
+
+
+def _segments_distance(a: np.ndarray, b: np.ndarray, c: np.ndarray, d: np.ndarray) -> float:
+    """Least distance between segments ab and cd (0 when they cross), mm."""
+    def side(p, q, r):
+        return (q[0] - p[0]) * (r[1] - p[1]) - (q[1] - p[1]) * (r[0] - p[0])
+
+    if side(a, b, c) * side(a, b, d) < 0 and side(c, d, a) * side(c, d, b) < 0:
+        return 0.0
+    return min(_segment_distance(a, c, d), _segment_distance(b, c, d), _segment_distance(c, a, b), _segment_distance(d, a, b))
 
 
 def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) -> ShaftSupport:
@@ -335,15 +397,12 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
     hole = fab.spacer_hole
     pillar_d = 2 * w.nominal
     half = max(EDGE_RULE * hole + hole / 2, EDGE_RULE * (s.diameter + fab.bore_clearance) * 1.5, pillar_d / 2)
-    if side == "front":  # above the top of its layer (hubs included): the room the plan left
-        layer = max(g.layer for g in gears)
-        zb = max(_gear_top(g, t) for g in plan.gears if g.layer == layer) + fab.layer_gap
-        pz0, pz1 = w.back_z + t, zb
-    else:
-        zb = min(g.z for g in gears) - fab.layer_gap - t
-        pz0, pz1 = zb + t, w.front_z
+    zb = _bridge_z(w, gears, side)  # the room the plan left
+    pz0, pz1 = (w.back_z + t, zb) if side == "front" else (zb + t, w.front_z)
     centre = np.array([s.x, s.y])
     others = [r for r in w.rods if r.kind in ("arbor", "axle", "pipe", "stud", "pin", "pillar", "spacer")]
+    # The bridged shafts still to come, as rods (with their spacers' radius), so this bridge keeps clear of them.
+    others += [Rod(a.name, "arbor", a.x, a.y, 2 * a.radius, 0.0, a.z0, a.z1) for a in w.future.values()]
     width, height = plan.layout.width, plan.layout.height
     edge = EDGE_RULE * hole + hole / 2
 
@@ -356,6 +415,9 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
             near = math.hypot(p[0] - r.x, p[1] - r.y) < r.diameter / 2 + pillar_d / 2 + w.margin
             if near and min(pz1, r.z1) - max(pz0, r.z0) > 1e-9:
                 return False
+        for br in w.bridges:  # a bridge placed before stands in this pillar's way
+            if min(pz1, br.z + t) - max(pz0, br.z) > 1e-9 and _near_outline(br.part.outer.points(), p, pillar_d / 2 + w.margin):
+                return False
         return True
 
     def bar_ok(a: np.ndarray, b: np.ndarray) -> bool:
@@ -367,10 +429,11 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
         for g in w.sweeps:
             if min(zb + t, g.z1) - max(zb, g.z0) > 1e-9 and _segment_distance(np.array([g.x, g.y]), a, b) < half + g.outer + w.margin:
                 return False
-        for br in w.bridges:
+        for br in w.bridges:  # another bar at this height: the two axes keep both half-widths and the margin apart
             if abs(br.z - zb) < t and br.name != f"bridge-{s.name}":
-                pts = br.part.outer.points()
-                if min(_segment_distance(q, a, b) for q in pts[::4]) < half + w.margin:
+                c, d = (np.array(h[:2]) for h in br.part.circles[1:3])
+                other = max(_segment_distance(q, c, d) for q in br.part.outer.points())
+                if _segments_distance(a, b, c, d) < half + other + w.margin:
                     return False
         return True
 
@@ -388,6 +451,16 @@ def _bridged(w: _Work, i: int, s, gears, plate: tuple[str, float], side: str) ->
         if (best is None or length < best[0]) and bar_ok(ends[0], ends[1]):
             best = (length, ends[0], ends[1])
     if best is None:
+        near = [(math.hypot(r.x - s.x, r.y - s.y), r.name) for r in others
+                if r.kind == "arbor" and r.name in w.future and min(zb + t, r.z1) - max(zb, r.z0) > 1e-9
+                and math.hypot(r.x - s.x, r.y - s.y) < half + r.diameter / 2 + w.margin]
+        if near:
+            gap, other = min(near)
+            end = (f"; the stud does not turn, so take the {s.name}'s motion from its gear"
+                   if s.name in ("input", "output") else "")
+            return _stud(w, s, gears, plate, f"a gear of another layer blocks its way to the other plate, and its "
+                                             f"bridge would meet {other}, {gap:.2f} mm away and also held by a bridge "
+                                             f"at that height (nearly coaxial shafts): {other} keeps the bridge{end}")
         return _stud(w, s, gears, plate, "a gear of another layer blocks its way to the other plate and no bridge fits")
     _, p1, p2 = best
     name = f"bridge-{s.name}"
@@ -467,6 +540,10 @@ def _frame_pillars(w: _Work, width: float, height: float) -> tuple[float, float]
 def _pillar_clear(w: _Work, x: float, y: float, d: float, z0: float, z1: float, fixed) -> bool:
     if _clear_of_sweeps(x, y, d / 2, z0, z1, w.sweeps, w.margin) < 0:
         return False
+    for br in w.bridges:  # a frame pillar passes the bridges' height
+        if min(z1, br.z + w.t) - max(z0, br.z) > 1e-9 and _near_outline(br.part.outer.points(), np.array([x, y]),
+                                                                           d / 2 + w.margin):
+            return False
     return all(math.hypot(x - r.x, y - r.y) >= r.diameter / 2 + d / 2 + w.margin
                for r in fixed if min(z1, r.z1) - max(z0, r.z0) > 1e-9)
 
