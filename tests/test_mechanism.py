@@ -281,6 +281,7 @@ def test_spacers_thinner_than_their_shaft_are_listed_as_washers(name):
         else:
             assert row["name"] == "spacer tube" and row.get("thickness") is None
     assert "thickness" in PARTS_COLUMNS
+    assert all(row.get("thickness") is None for row in rows if not row["name"].startswith(("washer ", "shim washer ")))
 
 
 @pytest.mark.parametrize("name", ["PLANETARY", "STEPPED"])

@@ -41,7 +41,7 @@ def _rod_name(plan, r) -> str:
     if r.kind == "screw":
         return f"{r.thread} x {_r(r.length):g}"
     word = _word(plan, r)
-    if word.endswith("washer"):
+    if r.kind == "spacer" and word.endswith("washer"):
         return f"{word} {_r(r.bore):g} x {_r(r.diameter):g} x {_r(r.length):g}"
     return word
 
@@ -73,7 +73,7 @@ def parts_list(plan, files: Mapping[str, Mapping[str, str]]) -> list[dict[str, A
                                  "bore": _r(r.bore) if r.bore else None, "length": _r(r.length), "thread": r.thread or None,
                                  "material": "steel" if r.kind in ("arbor", "axle", "pin", "stud", "screw", "dowel")
                                  else "brass", "note": "", "used_for": []}
-            if _word(plan, r).endswith("washer"):  # a washer: its inner and outer diameter and thickness
+            if r.kind == "spacer" and _word(plan, r).endswith("washer"):  # a washer: its inner and outer diameter and thickness
                 row.update(inner_diameter=_r(r.bore), outer_diameter=_r(r.diameter), thickness=_r(r.length))
             rows.append(row)
         row["quantity"] += 1
