@@ -175,12 +175,13 @@ def test_every_planet_pin_is_held_at_both_ends_in_two_carrier_discs_that_clear_t
 
 @pytest.mark.parametrize("sun,pairs", [(z, n) for z in range(13, 25) for n in (2, 3, 4, 5)])
 def test_the_spur_differentials_assembly_rule_agrees_with_phasing_every_mesh(sun, pairs, monkeypatch):
-    # The closed form 2 z_s / N (derived in gearcad.differential) against the plan's phasing of every mesh with the
+    # The closed form 2 z_s / N (derived in gearcad.trains.differential_mean) against the plan's phasing of every mesh with the
     # rule switched off: phasing fails exactly when the rule does.
     import gearcad.trains.differential as differential
+    import gearcad.trains.differential_mean as mean
     from gearcad.errors import InputError
 
-    monkeypatch.setattr(differential, "mean_assembles", lambda z, n: True)
+    monkeypatch.setattr(mean, "mean_assembles", lambda z, n: True)
     text = MEAN.replace('differential = "mean"', f'differential = "mean"\nsun = {sun}\nplanet = 13\nplanets = {pairs}')
     spec = parse_train(text)
     if (2 * sun) % pairs == 0:
@@ -194,9 +195,10 @@ def test_a_spacing_that_breaks_the_rule_shows_the_clash(monkeypatch):
     # 19 suns, 3 pairs: 2 x 19 / 3 is not whole.  Forced through, sun B phased to pair 1 overlaps another pair's
     # planet (shapely), which is what the rule forbids.
     import gearcad.trains.differential as differential
+    import gearcad.trains.differential_mean as mean
 
-    monkeypatch.setattr(differential, "mean_assembles", lambda z, n: True)
-    monkeypatch.setattr(differential, "same_phase", lambda angles, teeth: True)
+    monkeypatch.setattr(mean, "mean_assembles", lambda z, n: True)
+    monkeypatch.setattr(mean, "same_phase", lambda angles, teeth: True)
     text = MEAN.replace('differential = "mean"', 'differential = "mean"\nsun = 19\nplanet = 13\nplanets = 3')
     forced = differential.plan_summing(parse_train(text), 1e-3)
     sun_b = polygon(forced.gear("sun-b"), forced)
