@@ -173,6 +173,44 @@ def test_every_planet_pin_is_held_at_both_ends_in_two_carrier_discs_that_clear_t
         assert web.z < spacer.z < ring.z < z_of["carrier"]
 
 
+# A planetary differential whose path-b idler reaches the front plate only (gearcad design 1/131 --kind summing
+# --differential planetary --planets 2 --max-teeth 100 -m 1 chose it).
+BRIDGED_B = """name = "sum-bridged"
+module = 1.0
+thickness = 3.0
+[summing]
+differential = "planetary"
+sun = 49
+planet = 20
+planets = 2
+ring = 89
+[[stage]]
+driver = 68
+driven = 99
+[[stage]]
+driver = 39
+driven = 100
+idler = 19
+"""
+
+
+def test_the_ring_web_and_spacer_stay_bonded_under_the_ring_when_an_idler_needs_a_bridge():
+    # Web, spacer ring and ring are one bonded stack: one layer pitch apart, whatever bridge room the train needs;
+    # the idler's bridge stands beside the differential in the spacer ring's layer, and the assembly is clean.
+    from gearcad.trains.interference import check_assembly
+
+    plan = plan_train(parse_train(BRIDGED_B))
+    z = {p.name: p.z for p in plan.plates}
+    pitch = plan.spec.thickness + plan.fabrication.layer_gap
+    assert z["ring-spacer"] - z["ring-web"] == pytest.approx(pitch)
+    assert plan.gear("ring").z - z["ring-spacer"] == pytest.approx(pitch)
+    idler = next(s for s in plan.mechanism.shafts if s.name == "idler-b")
+    assert "bridge-idler-b" in idler.supports and z["bridge-idler-b"] == pytest.approx(z["ring-spacer"])
+    assert all(s.free_span == pytest.approx(pitch + plan.fabrication.layer_gap)
+               for s in plan.mechanism.shafts if s.name.startswith("pin-"))
+    assert check_assembly(plan, plan.mechanism).overlaps == ()
+
+
 @pytest.mark.parametrize("sun,pairs", [(z, n) for z in range(13, 25) for n in (2, 3, 4, 5)])
 def test_the_spur_differentials_assembly_rule_agrees_with_phasing_every_mesh(sun, pairs, monkeypatch):
     # The closed form 2 z_s / N (derived in gearcad.trains.differential_mean) against the plan's phasing of every mesh with the

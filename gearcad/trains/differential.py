@@ -145,7 +145,9 @@ def _finish(build: SummingBuild, spec, system, fab, layout, placed, sides, keys,
 
     room = bridge_room(spec.thickness, fab.layer_gap)
     room_a = "idler-a" in sides and not sides["idler-a"][1]
-    room_b = "idler-b" in sides and not sides["idler-b"][0]
+    # The planetary differential's web and spacer ring are bonded under the ring (layers 1 and 2 under 3): no room
+    # may open between them, so idler b's bridge stands beside the differential in the spacer ring's layer.
+    room_b = "idler-b" in sides and not sides["idler-b"][0] and diff.kind != "planetary"
 
     def z_of(layer: int) -> float:
         return fab.layer_gap + layer * pitch + (room if room_a and layer >= 1 else 0.0) + (room if room_b and layer >= top else 0.0)
