@@ -17,7 +17,7 @@ from gearcad.errors import InputError
 from gearcad.trains.planner import plan_train
 from gearcad.trains.trainfile import parse_train
 from gearcad.trains.interference import check_assembly
-from gearcad.trains.hardware import END_SHAKE, REACH, STUD_PIPE, Rod
+from gearcad.trains.hardware import END_SHAKE, REACH, STUD_PIPE, Rod, spacers_of
 
 COMPOUND = """name = "three"
 module = 1.0
@@ -231,7 +231,7 @@ def test_lengths_follow_the_layer_stack(name):
         assert rods[s.name].length == pytest.approx(hi + t - lo + reach, abs=1e-9)
         assert s.free_span == pytest.approx(hi - (lo + t), abs=1e-9)
         index = [p.name for p in plan.shafts].index(s.name)
-        filled = sum(r.length for r in mech.rods if r.kind == "spacer" and r.name.startswith(f"{s.name}-spacer-"))
+        filled = sum(r.length for r in spacers_of(mech.rods, s.name))
         filled += sum(g.z + t + g.hub_length - g.z for g in plan.gears if g.shaft == index and g.role != "ring"
                       and g.bore <= rods[s.name].diameter + 1e-9)
         filled += sum(r.length for r in mech.rods if r.kind == "pipe" and r.name.startswith(f"{s.name}-tube-"))
@@ -256,6 +256,33 @@ def test_parts_list_counts_every_rod_with_its_length(name):
         assert row["diameter"] == pytest.approx(r.diameter, abs=0.005)
     made = {r["name"] for r in rows if r["kind"] == "made"}
     assert made >= {g.name for g in plan.gears} | {p.name for p in plan.plates}
+
+
+@pytest.mark.parametrize("name", ["demo", "PLANETARY", "SUMMING", "COAXIAL"])
+def test_spacers_thinner_than_their_shaft_are_listed_as_washers(name):
+    # Common practice: a spacer shorter than its shaft's diameter is bought as a washer (a shim washer up to
+    # 0.5 mm), ordered by inner x outer diameter x thickness; longer ones are cut from tube.
+    from gearcad.trains.parts import PARTS_COLUMNS, assembly_steps, parts_list
+
+    plan = plan_of(name)
+    rows = parts_list(plan, {})
+    clearance = plan.fabrication.bore_clearance
+    spacers = [r for r in plan.mechanism.rods if r.kind == "spacer"]
+    assert any(r.length < r.bore - clearance for r in spacers)  # each example has thin ones
+    steps = " ".join(assembly_steps(plan))
+    for r in spacers:
+        row = next(b for b in rows if r.name in b.get("note", "").split(", "))
+        thin = r.length < r.bore - clearance - 1e-9
+        assert ("washer" in row["name"]) == thin and ("-washer-" in r.name) == thin, (r.name, row["name"])
+        if thin:
+            assert (row["inner_diameter"], row["outer_diameter"], row["thickness"]) == pytest.approx(
+                (r.bore, r.diameter, r.length), abs=0.005)
+            word = "shim washer" if r.length <= 0.5 + 1e-9 else "washer"
+            assert row["name"].startswith(word + " ") and f"{word} {r.name} (" in steps
+        else:
+            assert row["name"] == "spacer tube" and row.get("thickness") is None
+    assert "thickness" in PARTS_COLUMNS
+    assert all(row.get("thickness") is None for row in rows if not row["name"].startswith(("washer ", "shim washer ")))
 
 
 @pytest.mark.parametrize("name", ["PLANETARY", "STEPPED"])
@@ -434,3 +461,84 @@ def test_every_readme_train_builds_with_every_shaft_held_at_two_points(index):
     assert all(len(s.supports) >= 2 for s in plan.mechanism.shafts)
     assert plan.mechanism.overlaps == ()
     assert not [f for f in plan.findings if f.severity == "failure"]
+
+
+def _train(*stages):
+    return 'name = "t"\nmodule = 1.0\nthickness = 3.0\n' + "".join(
+        f"[[stage]]\ndriver = {a}\ndriven = {b}\n" for a, b in stages)
+
+
+# Trains whose layouts put two one-plate shafts nearly on one axis, each blocked by the other's gear: both want a
+# bridge in the same room between their layers (found by trying trains; the shafts are 4.5 and 5.0 mm apart).
+NEAR = {"intermediate": ((20, 60), (19, 70), (10, 39)), "ends": ((15, 21), (10, 16))}
+
+
+@pytest.mark.parametrize("case", sorted(NEAR))
+def test_nearly_coaxial_shafts_that_both_want_a_bridge_give_one_of_them_a_stud(case):
+    plan = plan_train(parse_train(_train(*NEAR[case])))
+    mech = plan.mechanism
+    shafts = {s.name: s for s in plan.shafts}
+    studs = [s for s in mech.shafts if s.kind == "stud"]
+    assert len(studs) == 1
+    stud = studs[0]
+    finding = next(f for f in plan.findings if f.check == f"stud {stud.name}")
+    other = next(n for n in shafts if n != stud.name and f"would meet {n}," in finding.message)
+    a, b = shafts[stud.name], shafts[other]
+    assert math.hypot(a.x - b.x, a.y - b.y) < 6.0 and "nearly coaxial" in finding.message
+    assert finding.severity == "warning"
+    # The intermediate shaft takes the stud where there is one; the other keeps its bridge.
+    assert stud.name == ("shaft-2" if case == "intermediate" else "input")
+    kept = next(s for s in mech.shafts if s.name == other)
+    assert kept.kind == "arbor" and f"bridge-{other}" in kept.supports
+    # The stud's pipe: the gears turn on it, fixed in one plate (the issue's documented alternative).
+    rods = {r.name: r for r in mech.rods}
+    assert rods[stud.pipe].kind == "pipe" and rods[stud.name].kind == "stud" and len(stud.supports) == 1
+    if case == "intermediate":
+        assert rods[stud.pipe].length >= STUD_PIPE * a.diameter
+    assert check_assembly(plan, mech).overlaps == ()
+
+
+@pytest.mark.parametrize("stages", [((18, 67), (20, 48), (11, 44)), ((12, 49), (13, 18), (13, 52)),
+                                    ((17, 63), (16, 34), (11, 47), (10, 68)), ((16, 53), (15, 56), (15, 49))])
+def test_bridges_keep_clear_of_every_rod_and_bridge_placed_after_them(stages):
+    # Trains where bridges placed in turn used to meet a shaft, a pillar or a bridge placed later.
+    # shapely: each bridge's outline against every rod (circle) and every other bridge at its height.
+    plan = plan_train(parse_train(_train(*stages)))
+    mech = plan.mechanism
+    t = plan.spec.thickness
+    bridges = [p for p in plan.plates if p.name.startswith("bridge-")]
+    assert bridges
+    for p in bridges:
+        outline = shapely.Polygon(p.part.outer.points())
+        own = p.name[len("bridge-"):]
+        for r in mech.rods:
+            if min(p.z + t, r.z1) - max(p.z, r.z0) <= 1e-9 or r.name == own or r.name.startswith(f"{p.name}-pillar-"):
+                continue
+            assert outline.distance(shapely.Point(r.x, r.y).buffer(r.diameter / 2, 64)) > 0, (p.name, r.name)
+        for q in bridges:
+            if q is not p and abs(q.z - p.z) < t:
+                assert not outline.intersects(shapely.Polygon(q.part.outer.points())), (p.name, q.name)
+    assert check_assembly(plan, mech).overlaps == ()
+
+
+def test_two_bridges_crossing_like_an_x_are_caught():
+    # A bridge turned a quarter turn about its shaft and laid at the same height crosses the original at mid-length,
+    # where neither has a vertex inside the other (shapely: they intersect).
+    from gearcad.geometry.shape import Part
+    from gearcad.trains.plan import PlannedPlate
+
+    plan = plan_of("BRIDGED")
+    bridge = next(p for p in plan.plates if p.name.startswith("bridge-"))
+    cx, cy, _ = bridge.part.circles[0]
+    pts = bridge.part.outer.points() - (cx, cy)
+    turned = pts[:, ::-1] * (-1, 1) + (cx, cy)
+    assert shapely.Polygon(turned).intersects(shapely.Polygon(bridge.part.outer.points()))
+
+    class Outline:
+        def points(self):
+            return turned
+
+    ghost = PlannedPlate("bridge-ghost", Part("bridge-ghost", Outline(), (), ()), None, bridge.z)
+    moved = dataclasses.replace(plan, plates=plan.plates + (ghost,))
+    check = check_assembly(moved, plan.mechanism)
+    assert any({"bridge-ghost", bridge.name} == {a, b} for a, b, _ in check.overlaps)

@@ -166,7 +166,7 @@ def test_the_analytic_check_agrees_with_the_kernels_booleans():
     assert flats and overlapping_pairs(solids) == flats
     gear = plan.gear("s1-driven")
     s = plan.shafts[gear.shaft]
-    pillar = plan.mechanism.pillars[0]
+    pillar = next(p for p in plan.mechanism.pillars if p.name.startswith("pillar-"))  # a frame pillar: all layers
     moved = dataclasses.replace(pillar, x=s.x + gear.gear.root_diameter / 2 - 4.0, y=s.y)
     mech = dataclasses.replace(plan.mechanism, rods=tuple(moved if r is pillar else r for r in plan.mechanism.rods))
     moved_plan = dataclasses.replace(plan, mechanism=mech)

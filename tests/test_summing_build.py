@@ -145,14 +145,81 @@ def test_planet_pins_sit_on_the_carrier_discs(plan):
         assert all((round(p.x, 6), round(p.y, 6)) in holes for p in pins)
 
 
+def test_every_planet_pin_is_held_at_both_ends_in_two_carrier_discs_that_clear_the_set(plan):
+    # The trade's rule for a carrier (common practice): each planet pin held at both ends, the discs above and
+    # below the planet with the pin's washers between them.  shapely: the lower disc turns inside the spacer ring's
+    # bore with the profile's gear clearance; the assembly check finds no overlap.
+    from gearcad.trains.interference import check_assembly
+
+    mech = plan.mechanism
+    t = plan.spec.thickness
+    z_of = {p.name: p.z for p in plan.plates}
+    for s in (s for s in mech.shafts if s.name.startswith("pin-")):
+        assert s.kind == "pin" and len(s.supports) == 2 and all(n.startswith("carrier") for n in s.supports)
+        lo, hi = sorted(z_of[n] for n in s.supports)
+        for g in (g for g in plan.gears if plan.shafts[g.shaft].name == s.name):
+            assert lo + t <= g.z and g.z + t <= hi
+    assert not any(f.check.startswith("stud ") for f in plan.findings)
+    assert check_assembly(plan, mech).overlaps == ()
+    if plan.spec.summing.differential == "planetary":
+        spacer = next(p for p in plan.plates if p.name == "ring-spacer")
+        lower = next(p for p in plan.plates if p.name == "carrier-back")
+        ring = plan.gear("ring")
+        bore = shapely.Polygon(spacer.part.holes[0].points())
+        disc = shapely.Polygon(lower.part.outer.points())
+        assert spacer.z == lower.z and bore.contains(disc)
+        assert disc.exterior.distance(bore.exterior) >= plan.fabrication.gear_clearance - 1e-3
+        web = next(p for p in plan.plates if p.name == "ring-web")
+        assert web.z < spacer.z < ring.z < z_of["carrier"]
+
+
+# A planetary differential whose path-b idler reaches the front plate only (gearcad design 1/131 --kind summing
+# --differential planetary --planets 2 --max-teeth 100 -m 1 chose it).
+BRIDGED_B = """name = "sum-bridged"
+module = 1.0
+thickness = 3.0
+[summing]
+differential = "planetary"
+sun = 49
+planet = 20
+planets = 2
+ring = 89
+[[stage]]
+driver = 68
+driven = 99
+[[stage]]
+driver = 39
+driven = 100
+idler = 19
+"""
+
+
+def test_the_ring_web_and_spacer_stay_bonded_under_the_ring_when_an_idler_needs_a_bridge():
+    # Web, spacer ring and ring are one bonded stack: one layer pitch apart, whatever bridge room the train needs;
+    # the idler's bridge stands beside the differential in the spacer ring's layer, and the assembly is clean.
+    from gearcad.trains.interference import check_assembly
+
+    plan = plan_train(parse_train(BRIDGED_B))
+    z = {p.name: p.z for p in plan.plates}
+    pitch = plan.spec.thickness + plan.fabrication.layer_gap
+    assert z["ring-spacer"] - z["ring-web"] == pytest.approx(pitch)
+    assert plan.gear("ring").z - z["ring-spacer"] == pytest.approx(pitch)
+    idler = next(s for s in plan.mechanism.shafts if s.name == "idler-b")
+    assert "bridge-idler-b" in idler.supports and z["bridge-idler-b"] == pytest.approx(z["ring-spacer"])
+    assert all(s.free_span == pytest.approx(pitch + plan.fabrication.layer_gap)
+               for s in plan.mechanism.shafts if s.name.startswith("pin-"))
+    assert check_assembly(plan, plan.mechanism).overlaps == ()
+
+
 @pytest.mark.parametrize("sun,pairs", [(z, n) for z in range(13, 25) for n in (2, 3, 4, 5)])
 def test_the_spur_differentials_assembly_rule_agrees_with_phasing_every_mesh(sun, pairs, monkeypatch):
-    # The closed form 2 z_s / N (derived in gearcad.differential) against the plan's phasing of every mesh with the
+    # The closed form 2 z_s / N (derived in gearcad.trains.differential_mean) against the plan's phasing of every mesh with the
     # rule switched off: phasing fails exactly when the rule does.
     import gearcad.trains.differential as differential
+    import gearcad.trains.differential_mean as mean
     from gearcad.errors import InputError
 
-    monkeypatch.setattr(differential, "mean_assembles", lambda z, n: True)
+    monkeypatch.setattr(mean, "mean_assembles", lambda z, n: True)
     text = MEAN.replace('differential = "mean"', f'differential = "mean"\nsun = {sun}\nplanet = 13\nplanets = {pairs}')
     spec = parse_train(text)
     if (2 * sun) % pairs == 0:
@@ -166,9 +233,10 @@ def test_a_spacing_that_breaks_the_rule_shows_the_clash(monkeypatch):
     # 19 suns, 3 pairs: 2 x 19 / 3 is not whole.  Forced through, sun B phased to pair 1 overlaps another pair's
     # planet (shapely), which is what the rule forbids.
     import gearcad.trains.differential as differential
+    import gearcad.trains.differential_mean as mean
 
-    monkeypatch.setattr(differential, "mean_assembles", lambda z, n: True)
-    monkeypatch.setattr(differential, "same_phase", lambda angles, teeth: True)
+    monkeypatch.setattr(mean, "mean_assembles", lambda z, n: True)
+    monkeypatch.setattr(mean, "same_phase", lambda angles, teeth: True)
     text = MEAN.replace('differential = "mean"', 'differential = "mean"\nsun = 19\nplanet = 13\nplanets = 3')
     forced = differential.plan_summing(parse_train(text), 1e-3)
     sun_b = polygon(forced.gear("sun-b"), forced)
@@ -221,7 +289,8 @@ def test_build_writes_every_part_and_the_report_names_the_differential(tmp_path,
     assert main(["build", str(train), "--out", str(tmp_path / "out"), "--formats", "dxf,step"]) in (0, 1)
     report = json.loads((tmp_path / "out" / "report.json").read_text())
     assert report["kind"] == "summing" and "carrier" in report["ratio_rule"]
-    assert {p["name"] for p in report["plates"]} >= {"back-plate", "front-plate", "carrier", "ring-web"}
+    assert {p["name"] for p in report["plates"]} >= {"back-plate", "front-plate", "carrier", "carrier-back",
+                                                          "ring-web", "ring-spacer"}
     checks = {f["check"] for f in report["findings"]}
     assert {"one axle", "coaxial", "assembly", "neighbour", "ring rim", "kinematics"} <= checks
     assert (tmp_path / "out" / "ring.step").stat().st_size > 10_000

@@ -13,7 +13,8 @@ from ..errors import InputError
 from ..meshes.checks import Finding
 
 __all__ = ["END_SHAKE", "REACH", "STUD_PIPE", "PIPE_WALL", "SPACER_WALL", "EDGE_RULE", "FRAME", "Rod", "Sweep",
-           "ShaftSupport", "Mechanism", "screw_size", "screw_length", "bridge_room"]
+           "ShaftSupport", "Mechanism", "screw_size", "screw_length", "bridge_room", "SHIM", "spacer_word",
+           "spacer_name", "spacers_of"]
 
 
 END_SHAKE = 0.2  # axial play left on every shaft, mm; common practice for small clockwork (0.1-0.2 mm, from memory)
@@ -29,6 +30,9 @@ PIPE_WALL = 0.5  # wall of pipes and spacer tubes, mm (telescoping brass tube); 
 
 
 SPACER_WALL = 1.0  # wall of the spacers on a shaft, mm; common practice
+
+
+SHIM = 0.5  # a washer this thin or thinner is a shim washer (DIN 988 shim rings run 0.1-0.5 mm and up, from memory)
 
 
 EDGE_RULE = 1.0  # no hole nearer a plate edge than this many of its own diameters (the issue's rule)
@@ -118,6 +122,28 @@ class Mechanism:
     def pillars(self) -> tuple[Rod, ...]:
         """The pillars (plate to plate, plate to bridge, ring sleeves)."""
         return tuple(r for r in self.rods if r.kind == "pillar")
+
+
+def spacer_word(length: float, shaft: float) -> str:
+    """What the trade calls a spacer ``length`` mm long on a ``shaft`` mm shaft: a shim, a washer or a spacer tube.
+
+    One shorter than the shaft's diameter is a washer (it is bought as one, not cut from tube; common practice),
+    a shim washer when no thicker than ``SHIM``.
+    """
+    if length <= SHIM + 1e-9:
+        return "shim washer"
+    return "washer" if length < shaft - 1e-9 else "spacer tube"
+
+
+def spacer_name(shaft_name: str, k: int, length: float, shaft: float) -> str:
+    """The name of the ``k``-th spacer on a shaft: ``<shaft>-washer-<k>`` or ``<shaft>-spacer-<k>``."""
+    return f"{shaft_name}-{'spacer' if spacer_word(length, shaft) == 'spacer tube' else 'washer'}-{k}"
+
+
+def spacers_of(rods, shaft_name: str) -> list:
+    """The spacers and washers (kind ``spacer``) on the shaft or pipe called ``shaft_name``."""
+    return [r for r in rods if r.kind == "spacer"
+            and (r.name.startswith(f"{shaft_name}-spacer-") or r.name.startswith(f"{shaft_name}-washer-"))]
 
 
 def screw_size(hole: float) -> tuple[str, float]:

@@ -74,6 +74,13 @@ def _placed_circles(g, shaft) -> tuple[tuple[float, float, float], ...]:
     return tuple(out)
 
 
+def _inscribed(loop) -> tuple[float, float, float]:
+    """A circle inside an inner contour (a spacer ring's bore): about its centroid, to its nearest point, mm."""
+    pts = loop.points()
+    c = pts.mean(axis=0)
+    return float(c[0]), float(c[1]), float(np.hypot(*(pts - c).T).min())
+
+
 def solids_of(plan, mechanism) -> list[Solid]:
     """Every solid of the assembly as placed."""
     t = plan.spec.thickness
@@ -89,8 +96,8 @@ def solids_of(plan, mechanism) -> list[Solid]:
         out.append(Solid(g.name, "gear", s.x, s.y, g.gear.tip_diameter / 2, 0.0, g.z, top, _placed_circles(g, s)))
     for p in plan.plates:
         pts = p.part.outer.points()
-        out.append(Solid(p.name, "plate", 0.0, 0.0, 0.0, 0.0, p.z, p.z + t,
-                         tuple((x, y, d / 2) for x, y, d in p.part.circles), pts))
+        holes = tuple((x, y, d / 2) for x, y, d in p.part.circles) + tuple(_inscribed(h) for h in p.part.holes)
+        out.append(Solid(p.name, "plate", 0.0, 0.0, 0.0, 0.0, p.z, p.z + t, holes, pts))
     for r in mechanism.rods:
         out.append(Solid(r.name, "rod", r.x, r.y, r.diameter / 2, r.bore / 2, r.z0, r.z1))
     return _fused(plan, mechanism, out)
@@ -150,10 +157,25 @@ def _round_vs_plate(a: Solid, p: Solid) -> float:
 
 
 def _plate_vs_plate(a: Solid, b: Solid) -> float:
+    """1 when an outline point of one plate lies in the other's material (inside its outline, outside its round holes:
+    a carrier disc turning inside a spacer ring is clear), else 0."""
+    if _outlines_cross(a.polygon, b.polygon):  # two bars crossing like an X: no vertex of either inside the other
+        return 1.0
     for p, q in ((a, b), (b, a)):
-        if any(_polygon_gap(q.polygon, x, y)[0] for x, y in p.polygon[::3]):
+        if any(_polygon_gap(q.polygon, x, y)[0] and not _inside_hole(x, y, 0.0, q.holes) for x, y in p.polygon[::3]):
             return 1.0
     return 0.0
+
+
+def _outlines_cross(p: np.ndarray, q: np.ndarray) -> bool:
+    """Whether an edge of outline ``p`` properly crosses an edge of outline ``q`` (orientation test, every pair)."""
+    a, b = p[:, None, :], np.roll(p, -1, axis=0)[:, None, :]
+    c, d = q[None, :, :], np.roll(q, -1, axis=0)[None, :, :]
+
+    def orient(u, v, w):
+        return (v[..., 0] - u[..., 0]) * (w[..., 1] - u[..., 1]) - (v[..., 1] - u[..., 1]) * (w[..., 0] - u[..., 0])
+
+    return bool(np.any((orient(a, b, c) * orient(a, b, d) < -TOL) & (orient(c, d, a) * orient(c, d, b) < -TOL)))
 
 
 def _meshing(plan) -> set[frozenset[str]]:

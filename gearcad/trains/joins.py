@@ -49,7 +49,9 @@ def _method(plan) -> str:
 
 
 def _spacer_radius(rods, shaft) -> float:
-    return max([r.diameter / 2 for r in rods if r.kind == "spacer" and r.name.startswith(f"{shaft}-spacer-")] + [0.0])
+    from .hardware import spacers_of
+
+    return max([r.diameter / 2 for r in spacers_of(rods, shaft)] + [0.0])
 
 
 def _pinned(plan, shaft, gears, rods):

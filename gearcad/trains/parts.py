@@ -2,7 +2,9 @@
 
 Pure.  Made parts are the gears, plates, carrier discs and bridges (with their files);
 bought parts are the rods of the mechanism (shafts, axles, pins, studs, pipes, spacers,
-pillars, screws and nuts, dowel pins), grouped where diameter, bore and length agree.
+pillars, screws and nuts, dowel pins), grouped where diameter, bore and length agree.  A spacer
+shorter than its shaft's diameter is listed as a washer (a shim washer up to 0.5 mm), named by its
+inner and outer diameter and thickness, as washers are ordered.
 Lengths in mm, rounded to 0.01 mm.
 """
 
@@ -10,9 +12,12 @@ from __future__ import annotations
 
 from typing import Any, Mapping
 
+from .hardware import spacer_word
+
 __all__ = ["parts_list", "assembly_steps", "PARTS_COLUMNS"]
 
-PARTS_COLUMNS = ("name", "kind", "quantity", "diameter", "bore", "length", "thread", "material", "files", "note")
+PARTS_COLUMNS = ("name", "kind", "quantity", "diameter", "bore", "length", "thickness", "thread", "material", "files",
+                 "note")
 
 _WHAT = {"arbor": "shaft (turns in its supports)", "axle": "axle (fixed)", "pin": "planet pin", "stud": "stud (fixed)",
          "pipe": "pipe (tube)", "spacer": "spacer tube", "pillar": "pillar (sleeve)", "screw": "screw with nut and washer",
@@ -21,6 +26,24 @@ _WHAT = {"arbor": "shaft (turns in its supports)", "axle": "axle (fixed)", "pin"
 
 def _r(v: float) -> float:
     return round(float(v), 2)
+
+
+def _word(plan, r) -> str:
+    """What a rod is called in the list: a spacer shorter than its shaft's diameter is a (shim) washer."""
+    if r.kind == "spacer":
+        return spacer_word(r.length, r.bore - plan.fabrication.bore_clearance)
+    return _WHAT.get(r.kind, r.kind)
+
+
+def _rod_name(plan, r) -> str:
+    """A row's name: a screw by its thread and length, a washer by inner x outer diameter x thickness (the way
+    washers are ordered, e.g. DIN 988 shim rings d x D x s, from memory), other rods by what they are."""
+    if r.kind == "screw":
+        return f"{r.thread} x {_r(r.length):g}"
+    word = _word(plan, r)
+    if r.kind == "spacer" and word.endswith("washer"):
+        return f"{word} {_r(r.bore):g} x {_r(r.diameter):g} x {_r(r.length):g}"
+    return word
 
 
 def parts_list(plan, files: Mapping[str, Mapping[str, str]]) -> list[dict[str, Any]]:
@@ -45,11 +68,13 @@ def parts_list(plan, files: Mapping[str, Mapping[str, str]]) -> list[dict[str, A
         key = (r.kind, _r(r.diameter), _r(r.bore), _r(r.length), r.thread)
         row = groups.get(key)
         if row is None:
-            name = f"{r.thread} x {_r(r.length):g}" if r.kind == "screw" else f"{_WHAT.get(r.kind, r.kind)}"
+            name = _rod_name(plan, r)
             row = groups[key] = {"name": name, "kind": "bought", "quantity": 0, "diameter": _r(r.diameter),
                                  "bore": _r(r.bore) if r.bore else None, "length": _r(r.length), "thread": r.thread or None,
                                  "material": "steel" if r.kind in ("arbor", "axle", "pin", "stud", "screw", "dowel")
                                  else "brass", "note": "", "used_for": []}
+            if r.kind == "spacer" and _word(plan, r).endswith("washer"):  # a washer: its inner and outer diameter and thickness
+                row.update(inner_diameter=_r(r.bore), outer_diameter=_r(r.diameter), thickness=_r(r.length))
             rows.append(row)
         row["quantity"] += 1
         row["used_for"].append(r.name)
@@ -69,7 +94,7 @@ def _stack(plan, shaft_names: set[str], reverse: bool) -> list[str]:
     mech = plan.mechanism
     items = [(g.z, f"gear {g.name} on {plan.shafts[g.shaft].name}") for g in plan.gears
              if plan.shafts[g.shaft].name in shaft_names]
-    items += [(r.z0, f"{_WHAT[r.kind]} {r.name} ({r.length:.2f} mm)") for r in mech.rods
+    items += [(r.z0, f"{_word(plan, r)} {r.name} ({r.length:.2f} mm)") for r in mech.rods
               if r.kind in ("spacer", "pipe", "dowel") and any(r.name.startswith(f"{n}-") or r.name == n
                                                                  for n in shaft_names)]
     return [what for _, what in sorted(items, key=lambda t: t[0], reverse=reverse)]
@@ -89,7 +114,14 @@ def assembly_steps(plan) -> list[str]:
         return []
     steps = [(f"Join {' and '.join(j.gears)}: " if len(j.gears) > 1 else "") + f"{j.note}." for j in mech.joins]
     front_bridges = [b for b in mech.bridges if _bridge_side(plan, b) == "front"]
-    held_front = {s.name for s in mech.shafts if any(b in s.supports for b in front_bridges)}
+    front_studs = sorted(s.name for s in mech.shafts if s.kind == "stud" and s.supports == ("front-plate",))
+    held_front = {s.name for s in mech.shafts if any(b in s.supports for b in front_bridges)} | set(front_studs)
+    rods = {r.name: r for r in mech.rods}
+    for name in front_studs:  # a stud fixed in the front plate hangs its pipe and gears from it
+        steps.append(f"Front plate first: lay it inner face up and fix the stud {name} ({rods[name].diameter:g} mm, "
+                     f"{rods[name].length:.2f} mm long) in its hole, flush with the plate's outer face; slide on, in this "
+                     "order, " + "; ".join(_stack(plan, {name}, reverse=True)) + "; keep the pipe on by peening the "
+                     "stud's end or gluing a washer to it (not to the pipe).")
     for b in front_bridges:
         shafts = sorted(s.name for s in mech.shafts if b in s.supports)
         steps.append(f"Front plate first: lay it inner face up and put the {', '.join(shafts)} shaft(s) into their "
@@ -106,16 +138,17 @@ def assembly_steps(plan) -> list[str]:
         steps.append(f"Fit the {_WHAT[r.kind]} {r.name} ({r.diameter:g} mm, {r.length:.2f} mm long) into its hole in the "
                      f"{r.supports[0] if r.supports else 'plate'}.")
     items = [(g.z, _gear_words(plan, g)) for g in plan.gears if plan.shafts[g.shaft].name not in held_front]
-    items += [(r.z0, f"{_WHAT[r.kind]} {r.name} ({r.length:.2f} mm)") for r in mech.rods
+    items += [(r.z0, f"{_word(plan, r)} {r.name} ({r.length:.2f} mm)") for r in mech.rods
               if r.kind in ("spacer", "pipe", "pin", "dowel") and not any(r.name.startswith(f"{n}-") for n in held_front)]
     items += [(r.z0, f"pillar sleeve {r.name} ({r.length:.2f} mm) over its screw") for r in mech.rods
               if r.kind == "pillar" and "back-plate" not in r.supports and not set(r.supports) & set(front_bridges)]
-    items += [(p.z, p.name) for p in plan.plates if p.name not in ("back-plate", "front-plate")
-              and p.name not in front_bridges]
+    # Discs first in their layer (a carrier disc before the pins that stand in it); a bonded part says so.
+    items = [(p.z, p.name + (f" {p.part.label[p.part.label.index('('):]}" if "(bond" in p.part.label else ""))
+             for p in plan.plates if p.name not in ("back-plate", "front-plate") and p.name not in front_bridges] + items
     bridges = set(mech.bridges)
     layer = None
     for z, what in sorted(items, key=lambda t: t[0]):
-        if what in bridges:
+        if what in bridges:  # a bridge's words follow its name
             what = f"{what}, screwed onto its pillars (screws from the back plate's outside, tapped into the bridge)"
         if layer is not None and abs(z - layer[0]) < 1e-6:
             layer[1].append(what)
@@ -126,7 +159,7 @@ def assembly_steps(plan) -> list[str]:
     if layer:
         steps.append(f"At {layer[0]:.2f} mm above the back plate: " + "; ".join(layer[1]) + ".")
     steps.append("Check that every gear turns freely and meshes in the phase the assembly drawing shows (assembly.step).")
-    what = "the front plate" + (" with its bridge(s) and what they hold" if front_bridges else "")
+    what = "the front plate" + (" with its bridge(s), stud(s) and what they hold" if front_bridges or front_studs else "")
     steps.append(f"Lower {what} over the shaft ends and the screws, the gears it carries meshing as they go down; fit "
                  "washers and nuts and tighten evenly.")
     steps.append("Turn the input by hand through a full turn of the output: nothing may bind or rub.")

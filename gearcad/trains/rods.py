@@ -1,0 +1,201 @@
+"""The rods that hold a plan's shafts: shafts in two supports, studs on pipes, tubes, spacers and pillars.
+
+Pure.  The working state of :func:`gearcad.trains.supports.complete_plan` and the ways a shaft is
+held, each adding its rods (the shaft, its pipe or tubes, the spacers and washers that keep each
+gear in its layer, cut to the gaps, the last one short by the end shake); and a pillar with its
+through screw.  Lengths in mm.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+
+from ..meshes.checks import Finding
+from .hardware import (END_SHAKE, FRAME, PIPE_WALL, REACH, Rod, SPACER_WALL, STUD_PIPE, ShaftSupport, screw_length,
+                       spacer_name, spacers_of)
+from .sweeps import gear_top
+
+__all__ = ["Work", "plate_named", "holding_discs", "add_spacers", "frame_shaft", "stud", "axle_pipes", "respace",
+           "coaxial_pipe", "add_pillar"]
+
+
+@dataclass
+class Work:
+    plan: object
+    t: float
+    fab: object
+    back_z: float
+    front_z: float  # lower face of the front plate
+    rods: list
+    findings: list
+    sweeps: list
+    shafts: list
+    bridges: list  # PlannedPlate
+    margin: float
+    screw: str = "M3"
+    nominal: float = 3.0
+    future: dict = dataclasses.field(default_factory=dict)  # bridged shafts not built yet: name -> Ahead
+
+
+def plate_named(plan, name):
+    return next((p for p in plan.plates if p.name == name), None)
+
+
+def holding_discs(plan, s) -> list:
+    """Non-frame plates (carrier discs) with a hole centred on the shaft."""
+    out = []
+    for p in plan.plates:
+        if p.name in FRAME or p.name.startswith("bridge-"):
+            continue
+        if any(math.hypot(cx - s.x, cy - s.y) < 1e-6 for cx, cy, _ in p.part.circles):
+            out.append(p)
+    return out
+
+
+def add_spacers(w: Work, name: str, x: float, y: float, d: float, occupied: list[tuple[float, float]],
+                lo: float, hi: float) -> None:
+    """Spacers on a shaft in every gap between ``occupied`` intervals from ``lo`` to ``hi``; the last one short by the end shake.
+
+    Those shorter than the shaft's diameter are named washers (``hardware.spacer_word``).
+    """
+    occupied = sorted((a, b) for a, b in occupied if b > lo - 1e-9 and a < hi + 1e-9)
+    gaps, at = [], lo
+    for a, b in occupied:
+        if a > at + 1e-6:
+            gaps.append((at, a))
+        at = max(at, b)
+    if hi > at + 1e-6:
+        gaps.append((at, hi))
+    if not gaps:
+        return
+    inner = d + w.fab.bore_clearance
+    outer = d + 2 * SPACER_WALL
+    for k, (a, b) in enumerate(gaps, start=1):
+        top = b - END_SHAKE if k == len(gaps) and b - a > 2 * END_SHAKE else b
+        w.rods.append(Rod(spacer_name(name, k, top - a, d), "spacer", x, y, outer, inner, a, top))
+
+
+def _reach(name: str, d: float) -> tuple[float, float]:
+    """How far a shaft stands out behind the back plate and in front of the front plate, mm."""
+    return (REACH * d if name in ("input", "centre") else 0.0), (REACH * d if name in ("output", "centre") else 0.0)
+
+
+def frame_shaft(w: Work, i: int, s, gears, supports: list[tuple[str, float]], kind: str) -> ShaftSupport:
+    """A shaft held by two supports (name, lower face z): its rod and spacers."""
+    t = w.t
+    supports = sorted(supports, key=lambda p: p[1])
+    (n0, z_lo), (n1, z_hi) = supports[0], supports[-1]
+    back, front = _reach(s.name, s.diameter)
+    z0, z1 = z_lo - back, z_hi + t + front
+    rod = Rod(s.name, kind, s.x, s.y, s.diameter, 0.0, z0, z1, tuple(n for n, _ in supports), tuple(g.name for g in gears))
+    w.rods.append(rod)
+    occupied = [(z, z + t) for _, z in supports] + [(g.z, gear_top(g, t)) for g in gears]
+    occupied += [(p.z, p.z + t) for p in holding_discs(w.plan, s)]  # carrier discs riding on this shaft
+    add_spacers(w, s.name, s.x, s.y, s.diameter, occupied, z_lo + t, z_hi)
+    return ShaftSupport(s.name, kind, tuple(n for n, _ in supports), z1 - z0, z_hi - (z_lo + t))
+
+
+def stud(w: Work, s, gears, support: tuple[str, float], why: str) -> ShaftSupport:
+    """The last resort: a stud fixed in one plate, the gears fixed to a pipe that turns on it."""
+    t = w.t
+    name, z_plate = support
+    d_stud = s.diameter - 2 * PIPE_WALL
+    low = min(g.z for g in gears)
+    high = max(gear_top(g, t) for g in gears)
+    # The pipe runs from the plate's face past the gears; the stud ends flush with it (a washer glued or the end peened).
+    if z_plate < low:
+        p0, p1 = z_plate + t, high
+        z0, z1 = z_plate, high
+    else:
+        p0, p1 = low, z_plate
+        z0, z1 = low, z_plate + t
+    pipe = f"{s.name}-pipe"
+    w.rods.append(Rod(s.name, "stud", s.x, s.y, d_stud, 0.0, z0, z1, (name,), tuple(g.name for g in gears)))
+    w.rods.append(Rod(pipe, "pipe", s.x, s.y, s.diameter, d_stud + w.fab.bore_clearance, p0, p1, (s.name,),
+                      tuple(g.name for g in gears)))
+    length = p1 - p0
+    severity = "ok" if why.startswith("the train file") and length >= STUD_PIPE * s.diameter - 1e-9 else "warning"
+    w.findings.append(Finding(f"stud {s.name}", severity, length, STUD_PIPE * s.diameter,
+                              f"{s.name}: {why}; it is a {d_stud:g} mm stud fixed in the {name} with its gears fixed to a "
+                              f"{s.diameter:g} mm pipe {length:.2f} mm long turning on it "
+                              f"({'at least' if length >= STUD_PIPE * s.diameter else 'SHORTER than'} "
+                              f"{STUD_PIPE:g} bore diameters); a cantilever: keep its load light"))
+    return ShaftSupport(s.name, "stud", (name,), z1 - z0, length, pipe=pipe)
+
+
+def axle_pipes(w: Work, s, gears) -> list[tuple[float, float]]:
+    """Tubes of a summing train's differential axle: one per side (gears named ``a-...``/``...-a`` or ``b``)."""
+    t = w.t
+    sides: dict[str, list] = {}
+    for g in gears:
+        parts = g.name.split("-")
+        side = "b" if "b" in parts else "a"
+        sides.setdefault(side, []).append(g)
+    spans = []
+    for side, members in sorted(sides.items()):
+        z0, z1 = min(g.z for g in members), max(gear_top(g, t) for g in members)
+        tube = max(g.bore for g in members)
+        name = f"{s.name}-tube-{side}"
+        w.rods.append(Rod(name, "pipe", s.x, s.y, tube, s.diameter + w.fab.bore_clearance, z0, z1,
+                          (s.name,), tuple(g.name for g in members)))
+        # Discs riding on the tube (a carrier disc, a ring's web) are kept in their layers by spacers and washers on
+        # the tube between them and the tube's gears.
+        riding = [p for p in holding_discs(w.plan, s) if z0 - 1e-9 <= p.z and p.z + t <= z1 + 1e-9]
+        occupied = [(g.z, gear_top(g, t)) for g in members] + [(p.z, p.z + t) for p in riding]
+        add_spacers(w, name, s.x, s.y, tube, occupied, z0, z1)
+        spans.append((z0, z1))
+    return spans
+
+
+def respace(w: Work, s, spans, rest, frame) -> None:
+    """An axle's spacers fill the gaps between its tubes (not its gears)."""
+    t = w.t
+    gone = spacers_of(w.rods, s.name)
+    w.rods[:] = [r for r in w.rods if r not in gone]
+    occupied = [(z, z + t) for _, z in frame] + spans + [(g.z, gear_top(g, t)) for g in rest]
+    occupied += [(p.z, p.z + t) for p in holding_discs(w.plan, s)]  # carrier discs riding on the axle
+    zs = sorted(z for _, z in frame)
+    add_spacers(w, s.name, s.x, s.y, s.diameter, occupied, zs[0] + t, zs[-1])
+
+
+def coaxial_pipe(w: Work, s, gears) -> ShaftSupport:
+    """The output of a coaxial train: a pipe around the input shaft, through the front plate."""
+    t = w.t
+    inner = next(r for r in w.rods if r.name == w.plan.shafts[0].name)
+    low = min(g.z for g in gears)
+    top = w.front_z + t + REACH * inner.diameter
+    bore = inner.diameter + w.fab.bore_clearance
+    w.rods.append(Rod(s.name, "pipe", s.x, s.y, s.diameter, bore, low, top, ("front-plate", inner.name),
+                      tuple(g.name for g in gears)))
+    # The input stands out beyond the pipe by one diameter.
+    idx = w.rods.index(inner)
+    w.rods[idx] = dataclasses.replace(inner, z1=max(inner.z1, top + inner.diameter))
+    gone = spacers_of(w.rods, inner.name)
+    w.rods[:] = [r for r in w.rods if r not in gone]
+    occupied = [(w.back_z, w.back_z + t)] + [(g.z, gear_top(g, t)) for g in w.plan.gears if g.shaft == 0]
+    add_spacers(w, inner.name, s.x, s.y, inner.diameter, occupied + [(low, top)], w.back_z + t, low)
+    # Between the output gear and the front plate, a spacer tube on the pipe.
+    add_spacers(w, s.name, s.x, s.y, s.diameter, [(g.z, gear_top(g, t)) for g in gears], max(gear_top(g, t) for g in gears),
+                w.front_z)
+    return ShaftSupport(s.name, "pipe", ("front-plate", inner.name), top - low, w.front_z - max(gear_top(g, t) for g in gears),
+                        pipe=s.name, around=inner.name)
+
+
+def add_pillar(w: Work, name: str, x: float, y: float, z0: float, z1: float, holds: tuple[str, ...],
+               bolt_z: tuple[float, float] | None = None, tapped: bool = False) -> None:
+    """A pillar (a sleeve over a through screw) from ``z0`` to ``z1``, and its screw through the plates it holds.
+
+    ``tapped``: the screw comes in from the outside of the frame plate and ends flush in a thread tapped in the
+    bridge (nothing stands out into the layer beyond the bridge); otherwise a nut and washer close it.
+    """
+    hole = w.fab.spacer_hole
+    w.rods.append(Rod(name, "pillar", x, y, 2 * w.nominal, hole, z0, z1, holds))
+    lo, hi = bolt_z if bolt_z else (z0 - w.t, z1 + w.t)
+    if tapped:
+        w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, hi, holds, thread=w.screw))
+        return
+    nut = 0.8 * w.nominal + 0.5 * w.nominal  # nut (ISO 4032, 0.8 d, from memory) and a washer
+    length = screw_length(hi - lo + nut)
+    w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, lo + length, holds, thread=w.screw))
