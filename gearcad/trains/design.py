@@ -41,7 +41,7 @@ class Design:
     spec : gearcad.trainspec.TrainSpec
         The train description, ready for :func:`gearcad.trains.plan.plan_train` and the train file.
     kind : str
-        ``"compound"``, ``"planetary"`` or ``"summing"``.
+        ``"compound"``, ``"planetary"``, ``"summing"`` or ``"worm"`` (a compound train with a worm stage).
     relative_error : float
         ``ratio / target - 1`` of the chosen train (exact rational computation, rounded).
     tolerance : float
@@ -157,8 +157,8 @@ def design(target: str, *, kind: str = "compound", module: float, tolerance: flo
                              "apply to --worm; allowed: leave them out")
         from .design_worm import design_worm
 
-        chosen = design_worm(common, limits, worm, stages)
-        return replace(chosen, spec=replace(chosen.spec, target_tolerance=common.tolerance))
+        spec, error, train = design_worm(common, limits, worm, stages)
+        return Design(replace(spec, target_tolerance=common.tolerance), "worm", error, common.tolerance, train)
     chosen = _choose(common, limits, kind, stages, coaxial, inventory, shift_limit, planets, fixed, input, stepped,
                      max_ring_teeth, neighbour_margin, differential, candidates)
     return replace(chosen, spec=replace(chosen.spec, target_tolerance=common.tolerance))

@@ -26,8 +26,8 @@ DEFAULT_DIAMETER_FACTOR = 10.0
 
 
 def design_worm(common: Any, limits: Any, worm: str, stages: int | None, *, diameter_factor: float | None = None,
-                form: str = "za") -> Any:
-    """The best train ending in a worm stage for ``common.target``, as a :class:`gearcad.trains.design.Design`.
+                form: str = "za") -> tuple[Any, float, Any]:
+    """The best train ending in a worm stage for ``common.target``: (train description, relative error, the search's train).
 
     Parameters
     ----------
@@ -50,7 +50,6 @@ def design_worm(common: Any, limits: Any, worm: str, stages: int | None, *, diam
     from ..profiles import load_tooth_system
     from ..ratio.target import parse_target
     from ..ratio.worm import make_worm_query, parse_worm_option, solve_worm
-    from .design import Design
     from .spec import GearSpec, SolverSpec, StageSpec, TrainSpec, WormSpec
     from .stages import spec_with_stages
 
@@ -82,4 +81,4 @@ def design_worm(common: Any, limits: Any, worm: str, stages: int | None, *, diam
     from .worm_stage import worm_pair_of
 
     worm_pair_of(spec)  # the pair's own bounds, before anything is planned
-    return Design(spec, "worm", best.relative_error, common.tolerance, best)
+    return spec, best.relative_error, best
