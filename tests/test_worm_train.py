@@ -9,6 +9,7 @@ import json
 import math
 from pathlib import Path
 
+import numpy as np
 import pytest
 import sympy
 
@@ -258,9 +259,26 @@ def test_the_solids_of_a_worm_train(tmp_path):
     shape = placed(worm_part_solid(w), w.direction, (w.x, w.y, w.z), w.thread / 2)
     assert is_valid(shape)
     box = Bnd_Box()
-    BRepBndLib.Add_s(shape, box)
+    BRepBndLib.AddOptimal_s(shape, box, False, False)  # the exact box of the surfaces, not of their control points
     x0, y0, z0, x1, y1, z1 = box.Get()
     r_a1 = w.pair.tip_diameter / 2
-    assert (z0 + z1) / 2 == pytest.approx(w.z, abs=0.05) and z1 - z0 == pytest.approx(2 * r_a1, abs=0.05)
-    ends = [w.at(-w.shaft_end), w.at(w.shaft_end)]
-    assert min(x0, x1) <= min(e[0] for e in ends) + 0.05 and max(x0, x1) >= max(e[0] for e in ends) - 0.05
+    # Across the plates' normal: the tip cylinder about the axis height; in the plate: from one shaft end to the
+    # other (the plan's heading), the tip diameter wide.
+    assert (z0 + z1) / 2 == pytest.approx(w.z, abs=1e-3) and z1 - z0 == pytest.approx(2 * r_a1, abs=1e-3)
+    ends = np.array([w.at(-w.shaft_end), w.at(w.shaft_end)])
+    corners = np.vstack([ends + r_a1 * np.array([-math.sin(w.direction), math.cos(w.direction)]) * k for k in (-1, 1)])
+    assert (x0, y0) == pytest.approx(tuple(corners.min(axis=0)), abs=1e-3)
+    assert (x1, y1) == pytest.approx(tuple(corners.max(axis=0)), abs=1e-3)
+
+
+def test_the_example_train_file_reaches_its_target():
+    # gearcad/demo/camera-slider.toml: the kinematic model's ratio against sympy's product and the file's target.
+    from importlib.resources import files
+
+    from gearcad.trains.planner import plan_train
+
+    spec = parse_train(files("gearcad.demo").joinpath("camera-slider.toml").read_text(encoding="utf-8"))
+    plan = plan_train(spec)
+    assert sympy.Rational(plan.ratio.numerator, plan.ratio.denominator) == sympy.Rational(1, 30) * sympy.Rational(15, 45)
+    assert sympy.Rational(plan.ratio.numerator, plan.ratio.denominator) == sympy.sympify(spec.target)
+    assert not [f for f in plan.findings if f.severity == "failure"]

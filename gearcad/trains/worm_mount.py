@@ -35,19 +35,17 @@ ENGAGEMENT = 1.5
 
 def worm_solids(worm) -> list[tuple[str, np.ndarray, float, float]]:
     """The worm's parts as upright prisms: (name, footprint corners (4, 2), z0, z1), mm."""
-    from .worm_stage import _footprint, _rooms  # one module's geometry, shared with its mount
+    from .worm_stage import footprint
 
     p = worm.pair
-    sizes_inner = [b for b in worm.blocks]
     r_a1, r_s = p.tip_diameter / 2, worm.shaft_diameter / 2
-    thread = _footprint(worm.x, worm.y, worm.direction, -worm.thread / 2, worm.thread / 2, r_a1)
-    shaft = _footprint(worm.x, worm.y, worm.direction, -worm.shaft_end, worm.shaft_end, r_s)
+    thread = footprint(worm.x, worm.y, worm.direction, -worm.thread / 2, worm.thread / 2, r_a1)
+    shaft = footprint(worm.x, worm.y, worm.direction, -worm.shaft_end, worm.shaft_end, r_s)
     out = [("worm", thread, worm.z - r_a1, worm.z + r_a1), ("worm", shaft, worm.z - r_s, worm.z + r_s)]
-    for b in sizes_inner:
+    for b in worm.blocks:
         u = (b.x - worm.x) * math.cos(worm.direction) + (b.y - worm.y) * math.sin(worm.direction)
-        out.append((b.name, _footprint(worm.x, worm.y, worm.direction, u - b.length / 2, u + b.length / 2, b.width / 2),
+        out.append((b.name, footprint(worm.x, worm.y, worm.direction, u - b.length / 2, u + b.length / 2, b.width / 2),
                     0.0, b.height))
-    del _rooms
     return out
 
 

@@ -49,7 +49,7 @@ from .layout import LayoutGear, LayoutProblem, Link, mesh_phase, shaft_sides, so
 from .spec import TrainSpec
 
 __all__ = ["WormBlock", "WormLayout", "worm_pair_of", "worm_analysis_of", "plan_worm", "WORM_MATERIAL",
-           "DIRECTION_STEP", "BLOCK_WALL"]
+           "DIRECTION_STEP", "BLOCK_WALL", "footprint"]
 
 #: The worm's material (a turned steel worm; the friction table's worm side).
 WORM_MATERIAL = "mild-steel"
@@ -240,7 +240,7 @@ def _block_part(name: str, z: _Sizes, tolerance: float) -> Part:
     return Part(name, moved, (), ((0.0, z.axis, z.hole),), name)
 
 
-def _footprint(x: float, y: float, heading: float, u0: float, u1: float, half: float) -> np.ndarray:
+def footprint(x: float, y: float, heading: float, u0: float, u1: float, half: float) -> np.ndarray:
     """Corners (4, 2) of the rectangle ``u0..u1`` along ``heading`` and ``-half..half`` across, from (x, y)."""
     d = np.array([math.cos(heading), math.sin(heading)])
     n = np.array([-d[1], d[0]])
@@ -295,9 +295,9 @@ def _footprints(pair, sizes: _Sizes, x: float, y: float, heading: float, clearan
     """The worm's footprint on the plate as rectangles: the thread, the two blocks, the shaft ends."""
     inner, outer, end, _ = _rooms(pair, sizes, clearance)
     r_a1 = pair.tip_diameter / 2
-    return [_footprint(x, y, heading, -inner, inner, r_a1),
-            _footprint(x, y, heading, inner, outer, sizes.width / 2), _footprint(x, y, heading, -outer, -inner, sizes.width / 2),
-            _footprint(x, y, heading, -end, end, sizes.shaft / 2)]
+    return [footprint(x, y, heading, -inner, inner, r_a1),
+            footprint(x, y, heading, inner, outer, sizes.width / 2), footprint(x, y, heading, -outer, -inner, sizes.width / 2),
+            footprint(x, y, heading, -end, end, sizes.shaft / 2)]
 
 
 def _rect_distance(point: np.ndarray, rect: np.ndarray) -> float:
