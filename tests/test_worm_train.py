@@ -55,6 +55,14 @@ def test_a_worm_stage_parses_and_writes_back():
     assert 'worm = { starts = 1, diameter_factor = 10.0, form = "ZA" }' in train_to_toml(spec)
 
 
+def test_every_worm_key_writes_back():
+    text = TRAIN.replace('form = "ZA" }', 'form = "zi", pressure_angle = 25, friction = 0.2 }')
+    spec = parse_train(text)
+    worm = spec.stages[0].worm
+    assert (worm.form, worm.pressure_angle, worm.friction) == ("zi", 25.0, 0.2)
+    assert parse_train(train_to_toml(spec)) == spec
+
+
 @pytest.fixture(scope="module")
 def built(tmp_path_factory):
     tmp = tmp_path_factory.mktemp("worm-train")
