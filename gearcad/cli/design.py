@@ -56,6 +56,10 @@ def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParse
                    help="helical gears: helix angle of every stage, degrees (0 to below 45); --module is then the normal module")
     p.add_argument("--hand", choices=("left", "right"), default="right", help="hand of the input gear (default right)")
     p.add_argument("--herringbone", action="store_true", help="herringbone stages (needs --helix)")
+    p.add_argument("--worm", metavar="STARTS[:ZMIN-ZMAX]",
+                   help="a worm stage as `gearcad ratio --worm` finds it (a worm of STARTS starts, diameter factor 10, "
+                        "ZA, driving a wheel of ZMIN to ZMAX teeth; --module is its axial module); the train file puts "
+                        "it first: the worm is the input, across the plates; --stages counts it")
     add_output_options(p)
     return p
 
@@ -83,7 +87,7 @@ def run(args: argparse.Namespace) -> int:
                         direction=args.direction, planets=args.planets, fixed=args.fixed, input=args.input_member,
                         stepped=args.stepped, max_ring_teeth=args.max_ring_teeth,
                         neighbour_margin=args.neighbour_margin, differential=args.differential, candidates=args.count,
-                        helix=args.helix, hand=args.hand, herringbone=args.herringbone)
+                        helix=args.helix, hand=args.hand, herringbone=args.herringbone, worm=args.worm)
     except ToleranceError as exc:  # a result outside what was asked: exit 1, nothing built
         if args.json:
             from ._format import print_json

@@ -133,8 +133,14 @@ def _write_all(plan, options: BuildOptions, put, files: dict[str, dict[str, str]
         warnings += [f"part {name} is larger than the fabrication profile's {group.width:g} x {group.height:g} mm "
                      "sheet and is on no cut sheet (give a larger one with --sheet WxH)"
                      for name in group.nesting.left_out]
+    worm_items: list = []
+    if getattr(plan, "worm", None) is not None:  # a worm stage: the blocks' drawings, the worm's and blocks' solids
+        from .worm_stage_files import write_worm_stage
+
+        more, worm_items = write_worm_stage(plan, options, put, note)
+        warnings += more
     if "step" in options.formats or "stl" in options.formats:
-        _write_solids(plan, options, put, note)
+        _write_solids(plan, options, put, note, worm_items)
     if options.preview:
         from .preview import write_preview
 
@@ -222,7 +228,7 @@ def _shape_key(part, hub=None, hub_length: float = 0.0) -> str:
     return digest.hexdigest()
 
 
-def _write_solids(plan, options: BuildOptions, put, note) -> None:
+def _write_solids(plan, options: BuildOptions, put, note, extra_items=()) -> None:
     """Per-part STEP and STL files and the assembly; a solid repeated in the plan (the planets of a set)
     is built once and written once in the assembly, placed once per part."""
     from .step import AssemblyItem, build_solid, kernel_quiet, with_hub, write_step, write_stl
@@ -259,7 +265,7 @@ def _write_solids(plan, options: BuildOptions, put, note) -> None:
         fused = _fused_compounds(plan, options, put, note, items)
         joined = {name for j in (plan.mechanism.joins if plan.mechanism else ()) if j.hub is not None for name in j.gears}
         items = [it for it in items if it.name not in joined] + fused  # a fused pair is one solid in the assembly
-        items += _rod_items(plan)
+        items += _rod_items(plan) + list(extra_items)
         if options.assembly and "step" in options.formats:
             from .step import assembly_step
 

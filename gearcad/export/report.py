@@ -49,6 +49,10 @@ def _target_findings(plan: Plan) -> tuple:
 def train_kind(plan: Plan) -> tuple[str, str]:
     """The train's kind and how its ratio comes about, in words."""
     spec = plan.spec
+    if getattr(plan, "worm", None) is not None:
+        from .report_worm import WORM_RULE
+
+        return "worm", WORM_RULE
     if spec.planetary is not None:
         return "planetary", ("Ratio = output turns per input turn of the planetary set, from Willis's equation on each "
                              "mesh with the fixed member held (the kinematic model).")
@@ -97,18 +101,24 @@ def report_data(plan: Plan, files: Mapping[str, Mapping[str, str]]) -> dict[str,
                          for f in a.findings + m.findings],
             **_helical_mesh(m, spec),
         })
+    from .report_worm import worm_data, worm_parts, worm_shaft_rows, worm_steps
+
+    steps = assembly_steps(plan)
+    at = next((k + 1 for k, step in enumerate(steps) if step.startswith("Lay the back plate")), len(steps))
+    steps[at:at] = worm_steps(plan)
     return {
         "name": spec.name, "title": spec.title, "kind": train_kind(plan)[0], "ratio_rule": train_kind(plan)[1],
         "ratio": ratio_data(plan),
         "tooth_system": {"name": plan.system.name, "title": plan.system.title,
                          "pressure_angle": math.degrees(plan.system.pressure_angle)},
         "gears": gears, "meshes": meshes,
-        "shafts": _shafts(plan),
+        "shafts": _shafts(plan) + worm_shaft_rows(plan),
         "pillars": _pillars(plan),
         "bridges": [p for p in plan.mechanism.bridges] if plan.mechanism else [],
         "joins": _joins(plan),
-        "parts": parts_list(plan, files),
-        "sequence": assembly_steps(plan),
+        "parts": parts_list(plan, files) + worm_parts(plan, files),
+        "sequence": steps,
+        **({"worm": worm_data(plan, files)} if getattr(plan, "worm", None) is not None else {}),
         "plates": [{"name": p.name, **_extent(plan, p), "z": p.z, "files": _files(files, p.name, ("dxf", "step", "svg"))}
                    for p in plan.plates],
         "layout": {"area": plan.layout.area, "width": plan.layout.width, "height": plan.layout.height,
@@ -283,6 +293,9 @@ def report_markdown(data: Mapping[str, Any]) -> str:
         lines.append("")
     if data["findings"]:
         lines += ["## Other checks", ""] + [f"- **{x['severity']}** {x['check']}: {x['message']}" for x in data["findings"]] + [""]
+    from .report_worm import worm_markdown
+
+    lines += worm_markdown(data)[1:] + ([""] if data.get("worm") else [])
     lay = data["layout"]
     lines += ["## Layout", "", f"Plate {lay['width']:.2f} × {lay['height']:.2f} mm, area {lay['area']:.0f} mm² "
               f"(search: {lay['search']}). Centres in plate coordinates (the plate DXF's).", ""]

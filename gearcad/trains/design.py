@@ -41,7 +41,7 @@ class Design:
     spec : gearcad.trainspec.TrainSpec
         The train description, ready for :func:`gearcad.trains.plan.plan_train` and the train file.
     kind : str
-        ``"compound"``, ``"planetary"`` or ``"summing"``.
+        ``"compound"``, ``"planetary"``, ``"summing"`` or ``"worm"`` (a compound train with a worm stage).
     relative_error : float
         ``ratio / target - 1`` of the chosen train (exact rational computation, rounded).
     tolerance : float
@@ -83,7 +83,7 @@ def design(target: str, *, kind: str = "compound", module: float, tolerance: flo
            fixed: str | None = None, input: str | None = None, stepped: bool = False,
            max_ring_teeth: int | None = None, neighbour_margin: float | None = None,
            differential: str | None = None, candidates: int | None = None, helix: float | None = None,
-           hand: str = "right", herringbone: bool = False) -> Design:
+           hand: str = "right", herringbone: bool = False, worm: str | None = None) -> Design:
     """Solve ``target`` and choose the train to build.
 
     Parameters
@@ -111,6 +111,9 @@ def design(target: str, *, kind: str = "compound", module: float, tolerance: flo
     helix, hand, herringbone : optional
         Compound trains: a helix angle (degrees, 0 to below 45) makes every stage helical, each
         countershaft's gears of one hand so that their thrusts oppose; ``herringbone`` doubles each gear.
+    worm : str, optional
+        ``STARTS[:ZMIN-ZMAX]``: a worm stage as ``gearcad ratio --worm`` finds it (the train's first stage,
+        the worm its input; :mod:`gearcad.trains.design_worm`); compound trains only.
 
     Returns
     -------
@@ -147,6 +150,15 @@ def design(target: str, *, kind: str = "compound", module: float, tolerance: flo
     if kind != "summing" and (differential is not None):
         raise InputError("--differential applies only to --kind summing")
     limits = _limits(min_teeth, max_teeth, max_stage_ratio, hunting, exclude, inventory, direction)
+    if worm is not None:
+        if kind != "compound" or coaxial or inventory is not None or shift_limit is not None:
+            raise InputError(f"--worm {worm} builds a compound train with a worm stage; allowed: leave out --kind "
+                             f"{kind}" if kind != "compound" else "--coaxial, --inventory and --shift-limit do not "
+                             "apply to --worm; allowed: leave them out")
+        from .design_worm import design_worm
+
+        spec, error, train = design_worm(common, limits, worm, stages)
+        return Design(replace(spec, target_tolerance=common.tolerance), "worm", error, common.tolerance, train)
     chosen = _choose(common, limits, kind, stages, coaxial, inventory, shift_limit, planets, fixed, input, stepped,
                      max_ring_teeth, neighbour_margin, differential, candidates)
     return replace(chosen, spec=replace(chosen.spec, target_tolerance=common.tolerance))

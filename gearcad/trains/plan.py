@@ -114,6 +114,7 @@ class Plan:
     tolerance: float
     findings: tuple[Finding, ...]
     mechanism: object | None = None  # gearcad.trains.supports.Mechanism: supports, bought parts, interference
+    worm: object | None = None  # gearcad.trains.worm_stage.WormLayout: a worm stage's worm, across the plates
 
     def gear(self, name: str) -> PlannedGear:
         """The planned gear called ``name``."""

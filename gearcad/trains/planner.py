@@ -1,7 +1,8 @@
 """The one entry point of planning: a train description of any kind to its :class:`Plan`.
 
 Each kind has its own planner (compound trains in :mod:`.plan`, planetary sets in
-:mod:`.epicyclic`, summing trains in :mod:`.differential`); all return the same
+:mod:`.epicyclic`, summing trains in :mod:`.differential`, trains with a worm stage in
+:mod:`.worm_stage`); all return the same
 :class:`~gearcad.trains.plan.Plan`, so the writers and the report need no branch per kind.
 """
 
@@ -29,5 +30,11 @@ def plan_train(spec: TrainSpec, tolerance: float = DEFAULT_TOLERANCE, load: Inpu
         return complete_plan(process_check(plan_planetary(spec, tolerance, load)))
     if spec.summing is not None:
         return complete_plan(process_check(plan_summing(spec, tolerance, load)))
+    if spec.stages and spec.stages[0].worm is not None:
+        from .worm_mount import finish_worm
+        from .worm_stage import plan_worm
+
+        plan, wanted = plan_worm(spec, tolerance, load)
+        return finish_worm(complete_plan(process_check(plan), wanted))
     plan, wanted = plan_compound(spec, tolerance, load)
     return complete_plan(process_check(plan), wanted)

@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 from ..errors import InputError
 from ..validate import as_int, finite
 
-__all__ = ["GearSpec", "StageSpec", "TrainSpec", "Hub", "Keyway", "SolverSpec", "PlanetarySpec", "SummingSpec", "DIFFERENTIALS"]
+__all__ = ["GearSpec", "WormSpec", "StageSpec", "TrainSpec", "Hub", "Keyway", "SolverSpec", "PlanetarySpec", "SummingSpec", "DIFFERENTIALS"]
 
 
 @dataclass(frozen=True)
@@ -59,6 +59,50 @@ class GearSpec:
             raise InputError(f"bore must be greater than 0 mm, got {self.bore!r}")
 
 
+WORM_FORMS = ("za", "zi")  # flank forms a worm stage takes (gearcad.meshes.worm.FLANK_FORMS)
+
+
+@dataclass(frozen=True)
+class WormSpec:
+    """The worm of a worm stage: starts, diameter factor ``q``, flank form, and optionally the pressure
+    angle (degrees; axial for ZA, normal for ZI; None: the train's) and a friction coefficient
+    (None: from the worm (steel) and wheel (the fabrication profile's) materials).  The figures,
+    and the bounds that need the wheel and the module, are in :mod:`gearcad.trains.worm_stage`."""
+
+    starts: int
+    diameter_factor: float
+    form: str = "za"
+    pressure_angle: float | None = None
+    friction: float | None = None
+
+    def __post_init__(self) -> None:
+        from ..meshes.worm import (DIAMETER_FACTOR_RANGE, FRICTION_RANGE, MAX_LEAD_ANGLE, PRESSURE_ANGLE_RANGE,
+                                   STARTS_RANGE)
+
+        starts = as_int(self.starts, "worm starts")
+        if not STARTS_RANGE[0] <= starts <= STARTS_RANGE[1]:
+            raise InputError(f"worm starts must be from {STARTS_RANGE[0]} to {STARTS_RANGE[1]}, got {self.starts!r}")
+        q = finite(self.diameter_factor, "diameter factor")
+        if not DIAMETER_FACTOR_RANGE[0] <= q <= DIAMETER_FACTOR_RANGE[1]:
+            raise InputError(f"worm diameter_factor must be from {DIAMETER_FACTOR_RANGE[0]:g} to "
+                             f"{DIAMETER_FACTOR_RANGE[1]:g}, got {self.diameter_factor!r}")
+        form = str(self.form).lower()
+        if form not in WORM_FORMS:
+            raise InputError(f"worm form must be one of {', '.join(f.upper() for f in WORM_FORMS)}, got {self.form!r}")
+        gamma = math.degrees(math.atan2(starts, q))
+        if gamma > MAX_LEAD_ANGLE[form] + 1e-12:
+            raise InputError(f"worm lead angle {gamma:.3f} degrees (atan({starts}/{q:g})) is beyond the {form.upper()} "
+                             f"form's range (up to {MAX_LEAD_ANGLE[form]:g} degrees); allowed: fewer starts, a larger "
+                             "diameter_factor" + (', or form = "ZI"' if form == "za" else ""))
+        for key, (low, high), unit in (("pressure_angle", PRESSURE_ANGLE_RANGE, " degrees"), ("friction", FRICTION_RANGE, "")):
+            value = getattr(self, key)
+            if value is not None and not (isinstance(value, (int, float)) and low <= value <= high):
+                raise InputError(f"worm {key} must be from {low:g} to {high:g}{unit}, got {value!r}")
+        object.__setattr__(self, "starts", starts)
+        object.__setattr__(self, "diameter_factor", q)
+        object.__setattr__(self, "form", form)
+
+
 @dataclass(frozen=True)
 class StageSpec:
     """A driver/driven mesh; ``module`` overrides the train's; ``idler`` adds a gear between.
@@ -66,6 +110,9 @@ class StageSpec:
     Helical stages: ``helix`` is the helix angle in degrees (0: spur; the module and shifts
     are then the normal section's), ``hand`` the driver's hand (each mate has the other),
     ``herringbone`` two halves of opposite hand with a ``gap`` (mm) between them.
+
+    Worm stages: ``worm`` drives the wheel ``driven`` (``driver`` then stands for the worm, its
+    teeth the starts); ``module`` is the axial module.  No helix, no idler.
     """
 
     driver: GearSpec
@@ -76,8 +123,11 @@ class StageSpec:
     hand: str = "right"
     herringbone: bool = False
     gap: float = 0.0
+    worm: WormSpec | None = None
 
     def __post_init__(self) -> None:
+        if self.worm is not None:
+            _check_worm_stage(self)
         helix = finite(self.helix, "helix angle")
         if not 0.0 <= helix < 45.0:
             raise InputError(f"helix angle must be from 0 to below 45 degrees, got {self.helix!r}")
@@ -97,6 +147,21 @@ class StageSpec:
             hand = "left" if hand == "right" else "right"
         if not helix and any(g.hand is not None for g in mates):
             raise InputError("a gear's hand needs a helical stage (helix = DEG)")
+
+
+def _check_worm_stage(stage: "StageSpec") -> None:
+    """A worm stage takes no helix (the worm's lead angle is its helix), no idler, and its driver is the worm."""
+    if stage.helix or stage.herringbone or stage.gap:
+        raise InputError(f"helix {stage.helix!r} cannot stand with a worm: the wheel's helix is the worm's lead angle; "
+                         "allowed: leave out helix (and herringbone, gap) on a worm stage")
+    if stage.idler is not None:
+        raise InputError(f"idler {stage.idler.teeth} cannot stand with a worm: the worm meshes with its wheel directly; "
+                         "allowed: leave out idler on a worm stage")
+    if stage.driver.teeth != stage.worm.starts:
+        raise InputError(f"driver {stage.driver.teeth} cannot stand with a worm: the worm is the driver; allowed: leave "
+                         "out driver on a worm stage")
+    if any(g.hand is not None or g.hub is not None for g in (stage.driver, stage.driven)):
+        raise InputError("hand and hub are not taken on a worm stage's gears; allowed: teeth, shift, bore, flat, keyway")
 
 
 @dataclass(frozen=True)
@@ -131,8 +196,11 @@ class PlanetarySpec:
     hand: str = "right"
     herringbone: bool = False
     gap: float = 0.0
+    worm: WormSpec | None = None
 
     def __post_init__(self) -> None:
+        if self.worm is not None:
+            _check_worm_stage(self)
         helix = finite(self.helix, "helix angle")
         if not 0.0 <= helix < 45.0:
             raise InputError(f"helix angle must be from 0 to below 45 degrees, got {self.helix!r}")
@@ -243,5 +311,10 @@ class TrainSpec:
                              f"(thickness) {self.thickness:g} mm")
         if self.summing is not None and (self.planetary is not None or self.coaxial):
             raise InputError("a summing train cannot also be planetary or coaxial")
+        worms = [k for k, s in enumerate(self.stages) if s.worm is not None]
+        if worms and (worms != [0] or self.coaxial or self.planetary is not None or self.summing is not None):
+            raise InputError(f"worm on stage {worms[-1] + 1}: a worm stage must be the first [[stage]] (the input), one "
+                             "worm a train, in a compound train that is not coaxial: the worm lies parallel to the "
+                             "plates and is driven from outside the frame, so no spur gear can drive it")
         if not self.stages and self.solver is None and self.planetary is None:
             raise InputError("a train needs at least one [[stage]], or a [solve] table to find them")

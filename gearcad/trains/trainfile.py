@@ -38,7 +38,7 @@ from typing import Any
 
 from ..errors import InputError
 from ..inputfiles import MAX_INPUT_BYTES, parse_toml, read_text_file
-from .spec import GearSpec, Hub, Keyway, PlanetarySpec, SolverSpec, StageSpec, SummingSpec, TrainSpec
+from .spec import GearSpec, Hub, Keyway, PlanetarySpec, SolverSpec, StageSpec, SummingSpec, TrainSpec, WormSpec
 
 __all__ = ["parse_train", "read_train", "train_to_toml", "LIMITS", "MAX_FILE_STAGES", "MAX_TITLE_LENGTH"]
 
@@ -75,7 +75,8 @@ TOP_KEYS = {"name", "title", "target", "target_tolerance", "module", "thickness"
 PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "input", "shift_limit", "helix", "hand",
                   "herringbone", "gap"}
 SUMMING_KEYS = {"differential", "sun", "planet", "planets", "ring", "module", "tube", "axis_distance", "shift_limit"}
-STAGE_KEYS = {"driver", "driven", "module", "idler", "helix", "hand", "herringbone", "gap"}
+STAGE_KEYS = {"driver", "driven", "module", "idler", "helix", "hand", "herringbone", "gap", "worm"}
+WORM_KEYS = {"starts", "diameter_factor", "form", "pressure_angle", "friction"}
 GEAR_KEYS = {"teeth", "shift", "bore", "flat", "keyway", "hub", "hand"}
 SOLVE_KEYS = {"ratio", "stages", "min_teeth", "max_teeth", "max_stage_ratio", "direction", "hunting", "coaxial", "exclude"}
 
@@ -199,7 +200,8 @@ def _stages(data: dict, ctx: _Context) -> tuple[StageSpec, ...]:
     stages = []
     for i, s in enumerate(raw):
         _check_keys(s, STAGE_KEYS, ctx, "stage", i)
-        for key in ("driver", "driven"):
+        worm = _worm(s, ctx, i)
+        for key in ("driven",) if worm else ("driver", "driven"):
             if key not in s:
                 raise ctx.error("missing (a tooth count or a gear table)", key, "stage", i)
         idler = _gear(s["idler"], "idler", ctx, i) if "idler" in s else None
@@ -213,13 +215,41 @@ def _stages(data: dict, ctx: _Context) -> tuple[StageSpec, ...]:
                 if not isinstance(s[key], kind):
                     raise ctx.error("must be \"left\" or \"right\"" if kind is str else "must be true or false", key, "stage", i)
                 helical[key] = s[key]
-        driver, driven = _gear(s["driver"], "driver", ctx, i), _gear(s["driven"], "driven", ctx, i)
+        driver = GearSpec(worm.starts) if worm else _gear(s["driver"], "driver", ctx, i)
+        driven = _gear(s["driven"], "driven", ctx, i)
         try:
-            stages.append(StageSpec(driver, driven, _number(s, "module", ctx, "stage", i), idler, **helical))
+            stages.append(StageSpec(driver, driven, _number(s, "module", ctx, "stage", i), idler, worm=worm, **helical))
         except InputError as exc:
-            key = next((k for k in ("helix", "hand", "herringbone", "gap") if k in str(exc).split(" must")[0]), "helix")
+            key = next((k for k in ("helix", "hand", "herringbone", "gap", "idler", "driver")
+                        if k in str(exc).split(" must")[0].split(" cannot")[0]), "worm" if worm else "helix")
             raise ctx.error(str(exc), key, "stage", i) from None
     return tuple(stages)
+
+
+def _worm(s: dict, ctx: _Context, i: int) -> WormSpec | None:
+    """A stage's ``worm = { starts = 1, diameter_factor = 10, form = "ZA" }`` table, or None."""
+    if "worm" not in s:
+        return None
+    w = s["worm"]
+    if not isinstance(w, dict):
+        raise ctx.error("must be a table { starts = N, diameter_factor = Q, form = \"ZA\" }", "worm", "stage", i)
+    _check_keys(w, WORM_KEYS, ctx, "stage", i, "worm.")
+    if "driver" in s:
+        raise ctx.error(f"{_short(s['driver'])} cannot stand with a worm: the worm is the driver; allowed: leave out "
+                        "driver on a worm stage", "driver", "stage", i)
+    starts = w.get("starts")
+    if isinstance(starts, bool) or not isinstance(starts, int):
+        raise ctx.error(f"must be a whole number, got {_short(starts)}", "worm.starts", "stage", i)
+    if "form" in w and not isinstance(w["form"], str):
+        raise ctx.error(f"must be \"ZA\" or \"ZI\", got {_short(w['form'])}", "worm.form", "stage", i)
+    numbers = {k: _number(w, k, ctx, "stage", i, "worm.") for k in ("pressure_angle", "friction")}
+    try:
+        return WormSpec(starts, _number(w, "diameter_factor", ctx, "stage", i, "worm.", required=True),
+                        w.get("form", "za"), **numbers)
+    except InputError as exc:
+        key = next((k for k in ("starts", "diameter_factor", "form", "pressure_angle", "friction", "lead angle")
+                    if k.replace("_", " ") in str(exc) or k in str(exc)), "starts")
+        raise ctx.error(str(exc), "worm." + ("diameter_factor" if key == "lead angle" else key), "stage", i) from None
 
 
 def _solver(data: dict, ctx: _Context) -> SolverSpec | None:
@@ -406,6 +436,14 @@ def parse_train(text: str, filename: str = "train file") -> TrainSpec:
                     if k in str(exc).split(" must")[0]), "name")
         raise ctx.error(str(exc), key) from None
     _check_target(spec, ctx)
+    if spec.stages and spec.stages[0].worm is not None:  # the pair's own bounds (undercut, ZI base), before any work
+        from .worm_stage import worm_pair_of
+
+        try:
+            worm_pair_of(spec)
+        except InputError as exc:
+            key = "driven" if "wheel" in str(exc).split(" must")[0] else "worm"
+            raise ctx.error(str(exc), key, "stage", 0) from None
     return spec
 
 
@@ -482,13 +520,23 @@ def train_to_toml(spec: TrainSpec) -> str:
         lines += [f"{key} = {getattr(s, key)!r}" for key in ("ring", "module", "tube", "axis_distance", "shift_limit")
                   if getattr(s, key) is not None]
     for stage in spec.stages:
-        lines += ["", "[[stage]]", f"driver = {_gear_toml(stage.driver)}", f"driven = {_gear_toml(stage.driven)}"]
+        if stage.worm is not None:
+            lines += ["", "[[stage]]", _worm_toml(stage.worm), f"driven = {_gear_toml(stage.driven)}"]
+        else:
+            lines += ["", "[[stage]]", f"driver = {_gear_toml(stage.driver)}", f"driven = {_gear_toml(stage.driven)}"]
         if stage.module is not None:
             lines.append(f"module = {stage.module!r}")
         if stage.idler is not None:
             lines.append(f"idler = {_gear_toml(stage.idler)}")
         lines += _helix_toml(stage)
     return "\n".join(lines) + "\n"
+
+
+def _worm_toml(worm: WormSpec) -> str:
+    """A worm stage's ``worm = { ... }`` line (degrees)."""
+    parts = [f"starts = {worm.starts}", f"diameter_factor = {worm.diameter_factor!r}", f"form = {_quoted(worm.form.upper())}"]
+    parts += [f"{k} = {getattr(worm, k)!r}" for k in ("pressure_angle", "friction") if getattr(worm, k) is not None]
+    return "worm = { " + ", ".join(parts) + " }"
 
 
 def _helix_toml(table) -> list[str]:

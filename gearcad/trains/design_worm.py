@@ -1,0 +1,84 @@
+"""Design with a worm stage: solve as ``gearcad ratio --worm`` does, build the best train.
+
+:func:`design_worm` reads the worm option (``STARTS[:ZMIN-ZMAX]``), runs the worm search
+(:func:`gearcad.ratio.worm.solve_worm`: spur stages then the worm stage, the global optimum first),
+keeps the best train if it is within the tolerance, and writes it as a train description whose
+**first** stage is the worm stage: the worm is the train's input, lying across the plates
+(:mod:`gearcad.trains.worm_stage`), and the spur stages follow from the wheel's shaft.  The ratio
+is a product, so the order changes nothing in it (the kinematic model gives the same value; the tests
+check it).  The spur stages get the shifts every designed compound train gets
+(:func:`gearcad.trains.stages.spec_with_stages`).  Pure: no printing, no files.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+from types import SimpleNamespace
+from typing import Any
+
+from ..errors import InputError, ToleranceError
+
+__all__ = ["design_worm", "DEFAULT_DIAMETER_FACTOR"]
+
+#: The worm's diameter factor when none is given: q = 10, a common choice for single-start worms
+#: (DIN 3976's preferred series holds it, from memory).
+DEFAULT_DIAMETER_FACTOR = 10.0
+
+
+def design_worm(common: Any, limits: Any, worm: str, stages: int | None, *, diameter_factor: float | None = None,
+                form: str = "za") -> tuple[Any, float, Any]:
+    """The best train ending in a worm stage for ``common.target``: (train description, relative error, the search's train).
+
+    Parameters
+    ----------
+    common : gearcad.trains.design._Common
+        Target, module (the worm's axial module and the spur stages' module), thickness, profiles, name, tolerance.
+    limits : gearcad.ratio.limits.Limits
+        The spur stages' limits (the wheel takes their tooth range unless the option gives one).
+    worm : str
+        ``STARTS`` or ``STARTS:WHEEL_MIN-WHEEL_MAX``.
+    stages : int, optional
+        Every stage, the worm's included (default: 1, 2 and 3 tried).
+
+    Raises
+    ------
+    InputError
+        Bad worm option, a direction asked for, a helix, or worm figures out of bounds.
+    ToleranceError
+        No train within the tolerance.
+    """
+    from ..profiles import load_tooth_system
+    from ..ratio.target import parse_target
+    from ..ratio.worm import make_worm_query, parse_worm_option, solve_worm
+    from .spec import GearSpec, SolverSpec, StageSpec, TrainSpec, WormSpec
+    from .stages import spec_with_stages
+
+    if common.helix:
+        raise InputError("--helix cannot stand with --worm: the wheel's helix is the worm's lead angle; allowed: "
+                         "leave out --helix")
+    system = load_tooth_system(common.system)
+    target = parse_target(common.target)
+    option = parse_worm_option(worm, limits, system.pressure_angle)
+    query = make_worm_query(target, option, limits, stages, 1)
+    worm_spec = WormSpec(option.starts, DEFAULT_DIAMETER_FACTOR if diameter_factor is None else diameter_factor, form)
+    trains = solve_worm(query)
+    if not trains:
+        raise ToleranceError(f"no train with a worm of {option.starts} start(s) reaches {common.target} within the "
+                             f"limits ({limits.describe()}); nothing was built")
+    best = trains[0]
+    if abs(best.relative_error) > common.tolerance:
+        text = " ".join(f"{d}/{n}" + (" worm" if w else "") for d, n, w in best.stages)
+        raise ToleranceError(f"no train within tolerance {common.tolerance:g} of {common.target}: the best found is "
+                             f"{best.numerator}/{best.denominator} ({text}, relative error {best.relative_error:+.3e}); "
+                             "nothing was built; a wider wheel range, more stages or another tooth range may reach it",
+                             best.relative_error)
+    base = TrainSpec(name=common.name, module=common.module, thickness=common.thickness, stages=(),
+                     target=common.target, tooth_system=common.system, fabrication=common.profile, bore=common.bore,
+                     title=f"Train for {common.target} with a worm stage", solver=SolverSpec(ratio=common.target))
+    spur = spec_with_stages(base, SimpleNamespace(stages=best.spur, shifts=None, idler=None)) if best.spur else base
+    first = StageSpec(GearSpec(option.starts), GearSpec(best.wheel), worm=worm_spec)
+    spec = replace(spur, stages=(first,) + spur.stages, target=common.target, solver=None)
+    from .worm_stage import worm_pair_of
+
+    worm_pair_of(spec)  # the pair's own bounds, before anything is planned
+    return spec, best.relative_error, best
