@@ -61,6 +61,8 @@ def test_no_spacer_sits_in_the_fused_hub():
     (j,) = [j for j in plan.mechanism.joins if j.hub is not None]
     _, _, z0, z1 = j.hub
     assert z1 > z0
-    spacers = [r for r in plan.mechanism.rods if r.kind == "spacer" and r.name.startswith(f"{j.shaft}-spacer-")]
+    from gearcad.trains.hardware import spacers_of
+
+    spacers = spacers_of(plan.mechanism.rods, j.shaft)  # spacer tubes and washers alike
     assert spacers
     assert not [r for r in spacers if min(r.z1, z1) - max(r.z0, z0) > 1e-9]

@@ -31,7 +31,7 @@ from __future__ import annotations
 import dataclasses
 
 from ..errors import InputError
-from .hardware import Mechanism, Rod, SPACER_WALL, ShaftSupport, screw_size
+from .hardware import Mechanism, Rod, SPACER_WALL, ShaftSupport, screw_size, spacers_of
 from .bridges import Ahead, bridged, bridged_span
 from .frame import check_edges, finish_frame_plates, frame_pillars, ring_bolts
 from .rods import Work, axle_pipes, coaxial_pipe, frame_shaft, holding_discs, plate_named, respace, stud
@@ -135,8 +135,8 @@ def complete_plan(plan, bridges_wanted: dict[int, str] | None = None):
     for j in joins:
         members = [g for g in plan.gears if g.name in j.gears]
         if j.hub is not None:  # a fused part's hub fills the gap between its gears: no spacer there
-            w.rods[:] = [r for r in w.rods if not (r.kind == "spacer" and r.name.startswith(f"{j.shaft}-spacer-")
-                                                   and r.z0 >= j.hub[2] - 1e-9 and r.z1 <= j.hub[3] + 1e-9)]
+            gap = {r.name for r in spacers_of(w.rods, j.shaft) if r.z0 >= j.hub[2] - 1e-9 and r.z1 <= j.hub[3] + 1e-9}
+            w.rods[:] = [r for r in w.rods if r.name not in gap]
         for k, (x, y) in enumerate(j.pins, start=1):
             w.rods.append(Rod(f"{j.shaft}-dowel-{k}", "dowel", x, y, j.pin, 0.0, min(g.z for g in members),
                               max(g.z + t for g in members), (), j.gears))
