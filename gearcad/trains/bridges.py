@@ -157,7 +157,8 @@ def bridged(w: Work, i: int, s, gears, plate: tuple[str, float], side: str) -> S
                    if s.name in ("input", "output") else "")
             return stud(w, s, gears, plate, f"a gear of another layer blocks its way to the other plate, and its "
                         f"bridge would meet {other}, {gap:.2f} mm away and also held by a bridge "
-                        f"at that height (nearly coaxial shafts): {other} keeps the bridge{end}")
+                        f"at that height (nearly coaxial shafts, too close for a bridge each): the room is left to "
+                        f"{other}'s bridge{end}")
         return stud(w, s, gears, plate, "a gear of another layer blocks its way to the other plate and no bridge fits")
     _, p1, p2 = best
     name = f"bridge-{s.name}"

@@ -61,7 +61,7 @@ def mechanism_ratio() -> None:
     from importlib import resources
 
     from gearcad.cli.build import solved
-    from gearcad.trains.plan import _plan_compound
+    from gearcad.trains.plan import plan_compound
     from gearcad.trains.planner import plan_train
     from gearcad.trains.trainfile import parse_train
     from gearcad.trains.supports import complete_plan
@@ -69,7 +69,7 @@ def mechanism_ratio() -> None:
     text = resources.files("gearcad").joinpath("demo", "moon-phase.toml").read_text(encoding="utf-8")
     spec = solved(parse_train(text))[0]
     start = time.perf_counter()
-    plan, wanted = _plan_compound(spec, 1e-3, None)
+    plan, wanted = plan_compound(spec, 1e-3, None)
     before = time.perf_counter() - start
     start = time.perf_counter()
     complete_plan(plan, wanted)
