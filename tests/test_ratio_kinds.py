@@ -148,3 +148,10 @@ def test_chosen_kind_far_worse_says_so(capsys):
 def test_no_note_when_the_chosen_kind_meets_the_tolerance(capsys):
     assert main(["ratio", "1/40", "--stages", "3"]) == 0
     assert "--kind" not in capsys.readouterr().out
+
+
+def test_summing_far_worse_says_so(capsys):
+    # a mean differential halves the sum of two path ratios, so 100 lies far beyond it; 3 compound stages reach it
+    assert main(["ratio", "100", "--kind", "summing", "--tolerance", "1e-3", "--json"]) == 1
+    out = json.loads(capsys.readouterr().out)
+    assert out["results"] == [] and "--kind compound reaches 0.00e+00" in out["other_kinds"]

@@ -81,9 +81,10 @@ def run_summing(args: argparse.Namespace, limits) -> int:
             raise GearcadError(f"internal check failed: the network gives {model}, the search {t.ratio}")
         checked.append((t, model))
     shown = [(t, m) for t, m in checked if args.tolerance is None or abs(t.relative_error) <= args.tolerance]
+    other = _other_kinds(args, trains)
     if args.json:
         print_json({"target": {"expression": target.expression, "value": target.value},
-                    "results": [summing_json(t, m) for t, m in shown]})
+                    "results": [summing_json(t, m) for t, m in shown], **({"other_kinds": other} if other else {})})
         return 0 if shown else 1
     print(f"target {target.expression} = {target.digits(20)}")
     print(f"summing train: two one-stage paths from the input into a {kind} differential; "
@@ -104,7 +105,22 @@ def run_summing(args: argparse.Namespace, limits) -> int:
                      f"{t.relative_error * 1e6:+.6f}", str(t.total_teeth)))
     print(table(rows, ("#", "path A", "path B", "differential", "exact ratio", "decimal", "error ppm", "teeth"),
                 left=(1, 2, 3)))
+    if other:
+        print(other)
     if not shown:
         print(f"nothing within tolerance {args.tolerance:g}")
         return 1
     return 0
+
+
+def _other_kinds(args: argparse.Namespace, trains) -> str:
+    """The one-line note that another kind meets the tolerance (``--tolerance``, else design's) the best misses."""
+    from ..ratio.tolerance import DESIGN_TOLERANCE
+
+    wanted = args.tolerance if args.tolerance is not None else DESIGN_TOLERANCE
+    best = abs(trains[0].relative_error) if trains else None
+    if best is not None and best <= wanted:
+        return ""
+    from ._kinds import other_kinds_line
+
+    return other_kinds_line(args, "summing", best, wanted)

@@ -34,6 +34,7 @@ MAX_SPAN = 40.0
 #: Four-stage scans whose streamed products stay below this list them once (a bit sieve of 32 MB at most).
 DISTINCT_LIMIT = 1 << 28
 _DISTINCT_BLOCK = 1 << 16
+_SCREEN_BATCH = 1 << 20
 #: Most raw candidates one scan round may produce (bounds its time; memory is per block, screened at once).
 MAX_RAW = 2e7
 Progress = Callable[[float], None]
@@ -176,18 +177,36 @@ class ScanCandidates:
     def within(self, eps: float, progress: Progress | None = None) -> tuple[np.ndarray, np.ndarray]:
         """Every (P, Q) with |P/(T Q) - 1| <= eps whose computed side is smooth; see :meth:`usable`."""
         found_p, found_q = [], []
+        pending: list[tuple[np.ndarray, np.ndarray, np.ndarray]] = []
+        waiting = 0
+
+        def screen() -> None:  # in batches: the screen's cost per call outweighs its cost per value
+            p, q, c = (np.concatenate(parts) for parts in zip(*pending))
+            keep = smooth_mask(c, self.largest)
+            found_p.append(p[keep])
+            found_q.append(q[keep])
+            pending.clear()
+
         for done, (rows, cols) in enumerate(self._streamed()):
-            p, q = self._block_hits(rows, cols, eps)
-            found_p.append(p)
-            found_q.append(q)
+            hits = self._block_hits(rows, cols, eps)
+            pending.append(hits)
+            waiting += len(hits[0])
+            if waiting >= _SCREEN_BATCH:
+                screen()
+                waiting = 0
             if progress is not None:
                 progress((done + 1) / max(1, self.blocks))
+        if pending:
+            screen()
         if not found_p:
             return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64)
         return _unique_pairs(np.concatenate(found_p), np.concatenate(found_q))
 
-    def _block_hits(self, rows: np.ndarray, cols: np.ndarray, eps: float) -> tuple[np.ndarray, np.ndarray]:
-        """Pairs of one block: every integer ``C`` within ``eps C`` of ``t E`` (``E`` a streamed product)."""
+    def _block_hits(self, rows: np.ndarray, cols: np.ndarray, eps: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Pairs of one block: every integer ``C`` within ``eps C`` of ``t E`` (``E`` a streamed product).
+
+        Returns ``(P, Q, C)``, the computed side ``C`` still to be screened for smoothness.
+        """
         x = np.multiply.outer(rows * self.t, cols.astype(float)).ravel()
         width = len(cols)
         if eps * (float(x.max()) if x.size else 0.0) < 0.45:  # one integer per product can lie in the window
@@ -214,6 +233,4 @@ class ScanCandidates:
                 & (p >= q * lo_ratio * (1 - FLOAT_MARGIN)) & (p <= q * hi_ratio * (1 + FLOAT_MARGIN)))
         p, q, c = p[keep], q[keep], c[keep]
         keep = not_exact(p, q, self.exact)  # first: at a whole-number target most hits are exact (settled apart)
-        p, q, c = p[keep], q[keep], c[keep]
-        keep = smooth_mask(c, self.largest)
-        return p[keep], q[keep]
+        return p[keep], q[keep], c[keep]
