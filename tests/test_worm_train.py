@@ -192,6 +192,7 @@ BAD = [
     ("worm = { starts = 1, diameter_factor = 50 }\ndriven = 30", "diameter_factor"),
     ("worm = { starts = 1, diameter_factor = 10, lead = 3 }\ndriven = 30", "unknown key"),
     ("worm = { starts = 1, diameter_factor = 10, friction = 2.0 }\ndriven = 30", "friction"),
+    ("worm = { starts = 1, diameter_factor = 10 }\ndriven = { teeth = 30, flat = 1.2 }", "flat"),
     ("driver = 12\ndriven = 30\n\n[[stage]]\nworm = { starts = 1, diameter_factor = 10 }\ndriven = 30", "first"),
 ]
 

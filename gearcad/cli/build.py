@@ -187,8 +187,14 @@ def summary(report: dict, folder: Path, files: dict, written: bool = True) -> st
     lines = [f"{report['title'] or report['name']}: ratio {r['numerator']}/{r['denominator']} = {r['value']:.10g}"]
     if r["relative_error"] is not None:
         lines.append(f"  target {r['target']} = {r['target_value']:.10g}; relative error {r['relative_error']:+.3e}")
-    lines.append(f"  output turns the {r['direction']} way as the input" if r["direction"] == "same"
-                 else "  output turns the opposite way to the input")
+    if report.get("worm"):
+        lines.append(f"  worm {report['worm']['starts']} start(s) across the plates, centre distance "
+                     f"{report['worm']['centre_distance']:.4f} mm; the wheel's sense follows the worm's hand, the spur "
+                     f"stages turn the output the {'same way as' if r['direction'] == 'same' else 'opposite way to'} "
+                     "the wheel")
+    else:
+        lines.append(f"  output turns the {r['direction']} way as the input" if r["direction"] == "same"
+                     else "  output turns the opposite way to the input")
     for m in report["meshes"]:
         worst = max((f["severity"] for f in m["findings"]), key=("ok", "warning", "failure").index)
         lines.append(f"  mesh {m['gears'][0]} / {m['gears'][1]}: centre {m['centre_distance']:.4f} mm, "

@@ -160,8 +160,10 @@ def _check_worm_stage(stage: "StageSpec") -> None:
     if stage.driver.teeth != stage.worm.starts:
         raise InputError(f"driver {stage.driver.teeth} cannot stand with a worm: the worm is the driver; allowed: leave "
                          "out driver on a worm stage")
-    if any(g.hand is not None or g.hub is not None for g in (stage.driver, stage.driven)):
-        raise InputError("hand and hub are not taken on a worm stage's gears; allowed: teeth, shift, bore, flat, keyway")
+    wheel = stage.driven
+    if wheel.hand is not None or wheel.hub is not None or wheel.flat is not None or wheel.keyway is not None:
+        raise InputError("driven: hand, hub, flat and keyway are not taken on a worm wheel (the wheel is the worm's "
+                         "generated section, with a round bore); allowed: teeth, shift, bore")
 
 
 @dataclass(frozen=True)
