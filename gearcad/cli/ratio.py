@@ -386,7 +386,7 @@ def _run_planetary(args: argparse.Namespace) -> int:
     from ..ratio.solve import within_tolerance
     from ..ratio.target import parse_target
     from ..ratio.tolerance import DESIGN_TOLERANCE, tolerance_value
-    from ..trains.design import planetary_alternatives
+    from ..ratio.planetary_ways import planetary_alternatives
 
     target = parse_target(args.target)
     if args.tolerance is not None:

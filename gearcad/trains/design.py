@@ -25,6 +25,7 @@ from typing import Any, Sequence
 
 from ..errors import GearcadError, InputError, ToleranceError
 from ..ratio.tolerance import DESIGN_TOLERANCE, tolerance_value
+from ..ratio.planetary_ways import planetary_alternatives, planetary_ways, set_text
 
 __all__ = ["Design", "design", "KINDS", "DESIGN_TOLERANCE", "planetary_alternatives"]
 
@@ -356,9 +357,9 @@ def _planetary(common: _Common, limits: Any, planets, fixed, input, stepped, max
     within = [r for r in results if abs(r.relative_error) <= common.tolerance]
     if not within:
         best = results[0] if results else None
-        text = f"{best.numerator}/{best.denominator} ({_set_text(best)})" if best else None
+        text = f"{best.numerator}/{best.denominator} ({set_text(best)})" if best else None
         raise _miss(common, text, best.relative_error if best else None,
-                    _planetary_ways(query, common.tolerance))
+                    planetary_ways(query, common.tolerance))
     ring_limit = query.max_ring_teeth
     chosen = None
     for result in within:  # best ratio first; the same set scaled up keeps its ratio and its conditions
@@ -373,56 +374,6 @@ def _planetary(common: _Common, limits: Any, planets, fixed, input, stepped, max
             break
     spec, result = chosen or (_planetary_spec(common, within[0], 1, shift_limit), within[0])
     return Design(spec, "planetary", result.relative_error, common.tolerance, result)
-
-
-def _set_text(result: Any) -> str:
-    s = result.set
-    planet = f"{s.planet}/{s.planet_ring}" if s.stepped else str(s.planet)
-    return f"sun {s.sun}, planet {planet}, ring {s.ring}, {s.planets} planets"
-
-
-def planetary_alternatives(query: Any, tolerance: float) -> str:
-    """One line: the nearby planetary searches (stepped planets, 2 or 3 planets) whose best meets ``tolerance``.
-
-    Empty when none does.
-    """
-    ways = _alternative_sets(query, tolerance)
-    if not ways:
-        return ""
-    return (f"these reach {query.target.expression} within {tolerance:g}: " + "; or ".join(ways))
-
-
-def _planetary_ways(query: Any, tolerance: float) -> str:
-    """What would reach the target: nearby planetary searches, else other kinds."""
-    ways = _alternative_sets(query, tolerance)
-    if ways:
-        return "would reach it: " + "; or ".join(ways)
-    return "would reach it: a compound train (--kind compound) or a summing train (--kind summing), or wider limits"
-
-
-def _alternative_sets(query: Any, tolerance: float) -> list[str]:
-    """Which nearby planetary searches (stepped planets, fewer planets) would meet the tolerance."""
-    from ..ratio.planetary import solve_planetary
-
-    ways = []
-    trials = []
-    if not query.stepped:
-        trials.append(("--stepped", replace(query, stepped=True, count=1)))
-    for n in (2, 3):
-        if n < query.planets:
-            trials.append((f"--planets {n}", replace(query, planets=n, count=1)))
-            if not query.stepped:
-                trials.append((f"--stepped --planets {n}", replace(query, stepped=True, planets=n, count=1)))
-    for label, trial in trials:
-        try:
-            found = solve_planetary(trial)
-        except GearcadError:
-            continue
-        if found and abs(found[0].relative_error) <= tolerance:
-            ways.append(f"{label} ({_set_text(found[0])}, error {found[0].relative_error:+.2e})")
-            if len(ways) == 2:
-                break
-    return ways
 
 
 def _planetary_spec(common: _Common, result: Any, scale: int, shift_limit: float | None) -> Any:
