@@ -1,5 +1,4 @@
-"""``gearcad ratio --kind any``: the best compound, planetary and summing train side by side, and the
-one-line note when a chosen kind misses the tolerance where another kind meets it."""
+"""``gearcad ratio --kind any``: the best compound, planetary and summing train side by side."""
 
 from __future__ import annotations
 
@@ -8,22 +7,13 @@ from typing import Any, Callable
 
 from ._format import print_json, table
 
-__all__ = ["run_any", "ANY_REFUSED", "other_kinds_line"]
+__all__ = ["run_any", "ANY_REFUSED"]
 
 #: Options that fix the shape of one kind, refused with --kind any.
 ANY_REFUSED = (("stages", "--stages"), ("coaxial", "--coaxial"), ("inventory", "--inventory"),
                ("fractions", "--fractions"), ("planets", "--planets"), ("stepped", "--stepped"),
                ("differential", "--differential"), ("separate_axes", "--separate-axes"), ("worm", "--worm"),
                ("count", "--count"), ("direction", "--direction"), ("shift_limit", "--shift-limit"))
-
-
-def _options(args: argparse.Namespace) -> dict[str, Any]:
-    """The planetary options --kind any and the note take from the command line."""
-    from ..ratio.planetary_set import NEIGHBOUR_MARGIN, make_arrangement
-
-    arrangement = make_arrangement(args.fixed, args.input_member) if args.fixed or args.input_member else None
-    margin = args.neighbour_margin if args.neighbour_margin is not None else NEIGHBOUR_MARGIN
-    return {"arrangement": arrangement, "max_ring_teeth": args.max_ring_teeth, "margin": margin}
 
 
 def _describe(found: Any) -> str:
@@ -53,13 +43,14 @@ def run_any(args: argparse.Namespace, train_json: Callable, planetary_json: Call
     from ..ratio.target import parse_target
     from ..ratio.tolerance import tolerance_value
     from ..trains.kinds import best_of_kinds
+    from ._other import kind_options
     from ._solver import limits_from_args
     from ._summing import summing_json
 
     target = parse_target(args.target)
     tolerance = tolerance_value(args.tolerance) if args.tolerance is not None else None
     limits = limits_from_args(args)
-    options = _options(args)
+    options = kind_options(args)
     clean = MeshJudge().clean
     found = best_of_kinds(target, limits, judge=clean, **options)
 
@@ -99,22 +90,3 @@ def run_any(args: argparse.Namespace, train_json: Callable, planetary_json: Call
     print("envelope/m: diameter of the smallest circle holding the train along its shafts, at module 1 "
           "(multiply by the module in mm); within: meets --tolerance (any result without one)")
     return code
-
-
-def other_kinds_line(args: argparse.Namespace, chosen: str, chosen_error: float | None, tolerance: float) -> str:
-    """The one-line note (empty when none) that another kind meets ``tolerance`` where ``chosen`` does not.
-
-    Searched only when the chosen kind's best misses the tolerance (bounded: one best per other kind).
-    """
-    from ..ratio.target import parse_target
-    from ..trains.kinds import other_kinds_note
-    from ._solver import limits_from_args
-
-    if chosen_error is not None and chosen_error <= tolerance:
-        return ""
-    if getattr(args, "inventory", None) is not None:  # the other kinds make their gears; a shelf says nothing of them
-        return ""
-    from ..ratio.clean import MeshJudge
-
-    return other_kinds_note(parse_target(args.target), limits_from_args(args), chosen, chosen_error, tolerance,
-                            judge=MeshJudge().clean, **_options(args))
