@@ -1,5 +1,4 @@
-"""``gearcad ratio --kind any``: the best compound, planetary and summing train side by side, and the
-one-line note when a chosen kind misses the tolerance where another kind meets it."""
+"""``gearcad ratio --kind any``: the best compound, planetary and summing train side by side."""
 
 from __future__ import annotations
 
@@ -7,7 +6,6 @@ import argparse
 from typing import Any, Callable
 
 from ._format import print_json, table
-from ._kindnote import kind_options as _options
 
 __all__ = ["run_any", "ANY_REFUSED"]
 
@@ -45,13 +43,14 @@ def run_any(args: argparse.Namespace, train_json: Callable, planetary_json: Call
     from ..ratio.target import parse_target
     from ..ratio.tolerance import tolerance_value
     from ..trains.kinds import best_of_kinds
+    from ._other import kind_options
     from ._solver import limits_from_args
     from ._summing import summing_json
 
     target = parse_target(args.target)
     tolerance = tolerance_value(args.tolerance) if args.tolerance is not None else None
     limits = limits_from_args(args)
-    options = _options(args)
+    options = kind_options(args)
     clean = MeshJudge().clean
     found = best_of_kinds(target, limits, judge=clean, **options)
 

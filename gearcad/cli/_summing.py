@@ -121,6 +121,6 @@ def _other_kinds(args: argparse.Namespace, trains) -> str:
     best = abs(trains[0].relative_error) if trains else None
     if best is not None and best <= wanted:
         return ""
-    from ._kindnote import other_kinds_line
+    from ._other import other_kinds_line
 
     return other_kinds_line(args, "summing", best, wanted)

@@ -314,7 +314,7 @@ def _other_kinds(args: argparse.Namespace, trains: Sequence[Any], tolerance: flo
     best = abs(trains[0].relative_error) if trains else None
     if best is not None and best <= wanted:
         return ""
-    from ._kindnote import other_kinds_line
+    from ._other import other_kinds_line
 
     return other_kinds_line(args, "compound", best, wanted)
 
@@ -402,7 +402,7 @@ def _run_planetary(args: argparse.Namespace) -> int:
     wanted = args.tolerance if args.tolerance is not None else DESIGN_TOLERANCE
     missed = not results or abs(results[0].relative_error) > wanted
     hint = planetary_alternatives(query, wanted) if missed else ""
-    from ._kindnote import other_kinds_line
+    from ._other import other_kinds_line
 
     other = other_kinds_line(args, "planetary", abs(results[0].relative_error) if results else None, wanted) \
         if missed else ""

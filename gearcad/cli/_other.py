@@ -1,6 +1,5 @@
-"""The one-line note that another kind of train meets the tolerance where the chosen kind does not, and the
-planetary options it shares with ``--kind any`` (apart from ``_kinds.py`` so ``_summing.py`` can use it without
-a cycle)."""
+"""The one-line note when a chosen kind of train misses the tolerance where another kind meets it
+(shared by ``ratio``'s compound, planetary and summing paths)."""
 
 from __future__ import annotations
 
