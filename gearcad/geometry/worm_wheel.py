@@ -44,7 +44,7 @@ from shapely.ops import unary_union
 
 from ..errors import InputError
 
-__all__ = ["ThreadForm", "half_thickness", "axial_section", "worm_slice", "wheel_slice", "wheel_slices",
+__all__ = ["ThreadForm", "half_thickness", "axial_section", "transverse_flank", "worm_slice", "wheel_slice", "wheel_slices",
            "interference", "Interference", "tooth_space", "default_positions"]
 
 
@@ -137,6 +137,24 @@ def axial_section(form: ThreadForm, samples: int = 64, inner_radius: float | Non
     right = np.column_stack((h, r))  # root to tip
     left = np.column_stack((-h, r))[::-1]  # tip to root
     return np.vstack((right, left))
+
+
+def transverse_flank(form: ThreadForm, samples: int = 64) -> np.ndarray:
+    """One flank of the thread in a transverse section of the worm, (N, 2) points ``(x, y)`` mm, root to tip.
+
+    In the worm's own frame (axis z, right hand, the thread centred on ``z = k p_x`` in the axial section
+    towards +x), the thread crosses the plane ``z = 0`` where ``|p phi| <= h(r)``: the thread's angular half
+    width at radius ``r`` is ``h(r) / p`` (for ZA an Archimedean spiral).  This is the flank at
+    ``phi = -h(r) / p``; the other is its mirror in the x axis, and the other starts are turned by ``2 pi / z1``.
+    """
+    if not 8 <= samples <= 4096:
+        raise InputError(f"flank samples must be from 8 to 4096, got {samples}")
+    r = np.linspace(form.root_radius, form.tip_radius, samples)
+    phi = -half_thickness(form, r) / form.lead_parameter
+    if float(-2 * phi[0]) >= 2 * math.pi / form.starts:
+        raise InputError(f"the thread at the root spans {math.degrees(float(-2 * phi[0])):.4g} degrees of the worm's "
+                         f"transverse section, more than a start's {360 / form.starts:.4g}; allowed: a thinner thread")
+    return np.column_stack((r * np.cos(phi), r * np.sin(phi)))
 
 
 def _thread_polygon(form: ThreadForm, c: float, shift: float, samples: int) -> Polygon | None:
