@@ -77,11 +77,10 @@ def _transverse_wire(form: "ThreadForm", flank: np.ndarray) -> Any:
         next_root = turned(flank[:1], (j + 1) * step)[0]
         tip_mid = form.tip_radius * np.array([math.cos(j * step), math.sin(j * step)])
         root_mid = form.root_radius * np.array([math.cos((j + 0.5) * step), math.sin((j + 0.5) * step)])
-        for edge in (BRepBuilderAPI_MakeEdge(spline(up)).Edge(),
-                     BRepBuilderAPI_MakeEdge(GC_MakeArcOfCircle(pnt(up[-1]), pnt(tip_mid), pnt(down[0])).Value()).Edge(),
-                     BRepBuilderAPI_MakeEdge(spline(down)).Edge(),
-                     BRepBuilderAPI_MakeEdge(GC_MakeArcOfCircle(pnt(down[-1]), pnt(root_mid), pnt(next_root)).Value()).Edge()):
-            wire.Add(edge)
+        tip_arc = GC_MakeArcOfCircle(pnt(up[-1]), pnt(tip_mid), pnt(down[0])).Value()
+        root_arc = GC_MakeArcOfCircle(pnt(down[-1]), pnt(root_mid), pnt(next_root)).Value()
+        for curve in (spline(up), tip_arc, spline(down), root_arc):
+            wire.Add(BRepBuilderAPI_MakeEdge(curve).Edge())
     if not wire.IsDone():
         raise GeometryError("the worm's transverse section could not be closed")
     return wire.Wire()

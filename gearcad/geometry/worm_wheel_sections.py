@@ -35,7 +35,8 @@ from shapely.ops import unary_union
 from ..errors import GeometryError, InputError
 from .worm_wheel import ThreadForm, default_positions, tooth_space
 
-__all__ = ["ToothSection", "rim_radius", "rim_kinks", "tooth_section", "tooth_sections", "sections_volume", "RUN_POINTS"]
+__all__ = ["ToothSection", "rim_radius", "rim_kinks", "tooth_section", "tooth_sections", "sections_volume",
+           "RUN_POINTS"]
 
 RUN_POINTS = (48, 12, 48)  # points in the runs: flank up, tip land, flank down
 _RESOLUTION = 256  # segments a quarter circle of the blank, as in wheel_slice
@@ -74,7 +75,8 @@ def rim_radius(form: ThreadForm, c: float, throated: bool) -> float:
 
 
 def rim_kinks(form: ThreadForm, throated: bool) -> list[float]:
-    """The ``c`` (mm) inside the face where the throated rim meets the outside cylinder, ascending (none if straight)."""
+    """The ``c`` (mm) inside the face where the throated rim meets the outside cylinder, ascending (none if
+    straight)."""
     if not throated:
         return []
     drop = form.centre_distance - form.wheel_outside_radius
