@@ -82,3 +82,23 @@ def test_solids_need_out(capsys, tmp_path):
     code, out, err = run(capsys, "worm", "1", "30", "-m", "2", "--diameter-factor", "10", "--solids")
     assert code == 2 and err.count("\n") == 1 and "--out" in err
     assert list(tmp_path.iterdir()) == []
+
+
+@pytest.mark.slow
+def test_solids_write_the_worm_the_wheel_and_the_pair(capsys, tmp_path):
+    # A straight-faced wheel of 20 teeth (quick); the solids' own checks are in test_worm_wheel_solid.py.
+    from gearcad.export.step_worm import is_valid
+
+    code, out, _ = run(capsys, "worm", "2", "20", "-m", "1", "--diameter-factor", "10", "--out", str(tmp_path),
+                       "--solids", "--straight-face", "--json")
+    assert code == 0
+    names = sorted(p.rsplit("/", 1)[1] for p in json.loads(out)["files"])
+    assert names == ["worm-pair.step", "worm-wheel-midplane.dxf", "worm-wheel-midplane.svg", "worm-wheel.step",
+                     "worm-wheel.stl", "worm-worm.step", "worm-worm.stl"]
+    import cadquery as cq
+
+    wheel = cq.importers.importStep(str(tmp_path / "worm-wheel.step")).val()
+    assert is_valid(wheel)  # OCP's checker, on the solid read back
+    bounds = wheel.BoundingBox()
+    assert max(bounds.xmax, bounds.ymax) < 11.0 + 1e-3  # the straight face stops at the throat radius, z2 m / 2 + m
+    assert (tmp_path / "worm-wheel.stl").stat().st_size > 84

@@ -17,8 +17,9 @@ thread centred at ``u = 0`` occupies ``|u| <= h(r)`` for ``r_f <= r <= r_a``, wi
   Its slope at ``r_1`` is ``p tan(alpha_t) / r_1 = tan(gamma) tan(alpha_t) = tan(alpha_x)``
   (checked in the tests).
 
-The worm is a screw: the section at angle ``phi`` is the axial one moved by ``p phi`` along the
-axis, and turning the worm by ``psi`` moves its thread by ``-p psi``.
+The worm is a right-hand screw: the section at angle ``phi`` is the axial one moved by ``p phi`` along the
+axis, ``phi`` turning about +x (from the wheel's centre, ``-y``, towards ``-z``), and turning the worm by
+``psi`` moves its thread by ``-p psi``.
 
 **The wheel as the worm cuts it.**  The wheel turns by ``theta = psi z1 / z2`` as the worm turns by
 ``psi`` (rolling at the wheel's reference circle: ``p psi = r_2 theta``).  In each transverse slice
@@ -43,8 +44,8 @@ from shapely.ops import unary_union
 
 from ..errors import InputError
 
-__all__ = ["ThreadForm", "half_thickness", "axial_section", "worm_slice", "wheel_slice", "wheel_slices",
-           "interference", "Interference"]
+__all__ = ["ThreadForm", "half_thickness", "axial_section", "transverse_flank", "worm_slice", "wheel_slice", "wheel_slices",
+           "interference", "Interference", "tooth_space", "default_positions"]
 
 
 @dataclass(frozen=True)
@@ -138,6 +139,24 @@ def axial_section(form: ThreadForm, samples: int = 64, inner_radius: float | Non
     return np.vstack((right, left))
 
 
+def transverse_flank(form: ThreadForm, samples: int = 64) -> np.ndarray:
+    """One flank of the thread in a transverse section of the worm, (N, 2) points ``(x, y)`` mm, root to tip.
+
+    In the worm's own frame (axis z, right hand, the thread centred on ``z = k p_x`` in the axial section
+    towards +x), the thread crosses the plane ``z = 0`` where ``|p phi| <= h(r)``: the thread's angular half
+    width at radius ``r`` is ``h(r) / p`` (for ZA an Archimedean spiral).  This is the flank at
+    ``phi = -h(r) / p``; the other is its mirror in the x axis, and the other starts are turned by ``2 pi / z1``.
+    """
+    if not 8 <= samples <= 4096:
+        raise InputError(f"flank samples must be from 8 to 4096, got {samples}")
+    r = np.linspace(form.root_radius, form.tip_radius, samples)
+    phi = -half_thickness(form, r) / form.lead_parameter
+    if float(-2 * phi[0]) >= 2 * math.pi / form.starts:
+        raise InputError(f"the thread at the root spans {math.degrees(float(-2 * phi[0])):.4g} degrees of the worm's "
+                         f"transverse section, more than a start's {360 / form.starts:.4g}; allowed: a thinner thread")
+    return np.column_stack((r * np.cos(phi), r * np.sin(phi)))
+
+
 def _thread_polygon(form: ThreadForm, c: float, shift: float, samples: int) -> Polygon | None:
     """One thread's section in the slice ``z = c`` (fixed frame, x along the worm axis), moved by ``shift`` along x."""
     if abs(c) >= form.tip_radius:
@@ -147,7 +166,7 @@ def _thread_polygon(form: ThreadForm, c: float, shift: float, samples: int) -> P
     t_hi = math.sqrt(form.tip_radius ** 2 - c * c)
     t = np.linspace(t_lo, t_hi, samples)  # depth below the worm's axis, towards the wheel
     r = np.hypot(c, t)
-    phi = np.arctan2(c, t)
+    phi = np.arctan2(-c, t)  # about +x from -y: a right-hand thread advances along +x
     centre = form.lead_parameter * phi + shift
     h = half_thickness(form, r)
     y = a - t
@@ -188,7 +207,12 @@ def _blank(form: ThreadForm, c: float, throated: bool, resolution: int) -> Polyg
     return Point(0, 0).buffer(radius, quad_segs=resolution)
 
 
-def _space(form: ThreadForm, c: float, positions: int, samples: int) -> Polygon:
+def default_positions(form: ThreadForm) -> int:
+    """Generating positions of one thread across the worm: 40 per axial pitch travelled."""
+    return int(40 * (form.length + 2 * form.axial_pitch) / form.axial_pitch) + 1
+
+
+def tooth_space(form: ThreadForm, c: float, positions: int, samples: int = 48) -> Polygon:
     """The region one thread sweeps in the wheel's frame: one tooth space of the slice ``z = c``."""
     p = form.lead_parameter
     reach = form.length / 2 + form.axial_pitch
@@ -227,8 +251,8 @@ def wheel_slice(form: ThreadForm, c: float, *, throated: bool = True, positions:
         Segments per quarter circle of the blank.
     """
     if positions is None:
-        positions = int(40 * (form.length + 2 * form.axial_pitch) / form.axial_pitch) + 1
-    space = _space(form, c, positions, samples)
+        positions = default_positions(form)
+    space = tooth_space(form, c, positions, samples)
     blank = _blank(form, c, throated, resolution)
     if space.is_empty:
         return blank
