@@ -49,12 +49,11 @@ def placed(shape: Any, heading: float, origin: tuple[float, float, float], along
 
 def worm_part_solid(worm: Any) -> Any:
     """The worm with its shaft ends, at its own origin (thread from z = 0 to its length), an OCP shape."""
-    from ..geometry.worm_wheel import axial_section
+    from ..geometry.worm_wheel import transverse_flank
     from .step_worm import worm_solid
 
     form = worm.form
-    section = axial_section(form, 64, form.root_radius - 0.3 * form.module)
-    solid = worm_solid(form, section, shaft=worm.shaft_end - worm.thread / 2)
+    solid = worm_solid(form, transverse_flank(form), shaft=worm.shaft_end - worm.thread / 2)
     return solid.wrapped
 
 
