@@ -11,21 +11,24 @@ from gearcad.meshes.worm import make_worm_pair, thread_form
 pytestmark = pytest.mark.slow
 
 
-@pytest.fixture(scope="module", params=["handbook", "single-start-q10", "zi-4-starts"])
-def form(request):
+PAIRS = {
     # The handbook pair of tests/test_worm.py (m_x 3, z1 2, z2 30, d1 44); a slender single-start worm of q 10
     # (once refused: the kernel's trim of the Frenet sweep lost its thread); a ZI worm of 4 starts.
-    pairs = {"handbook": lambda: make_worm_pair(2, 30, 3, worm_diameter=44),
-             "single-start-q10": lambda: make_worm_pair(1, 40, 2, diameter_factor=10),
-             "zi-4-starts": lambda: make_worm_pair(4, 41, 2.5, diameter_factor=11, flank="zi")}
-    return thread_form(pairs[request.param]())
+    "handbook": lambda: make_worm_pair(2, 30, 3, worm_diameter=44),
+    "single-start-q10": lambda: make_worm_pair(1, 40, 2, diameter_factor=10),
+    "zi-4-starts": lambda: make_worm_pair(4, 41, 2.5, diameter_factor=11, flank="zi"),
+}
+_BUILT: dict = {}
 
 
-@pytest.fixture(scope="module")
-def worm(form):
-    from gearcad.export.step_worm import worm_solid
+def _built(name):
+    """(form, worm solid) of a named pair, built once per test process (a worm takes seconds in the kernel)."""
+    if name not in _BUILT:
+        from gearcad.export.step_worm import worm_solid
 
-    return worm_solid(form, transverse_flank(form))
+        form = thread_form(PAIRS[name]())
+        _BUILT[name] = form, worm_solid(form, transverse_flank(form))
+    return _BUILT[name]
 
 
 def _flank_deviation(solid, form, angle):
@@ -55,16 +58,23 @@ def _flank_deviation(solid, form, angle):
     return worst
 
 
-def test_worm_is_a_valid_solid(worm, form):
+@pytest.mark.parametrize("name", list(PAIRS))
+def test_worm_is_a_valid_solid(name):
     from gearcad.export.step_worm import is_valid
 
+    form, worm = _built(name)
     assert is_valid(worm)  # OCP's BRepCheck_Analyzer
     # More than the core: the thread is there (the fault once seen left the core alone).
     assert worm.Volume() > 1.05 * math.pi * form.root_radius ** 2 * form.length
 
 
-@pytest.mark.parametrize("angle", [0.0, math.pi / 2, 2.0])
-def test_axial_section_is_the_flank_form_within_a_micrometre_and_advances_one_lead_per_turn(worm, form, angle):
+# The kernel's plane section of a helicoid takes 20 s to over two minutes (the long single-start worm): the axial
+# plane and a turned plane of the handbook worm, a turned plane of the ZI worm (a turned plane checks the form and
+# the lead at once).  Every worm, the single-start one included, is built by one sweep whose volume worm_solid
+# itself holds to the section's area times the length (1e-5), and is checked valid above.
+@pytest.mark.parametrize("name, angle", [("handbook", 0.0), ("handbook", 2.0), ("zi-4-starts", 2.0)])
+def test_axial_section_is_the_flank_form_within_a_micrometre_and_advances_one_lead_per_turn(name, angle):
     # DIN 3975: the thread advances one lead p_z per turn, so the section in a plane turned by phi is the axial
     # section moved by p_z phi / (2 pi); the ZA flank is straight in it.
+    form, worm = _built(name)
     assert _flank_deviation(worm, form, angle) < 1e-3
