@@ -353,6 +353,27 @@ def _tip_findings(name: str, tip: float, process: str, min_feature: float) -> li
                     f"{process} process holds")]
 
 
+def _reach_finding(name: str, tool_radius: float, reach: float, form: float, blocked: bool, biggest: float | None,
+                   inward: bool) -> Finding:
+    """The end mill's finding.
+
+    ``reach`` and ``form`` are radii (mm); ``biggest`` (the largest end mill that reaches, diameter mm) is given
+    when the mill falls short, None when it reaches; ``inward`` for an external gear (the mill goes down towards
+    the axis), outward for a ring; ``blocked`` when it cannot enter the spaces at all.
+    """
+    way, end = ("deeper", "begins") if inward else ("farther out", "ends")
+    if biggest is not None:
+        where = ("cannot enter the tooth spaces at all" if blocked else
+                 f"goes no {way} than diameter {2 * reach:.3f} mm in the tooth spaces")
+        return Finding(f"tool reach {name}", "failure", 2 * reach, 2 * form,
+                       f"{name}: the {2 * tool_radius:g} mm end mill {where}, short of the form diameter "
+                       f"{2 * form:.3f} mm where the involute {end}, so the flanks cannot be cut; use an "
+                       f"end mill of at most {biggest:.2f} mm or a larger module")
+    return Finding(f"tool reach {name}", "ok", 2 * reach, 2 * form,
+                   f"{name}: the {2 * tool_radius:g} mm end mill reaches the whole involute flank "
+                   f"({'down' if inward else 'out'} to diameter {2 * reach:.3f} mm)")
+
+
 def ring_process_findings(name: str, ring, loop: np.ndarray, process: str, tool_radius: float,
                           min_feature: float) -> list[Finding]:
     """Whether the fabrication process can make a ring's internal teeth: failures name the reason.
@@ -380,18 +401,9 @@ def ring_process_findings(name: str, ring, loop: np.ndarray, process: str, tool_
     if process == "cnc" and tool_radius > 0:
         form = ring.form_diameter / 2
         reach = ring_tool_reach(loop, tool_radius)
-        if reach < form - 1e-3:
-            biggest = 2 * ring_largest_tool(loop, form)
-            where = ("cannot enter the tooth spaces at all" if reach <= ring.tip_diameter / 2 + 1e-6 else
-                     f"goes no farther out than diameter {2 * reach:.3f} mm in the tooth spaces")
-            out.append(Finding(f"tool reach {name}", "failure", 2 * reach, 2 * form,
-                               f"{name}: the {2 * tool_radius:g} mm end mill {where}, short of the form diameter "
-                               f"{2 * form:.3f} mm where the involute ends, so the flanks cannot be cut; use an "
-                               f"end mill of at most {biggest:.2f} mm or a larger module"))
-        else:
-            out.append(Finding(f"tool reach {name}", "ok", 2 * reach, 2 * form,
-                               f"{name}: the {2 * tool_radius:g} mm end mill reaches the whole involute flank "
-                               f"(out to diameter {2 * reach:.3f} mm)"))
+        short = reach < form - 1e-3
+        out.append(_reach_finding(name, tool_radius, reach, form, reach <= ring.tip_diameter / 2 + 1e-6,
+                                  2 * ring_largest_tool(loop, form) if short else None, inward=False))
     if min_feature > 0:
         out += _tip_findings(name, ring.tip_thickness, process, min_feature)
     return out
@@ -431,18 +443,9 @@ def process_findings(name: str, gear: SpurGear, outline: np.ndarray, process: st
     if process == "cnc" and tool_radius > 0:
         form = tooth_profile(gear, tolerance=1e-3).form_diameter / 2
         reach = tool_reach(outline, tool_radius)
-        if reach > form + 1e-3:
-            biggest = 2 * largest_tool(outline, form)
-            where = ("cannot enter the tooth spaces at all" if reach >= gear.tip_diameter / 2 - 1e-6 else
-                     f"goes no deeper than diameter {2 * reach:.3f} mm in the tooth spaces")
-            out.append(Finding(f"tool reach {name}", "failure", 2 * reach, 2 * form,
-                               f"{name}: the {2 * tool_radius:g} mm end mill {where}, short of the form diameter "
-                               f"{2 * form:.3f} mm where the involute begins, so the flanks cannot be cut; use an "
-                               f"end mill of at most {biggest:.2f} mm or a larger module"))
-        else:
-            out.append(Finding(f"tool reach {name}", "ok", 2 * reach, 2 * form,
-                               f"{name}: the {2 * tool_radius:g} mm end mill reaches the whole involute flank "
-                               f"(down to diameter {2 * reach:.3f} mm)"))
+        short = reach > form + 1e-3
+        out.append(_reach_finding(name, tool_radius, reach, form, reach >= gear.tip_diameter / 2 - 1e-6,
+                                  2 * largest_tool(outline, form) if short else None, inward=True))
     if min_feature > 0:
         out += _tip_findings(name, gear.tip_thickness, process, min_feature)
     return out
