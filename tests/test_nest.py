@@ -245,3 +245,12 @@ def test_parts_larger_than_the_profiles_sheet_are_left_off_with_a_warning(tmp_pa
     assert {"back-plate", "front-plate"}.isdisjoint(on_sheets)
     assert {g["name"] for g in report["gears"]} <= on_sheets
     assert any("back-plate" in w and "120 x 100 mm" in w for w in report["warnings"])
+
+
+def test_a_rectangle_rounded_to_half_its_height_is_a_stadium_without_empty_straights():
+    # Radius = half the short side: the corner arcs meet, so the short sides have no straight (once a zero-length
+    # line with a NaN tangent).  Area against the closed form w h - (4 - pi) r^2, within the arcs' chord sampling.
+    loop = rounded_rectangle(40.0, 20.0, 10.0)
+    assert all(np.isfinite(c.tangents).all() for c in loop.curves)
+    assert [c.kind for c in loop.curves].count("line") == 2
+    assert Part("s", loop).area() == pytest.approx(40 * 20 - (4 - math.pi) * 100, rel=1e-3)

@@ -156,7 +156,14 @@ def rounded_rectangle(width: float, height: float, radius: float, tolerance: flo
         start = -quarter + k * quarter
         arc = arc_curve((cx, cy), r, start, start + quarter, tolerance)
         if curves:
-            curves.append(line_curve(tuple(curves[-1].points[-1]), tuple(arc.points[0])))
+            curves += _joining_line(curves[-1].points[-1], arc.points[0])
         curves.append(arc)
-    curves.append(line_curve(tuple(curves[-1].points[-1]), tuple(curves[0].points[0])))
+    curves += _joining_line(curves[-1].points[-1], curves[0].points[0])
     return Loop(tuple(curves))
+
+
+def _joining_line(a: np.ndarray, b: np.ndarray) -> list[Curve]:
+    """The straight between two corner arcs, or none where they meet (a radius of half the side: a stadium)."""
+    if math.hypot(*(np.asarray(b) - np.asarray(a))) <= 1e-12:
+        return []
+    return [line_curve(tuple(a), tuple(b))]
