@@ -277,6 +277,15 @@ def space_direction(points: np.ndarray, internal: bool = False) -> np.ndarray:
     return np.array([math.cos(middle), math.sin(middle)])
 
 
+def _last_clear(is_clear, clear: float, blocked: float) -> float:
+    """Bisection (60 halvings) between a value where ``is_clear`` holds and one where it does not; the
+    clear end of the last interval (the end mills' reach and size)."""
+    for _ in range(60):
+        mid = 0.5 * (clear + blocked)
+        clear, blocked = (mid, blocked) if is_clear(mid) else (clear, mid)
+    return clear
+
+
 def tool_reach(points: np.ndarray, tool_radius: float) -> float:
     """Lowest radius (mm) an end mill of ``tool_radius`` mm reaches in the tooth spaces of a gear outline.
 
@@ -290,20 +299,14 @@ def tool_reach(points: np.ndarray, tool_radius: float) -> float:
     low, high = float(r.min()), float(r.max()) + 2 * tool_radius
     if _clear(points, direction, low, tool_radius):
         return low
-    for _ in range(60):
-        mid = 0.5 * (low + high)
-        low, high = (low, mid) if _clear(points, direction, mid, tool_radius) else (mid, high)
-    return high
+    return _last_clear(lambda mid: _clear(points, direction, mid, tool_radius), clear=high, blocked=low)
 
 
 def largest_tool(points: np.ndarray, depth_radius: float) -> float:
     """Radius (mm) of the largest end mill that reaches ``depth_radius`` mm on a space's centre line."""
     direction = space_direction(points)
-    low, high = 0.0, float(np.hypot(*points.T).max())
-    for _ in range(60):
-        mid = 0.5 * (low + high)
-        low, high = (mid, high) if _clear(points, direction, depth_radius, mid) else (low, mid)
-    return low
+    return _last_clear(lambda mid: _clear(points, direction, depth_radius, mid), clear=0.0,
+                       blocked=float(np.hypot(*points.T).max()))
 
 
 def _clear_out(points: np.ndarray, direction: np.ndarray, top: float, radius: float) -> bool:
@@ -327,20 +330,14 @@ def ring_tool_reach(points: np.ndarray, tool_radius: float) -> float:
     low = max(low, tool_radius)
     if _clear_out(points, direction, high, tool_radius):
         return high
-    for _ in range(60):
-        mid = 0.5 * (low + high)
-        low, high = (mid, high) if _clear_out(points, direction, mid, tool_radius) else (low, mid)
-    return low
+    return _last_clear(lambda mid: _clear_out(points, direction, mid, tool_radius), clear=low, blocked=high)
 
 
 def ring_largest_tool(points: np.ndarray, reach_radius: float) -> float:
     """Radius (mm) of the largest end mill that reaches ``reach_radius`` mm on a ring space's centre line."""
     direction = space_direction(points, internal=True)
-    low, high = 0.0, float(reach_radius)
-    for _ in range(60):
-        mid = 0.5 * (low + high)
-        low, high = (mid, high) if _clear_out(points, direction, reach_radius, mid) else (low, mid)
-    return low
+    return _last_clear(lambda mid: _clear_out(points, direction, reach_radius, mid), clear=0.0,
+                       blocked=float(reach_radius))
 
 
 def _tip_findings(name: str, tip: float, process: str, min_feature: float) -> list[Finding]:
