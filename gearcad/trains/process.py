@@ -14,13 +14,10 @@ from __future__ import annotations
 
 import dataclasses
 
+from ..geometry.ring import RingGear
 from ..meshes.checks import Finding, process_findings, ring_process_findings
 
 __all__ = ["process_check", "gear_process_findings"]
-
-
-def _is_ring(gear) -> bool:
-    return hasattr(gear, "cutter_teeth")
 
 
 def _toothed(loop) -> bool:
@@ -33,7 +30,7 @@ def _outside_teeth(plan, g):
         pair = m.pair
         gears = (pair.gear1, pair.gear2) if hasattr(pair, "gear1") else (pair.pinion, pair.ring)  # external, internal
         for name, gear in zip(m.names, gears):
-            if name == g.name and not _is_ring(gear):
+            if name == g.name and not isinstance(gear, RingGear):
                 return gear
     return None
 
@@ -41,7 +38,7 @@ def _outside_teeth(plan, g):
 def gear_process_findings(plan, g) -> list[Finding]:
     """The process findings of one planned gear ``g`` of ``plan`` (see the module docstring)."""
     fab = plan.fabrication
-    if not _is_ring(g.gear):
+    if not isinstance(g.gear, RingGear):
         return process_findings(g.name, g.gear, g.part.outer.points(), fab.process, fab.tool_radius, fab.min_feature)
     out: list[Finding] = []
     for hole in g.part.holes:
