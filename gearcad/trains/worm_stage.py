@@ -42,7 +42,7 @@ from fractions import Fraction
 import numpy as np
 
 from ..errors import InputError
-from ..geometry.shape import Loop, Part, line_curve
+from ..geometry.shape import Loop, Part, line_curve, polygon_area
 from ..meshes.checks import Finding
 from .hardware import EDGE_RULE, REACH, SPACER_WALL, bridge_room, screw_size
 from .layout import LayoutGear, LayoutProblem, Link, mesh_phase, shaft_sides, solve_layout
@@ -165,8 +165,7 @@ def _polygon_loop(points: np.ndarray) -> Loop:
     pts = pts[keep]
     if np.hypot(*(pts[-1] - pts[0])) < 1e-9:
         pts = pts[:-1]
-    area = 0.5 * float(np.sum(pts[:, 0] * np.roll(pts[:, 1], -1) - np.roll(pts[:, 0], -1) * pts[:, 1]))
-    if area < 0:
+    if polygon_area(pts) < 0:
         pts = pts[::-1]
     nxt = np.roll(pts, -1, axis=0)
     return Loop(tuple(line_curve(tuple(a), tuple(b)) for a, b in zip(pts, nxt)))
