@@ -191,7 +191,10 @@ def _laminations(plan, g, count: int):
 
 
 def _is_ring(g) -> bool:
-    return hasattr(g.gear, "cutter_teeth")
+    """Whether a planned gear is a ring (internal teeth; helical rings included): its holes twist with it."""
+    from ..geometry.ring import RingGear
+
+    return isinstance(g.gear, RingGear)
 
 
 def _helix_style(plan, g) -> tuple[bool, float]:
