@@ -78,3 +78,38 @@ def test_ratio_command_bad_worm_input_is_one_line(capsys, argv, word):
     code = main(["ratio", "0.01", *argv])
     out, err = capsys.readouterr()
     assert code == 2 and out == "" and err.count("\n") == 1 and word in err
+
+
+def test_skipped_wheels_never_hold_a_better_train():
+    # Wheels 20-80 after one spur stage of 10-40 teeth (reach 1/4 to 4) toward 0.004: below 63 teeth the spur part
+    # would need less than 1/4, so those wheels start with an error floor and most are skipped.  The three best
+    # distinct ratios equal brute force over every stage and wheel (fewest teeth among equal ratios).
+    target = parse_target("0.004")
+    limits = make_limits(10, 40)
+    found = solve_worm(make_worm_query(target, WormStage(1, 20, 80), limits, stages=2, count=3))
+    best: dict[Fraction, int] = {}
+    for d, n, w in product(range(10, 41), range(10, 41), range(20, 81)):
+        if Fraction(1, 4) <= Fraction(d, n) <= 4:
+            r = Fraction(d, n) * Fraction(1, w)
+            best[r] = min(best.get(r, 10**9), d + n + 1 + w)
+    ranked = sorted(best.items(), key=lambda item: (abs(item[0] / target.rational - 1), item[1]))[:3]
+    assert [(t.fraction, t.total_teeth) for t in found] == ranked
+
+
+def test_an_unreachable_worm_target_is_said_at_once(capsys):
+    # 1 turn a sidereal day from a 1 rps motor: 1/86164.0905.  Three spur stages of at most 6:1 (216) and a 120-tooth
+    # wheel reach 1/25920: the line names the reach and a wheel range that would do (216 * 399 >= 86164.0905).
+    code = main(["ratio", "1/86164.0905", "--worm", "1", "--stages", "4"])
+    out, err = capsys.readouterr()
+    assert code == 1 and err == "" and out.count("\n") == 1
+    assert "cannot be reached" in out and "1/25920" in out and "--worm 1:18-399" in out
+    code = main(["ratio", "1/86164.0905", "--worm", "1", "--stages", "4", "--json"])
+    data = json.loads(capsys.readouterr()[0])
+    assert code == 1 and data["results"] == [] and data["reach"]["min"] == pytest.approx(1 / 25920)
+
+
+def test_worm_results_say_whether_they_meet_the_tolerance(capsys):
+    code = main(["ratio", SIDEREAL, "--worm", "1:350-360", "--stages", "2", "--json", "--tolerance", "1e-3"])
+    data = json.loads(capsys.readouterr()[0])
+    assert code == 0 and data["tolerance"] == 1e-3 and set(data["reach"]) == {"min", "max"}
+    assert all(r["within_tolerance"] is (abs(r["relative_error"]) <= 1e-3) for r in data["results"])

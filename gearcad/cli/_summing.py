@@ -53,7 +53,7 @@ def run_summing(args: argparse.Namespace, limits) -> int:
     """Solve, check every result with the kinematic model, print."""
     from ..errors import GearcadError, InputError
     from ..ratio.kinematics import network_ratio
-    from ..ratio.tolerance import tolerance_value
+    from ..ratio.tolerance import is_within, tolerance_value
     from ..ratio.target import parse_target
     from ..ratio.summing import solve_summing, summing_network
 
@@ -84,7 +84,9 @@ def run_summing(args: argparse.Namespace, limits) -> int:
     other = _other_kinds(args, trains)
     if args.json:
         print_json({"target": {"expression": target.expression, "value": target.value},
-                    "results": [summing_json(t, m) for t, m in shown], **({"other_kinds": other} if other else {})})
+                    "results": [{**summing_json(t, m), "within_tolerance": is_within(t.relative_error, args.tolerance)}
+                                for t, m in shown], "tolerance": args.tolerance,
+                    **({"other_kinds": other} if other else {})})
         return 0 if shown else 1
     print(f"target {target.expression} = {target.digits(20)}")
     print(f"summing train: two one-stage paths from the input into a {kind} differential; "
@@ -103,8 +105,9 @@ def run_summing(args: argparse.Namespace, limits) -> int:
         rows.append((str(n), path(t.path_a, t.sign_a), path(t.path_b, t.sign_b), diff,
                      f"{t.ratio.numerator}/{t.ratio.denominator}", f"{float(t.ratio):.15g}",
                      f"{t.relative_error * 1e6:+.6f}", str(t.total_teeth)))
-    print(table(rows, ("#", "path A", "path B", "differential", "exact ratio", "decimal", "error ppm", "teeth"),
-                left=(1, 2, 3)))
+    if rows:
+        print(table(rows, ("#", "path A", "path B", "differential", "exact ratio", "decimal", "error ppm", "teeth"),
+                    left=(1, 2, 3)))
     if other:
         print(other)
     if not shown:

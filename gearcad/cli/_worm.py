@@ -18,12 +18,15 @@ def add_worm_option(parser: argparse.ArgumentParser) -> None:
                              "counts the worm stage too; the worm stage is marked worm: true")
 
 
-def worm_train_json(train: Any) -> dict[str, Any]:
+def worm_train_json(train: Any, tolerance: float | None = None) -> dict[str, Any]:
     """JSON of a train with a worm stage: the keys of a compound result, stages marked ``worm``."""
+    from ..ratio.tolerance import is_within
+
     return {"numerator": train.numerator, "denominator": train.denominator, "ratio": train.ratio,
             "relative_error": train.relative_error, "direction": "crossed",
             "stages": [{"driver": d, "driven": n, "worm": w} for d, n, w in train.stages], "idler": None,
-            "total_teeth": train.total_teeth, "worm": {"starts": train.starts, "wheel_teeth": train.wheel}}
+            "total_teeth": train.total_teeth, "worm": {"starts": train.starts, "wheel_teeth": train.wheel},
+            "within_tolerance": is_within(train.relative_error, tolerance)}
 
 
 def _stages_text(train: Any) -> str:
@@ -38,7 +41,7 @@ def run_worm_ratio(args: argparse.Namespace, limits: Any, progress: Any) -> int:
     from ..errors import InputError
     from ..ratio.solve import count_value, tolerance_value
     from ..ratio.target import parse_target
-    from ..ratio.worm import make_worm_query, parse_worm_option, solve_worm
+    from ..ratio.worm import make_worm_query, parse_worm_option, solve_worm, worm_reach, worm_reach_note
 
     for attr, flag in (("coaxial", "--coaxial"), ("fractions", "--fractions"), ("shift_limit", "--shift-limit")):
         if getattr(args, attr, None) not in (None, False):
@@ -49,6 +52,16 @@ def run_worm_ratio(args: argparse.Namespace, limits: Any, progress: Any) -> int:
     default_count = 5 if args.stages is not None or tolerance is not None else 1
     count = count_value(args.count if args.count is not None else default_count)
     query = make_worm_query(target, worm, limits, args.stages, count)
+    reach = worm_reach(query)
+    head = {"expression": target.expression, "value": target.value}
+    if not reach.holds(target.approx):  # said at once: no search can reach it
+        note = worm_reach_note(query)
+        if args.json:
+            print_json({"target": head, "results": [], "tolerance": tolerance, "reach": reach.as_json(),
+                        "unreachable": note})
+        else:
+            print(note)
+        return 1
     try:
         trains = solve_worm(query, progress)
     finally:
@@ -60,9 +73,9 @@ def run_worm_ratio(args: argparse.Namespace, limits: Any, progress: Any) -> int:
                "ratio = output turns per input turn = product of driver/driven (worm: starts/wheel teeth); "
                "the worm's axis crosses the wheel's, so the output's sense follows the worm's hand")
     if args.json:
-        print_json({"target": {"expression": target.expression, "value": target.value},
-                    "results": [worm_train_json(t) for t in shown],
-                    **({"best": worm_train_json(trains[0])} if not shown and trains else {})})
+        print_json({"target": head, "results": [worm_train_json(t, tolerance) for t in shown],
+                    "tolerance": tolerance, "reach": reach.as_json(),
+                    **({"best": worm_train_json(trains[0], tolerance)} if not shown and trains else {})})
         return 0 if shown else 1
     print(heading)
     if not trains:

@@ -385,7 +385,7 @@ def _run_planetary(args: argparse.Namespace) -> int:
     from ..ratio.planetary import solve_planetary
     from ..ratio.solve import within_tolerance
     from ..ratio.target import parse_target
-    from ..ratio.tolerance import DESIGN_TOLERANCE, tolerance_value
+    from ..ratio.tolerance import DESIGN_TOLERANCE, is_within, tolerance_value
     from ..ratio.planetary_ways import planetary_alternatives
 
     target = parse_target(args.target)
@@ -408,7 +408,8 @@ def _run_planetary(args: argparse.Namespace) -> int:
         if missed else ""
     if not shown:
         if args.json:
-            print_json({"target": head, "results": [], "best": _planetary_json(results[0]) if results else None,
+            print_json({"target": head, "results": [], "tolerance": args.tolerance,
+                        "best": {**_planetary_json(results[0]), "within_tolerance": False} if results else None,
                         "alternatives": hint, **({"other_kinds": other} if other else {})})
             return 1
         print(_planetary_heading(query))
@@ -422,7 +423,9 @@ def _run_planetary(args: argparse.Namespace) -> int:
                 print(line)
         return 1
     if args.json:
-        out = {"target": head, "results": [_planetary_json(r) for r in shown]}
+        out = {"target": head, "results": [{**_planetary_json(r), "within_tolerance": is_within(r.relative_error,
+                                                                                             args.tolerance)}
+                                           for r in shown], "tolerance": args.tolerance}
         if hint:
             out["alternatives"] = hint
         if other:

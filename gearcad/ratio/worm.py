@@ -22,14 +22,15 @@ from typing import Callable, Sequence
 from ..errors import InputError
 from ..meshes.worm import STARTS_RANGE, min_wheel_teeth
 from ..validate import as_int
-from .compound import solve_compound
+from .compound import solve_compound, stage_ratio_range
 from .kinematics import Gear, Mesh, make_network, network_ratio
 from .limits import MAX_STAGES, Limits
+from .reach import Reach, largest_stage_ratio
 from .target import Target
 from .train import Train, exact_relative_error
 
 __all__ = ["WormStage", "WormTrain", "WormQuery", "parse_worm_option", "make_worm_query", "solve_worm",
-           "worm_train_network", "worm_train_ratio", "WHEEL_BOUNDS"]
+           "worm_train_network", "worm_train_ratio", "WHEEL_BOUNDS", "worm_reach", "worm_reach_note"]
 
 #: Fewest and most wheel teeth a search may try.
 WHEEL_BOUNDS = (4, 1000)
@@ -209,11 +210,42 @@ def _worm_alone(query: WormQuery) -> list[WormTrain]:
     return trains
 
 
-def _with_spur(query: WormQuery, k: int, progress: Progress | None) -> list[WormTrain]:
+def _wheels(query: WormQuery) -> list[int]:
     w = query.worm
-    wheels = [z for z in range(w.wheel_min, w.wheel_max + 1) if z not in query.limits.exclude]
+    return [z for z in range(w.wheel_min, w.wheel_max + 1) if z not in query.limits.exclude]
+
+
+def _floor(remainder: Target, span: tuple[Fraction, Fraction]) -> float:
+    """The least |relative error| any spur part within ``span`` can give against ``remainder``.
+
+    A spur ratio ``r`` gives the whole train the error ``r / R - 1`` (``R`` the remainder), so within
+    reach the floor is 0 and beyond it the error of the nearer end of the span.
+    """
+    low, high = span
+    if remainder.approx < low:
+        return float(low) / remainder.approx - 1
+    if remainder.approx > high:
+        return 1 - float(high) / remainder.approx
+    return 0.0
+
+
+def _with_spur(query: WormQuery, k: int, progress: Progress | None) -> list[WormTrain]:
+    """The best trains of ``k`` spur stages and the worm, every wheel tried or proved unable to compete.
+
+    The wheels whose spur part lies within the spur stages' reach go first (their error floor is 0); a wheel
+    whose floor (:func:`_floor`) exceeds the ``count``-th best error found so far cannot place a train among
+    the best, so its search is skipped.  The result equals the search over every wheel.
+    """
+    w = query.worm
+    span = stage_ratio_range(query.limits, k)
+    if span is None:
+        return []
+    wheels = sorted(((_floor(_remainder(query.target, w.starts, z2), span), z2) for z2 in _wheels(query)))
     found: list[WormTrain] = []
-    for i, z2 in enumerate(wheels):
+    for i, (floor, z2) in enumerate(wheels):
+        best = _best_distinct(found, query.target, query.count)
+        if len(best) == query.count and floor > abs(best[-1].relative_error) * (1 + 1e-12):
+            break  # the wheels are sorted by floor: no later one can do better either
         spur: list[Train] = solve_compound(_remainder(query.target, w.starts, z2), k, query.limits, query.count)
         found += [_make(t.stages, w.starts, z2, query.target) for t in spur]
         if progress is not None:
@@ -251,3 +283,61 @@ def solve_worm(query: WormQuery, progress: Progress | None = None) -> list[WormT
         found = _worm_alone(query) if k == 0 else _with_spur(query, k, step)
         results += _best_distinct(found, query.target, query.count)
     return sorted(results, key=lambda t: _rank(t, query.target))
+
+
+def worm_reach(query: WormQuery) -> Reach:
+    """The ratios the query's trains can have: the spur stages' reach times the worm stage's.
+
+    ``k`` spur stages of largest stage ratio ``s`` reach ``[s^-k, s^k]`` (:mod:`gearcad.ratio.reach`); the worm
+    stage ``z1 / z2`` lies within ``[z1 / z2max, z1 / z2min]``.  Every interval holds ratio 1's neighbourhood,
+    so the union over the stage counts is the interval of the most spur stages.  ``stage_counts`` counts the
+    worm stage.
+    """
+    wheels = _wheels(query)
+    counts = tuple(k + 1 for k in query.spur_counts)
+    if not wheels:
+        return Reach(counts, Fraction(0), Fraction(0))
+    s = largest_stage_ratio(query.limits)
+    k = max(query.spur_counts)
+    if s is None or s < 1:
+        if k > 0:
+            return Reach(counts, Fraction(0), Fraction(0))
+        s = Fraction(1)
+    starts = query.worm.starts
+    return Reach(counts, Fraction(starts, max(wheels)) / s ** k, Fraction(starts, min(wheels)) * s ** k)
+
+
+def worm_reach_note(query: WormQuery) -> str:
+    """One line: the target, what the worm query reaches, and what would reach it."""
+    reach = worm_reach(query)
+    t = query.target
+    w = query.worm
+    counts = reach.stage_counts
+    stages = f"{counts[0]} stage{'s' * (counts[0] != 1)}" if len(counts) == 1 else f"{min(counts)} to {max(counts)} stages"
+    head = (f"target {t.expression} = {float(t.approx):.6g} cannot be reached: {stages} (the worm's included) under the "
+            f"limits ({query.limits.describe()}; worm {w.starts} start{'s' * (w.starts != 1)}, wheel "
+            f"{w.wheel_min}-{w.wheel_max} teeth) reach {reach.describe()}")
+    if reach.high == 0:
+        return head + "; no stage obeys the limits: widen the tooth range or the stage ratio"
+    ways = []
+    s = largest_stage_ratio(query.limits) or Fraction(1)
+    k = max(query.spur_counts)
+    value = Fraction(t.approx)
+    more = next((n for n in range(k + 1, MAX_STAGES) if Fraction(w.starts, w.wheel_max) / s ** n <= value
+                 <= Fraction(w.starts, w.wheel_min) * s ** n), None)
+    if more is not None:
+        ways.append(f"--stages {more + 1}")
+    for n in range(k, MAX_STAGES):  # the fewest spur stages whose reach a wider wheel range or more starts extends
+        stages_text = "" if n == k else f"--stages {n + 1} "
+        if value < reach.low:
+            need = math.ceil(w.starts / (float(t.approx) * float(s) ** n) * (1 - 1e-12))
+            if need <= WHEEL_BOUNDS[1]:
+                ways.append(f"{stages_text}--worm {w.starts}:{w.wheel_min}-{max(need, w.wheel_min)}")
+                break
+        else:
+            need = math.ceil(float(t.approx) * w.wheel_min / float(s) ** n * (1 - 1e-12))
+            if need <= STARTS_RANGE[1]:
+                ways.append(f"{stages_text}--worm {need} (more starts)")
+                break
+    ways.append("no worm: a compound, planetary or summing train (--kind)")
+    return head + "; would reach it: " + "; or ".join(ways)
