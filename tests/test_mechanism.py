@@ -227,11 +227,14 @@ def test_lengths_follow_the_layer_stack(name):
         if s.kind not in ("arbor", "pin", "axle"):
             continue
         lo, hi = sorted(z_of[n] for n in s.supports)[0], sorted(z_of[n] for n in s.supports)[-1]
-        reach = REACH * rods[s.name].diameter * ((s.name in ("input", "centre")) + (s.name in ("output", "centre")))
-        assert rods[s.name].length == pytest.approx(hi + t - lo + reach, abs=1e-9)
+        back = REACH * rods[s.name].diameter * (s.name in ("input", "centre"))
+        front = REACH * rods[s.name].diameter * (s.name in ("output", "centre"))
+        pipe = rods.get(f"{s.name}-pipe")  # a planetary set's carrier pipe: the shaft's front end turns inside it
+        top = pipe.z1 if pipe is not None else hi + t + front
+        assert rods[s.name].length == pytest.approx(top - (lo - back), abs=1e-9)
         assert s.free_span == pytest.approx(hi - (lo + t), abs=1e-9)
         index = [p.name for p in plan.shafts].index(s.name)
-        filled = sum(r.length for r in spacers_of(mech.rods, s.name))
+        filled = sum(r.length for r in spacers_of(mech.rods, s.name)) + sum(r.length for r in spacers_of(mech.rods, f"{s.name}-pipe"))
         filled += sum(g.z + t + g.hub_length - g.z for g in plan.gears if g.shaft == index and g.role != "ring"
                       and g.bore <= rods[s.name].diameter + 1e-9)
         filled += sum(r.length for r in mech.rods if r.kind == "pipe" and r.name.startswith(f"{s.name}-tube-"))

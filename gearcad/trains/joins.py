@@ -121,10 +121,34 @@ def _pipe_output(plan, index: int) -> bool:
     return bool(plan.spec.coaxial) and index == len(plan.shafts) - 1
 
 
+def _planetary_joins(plan, rods) -> tuple[object, list[Join], list[Finding]]:
+    """A ring-fixed set: the sun fixed to the centre shaft by a D-flat, the carrier's front disc glued to its pipe
+    (:mod:`gearcad.trains.planetary_drive`); the input and output each on one of them."""
+    pipe = next((r for r in rods if r.kind == "pipe" and r.name == "centre-pipe"), None)
+    if pipe is None:
+        return plan, [], []
+    gears = list(plan.gears)
+    sun = next(g for g in gears if g.role == "sun")
+    gears[gears.index(sun)] = _flat(plan, [sun])[0]
+    a = plan.spec.planetary
+    ends = {"sun": "the centre shaft's end behind the back plate", "carrier": "the pipe's end in front of the front plate"}
+    inp = a.input or "sun"
+    joins = [Join("centre", ("sun",), "flat", "The sun is fixed to the centre shaft: its bore has a D-flat; file or grind "
+                  f"the matching flat on the shaft (the {'input' if inp == 'sun' else 'output'}, at "
+                  f"{ends['sun']})"),
+             Join("centre", ("carrier",), "pipe", f"Glue the carrier's front disc to the {pipe.name} "
+                  f"({pipe.diameter:g} mm tube, {pipe.length:.2f} mm long), which turns on the centre shaft and passes "
+                  f"the front plate (the {'input' if inp == 'carrier' else 'output'}, at {ends['carrier']}); the "
+                  "carrier's back disc turns on the shaft, joined to the front one by the planet pins")]
+    return dataclasses.replace(plan, gears=tuple(gears)), joins, []
+
+
 def join_compounds(plan, rods) -> tuple[object, list[Join], list[Finding]]:
     """Join the gears of every compound shaft of a compound train, and fix the input's and output's gears to their
     shafts; the plan with its gears changed, the joins, findings."""
-    if plan.spec.planetary is not None or plan.spec.summing is not None:
+    if plan.spec.planetary is not None:
+        return _planetary_joins(plan, rods)
+    if plan.spec.summing is not None:
         return plan, [], []
     method = _method(plan)
     gears = list(plan.gears)

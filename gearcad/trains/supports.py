@@ -34,6 +34,7 @@ from ..errors import InputError
 from .hardware import Mechanism, Rod, SPACER_WALL, ShaftSupport, screw_size, spacers_of
 from .bridges import Ahead, bridged, bridged_span
 from .frame import check_edges, finish_frame_plates, frame_pillars, ring_bolts
+from .planetary_drive import planetary_centre, ring_drive_finding
 from .rods import Work, axle_pipes, coaxial_pipe, frame_shaft, holding_discs, plate_named, respace, stud
 from .sweeps import sweeps_of
 
@@ -81,6 +82,8 @@ def _one_shaft(w: Work, i: int, s, bridges_wanted: dict[int, str]) -> ShaftSuppo
         support = frame_shaft(w, i, s, rest, frame, "axle")
         respace(w, s, spans, rest, frame)
         return support
+    if len(frame) == 2 and plan.spec.planetary is not None and s.name == "centre":
+        return planetary_centre(w, s, frame_shaft(w, i, s, gears, frame, "arbor"))
     if len(frame) == 2:
         return frame_shaft(w, i, s, gears, frame, "arbor")
     discs = holding_discs(plan, s)
@@ -124,6 +127,7 @@ def complete_plan(plan, bridges_wanted: dict[int, str] | None = None):
         raise InputError(f"studs names {unknown[0]!r}, which is not a shaft of this train; shafts: "
                          + ", ".join(s.name for s in plan.shafts))
     _shafts(w, bridges_wanted)
+    w.findings += [f for f in (ring_drive_finding(plan),) if f is not None]
     ring_bolts(w)
     width, height = frame_pillars(w, plan.layout.width, plan.layout.height)
     plates = finish_frame_plates(w, width, height)
