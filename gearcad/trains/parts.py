@@ -80,6 +80,23 @@ def parts_list(plan, files: Mapping[str, Mapping[str, str]]) -> list[dict[str, A
         row["used_for"].append(r.name)
     for row in groups.values():
         row["note"] = ", ".join(row.pop("used_for"))
+    rows += _nuts(mech.rods if mech else ())
+    return rows
+
+
+def _nuts(rods) -> list[dict[str, Any]]:
+    """A hex nut and a plain washer for every through screw, by thread (ISO 4032 nuts and ISO 7089 washers, the
+    usual stock: from memory)."""
+    count: dict[str, list[str]] = {}
+    for r in rods:
+        if r.kind == "screw" and r.nut:
+            count.setdefault(r.thread, []).append(r.name)
+    rows = []
+    for thread, names in count.items():
+        for what in ("hex nut", "plain washer"):
+            rows.append({"name": f"{thread} {what}", "kind": "bought", "quantity": len(names), "diameter": None,
+                         "bore": None, "length": None, "thread": thread, "material": "steel",
+                         "note": "closes " + ", ".join(names)})
     return rows
 
 

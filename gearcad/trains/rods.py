@@ -198,4 +198,4 @@ def add_pillar(w: Work, name: str, x: float, y: float, z0: float, z1: float, hol
         return
     nut = 0.8 * w.nominal + 0.5 * w.nominal  # nut (ISO 4032, 0.8 d, from memory) and a washer
     length = screw_length(hi - lo + nut)
-    w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, lo + length, holds, thread=w.screw))
+    w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, lo + length, holds, thread=w.screw, nut=True))
