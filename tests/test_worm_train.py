@@ -86,6 +86,9 @@ def test_the_report_carries_the_worm(built):
     assert any("not a brake" in f["message"] for f in worm["findings"] if f["check"] == "self-locking")
     assert worm["input_end"]["name"] == "worm input end"
     assert "## Worm stage" in (out / "report.md").read_text(encoding="utf-8")
+    # The wheel's outline: fitted B-splines within the plan's tolerance (1 µm) of the generated section.
+    fit = worm["wheel"]["outline"]
+    assert 0 < fit["deviation"] <= fit["tolerance"] == pytest.approx(1e-3) and fit["curves_per_space"] == 5
 
 
 def test_the_worm_axis_is_crossed_at_the_centre_distance(built):

@@ -47,7 +47,9 @@ def worm_data(plan, files: Mapping[str, Mapping[str, str]]) -> dict[str, Any] | 
                   "outside_diameter": p.outside_diameter, "root_diameter": p.wheel_root_diameter,
                   "face_width": p.wheel_face_width, "thickness": plan.spec.thickness,
                   "shaft": plan.shafts[0].name,
-                  "solid": "prism of the mid-plane section (the throat section) of the train's thickness"},
+                  "solid": "prism of the mid-plane section (the throat section) of the train's thickness, each tooth "
+                           "space one B-spline fitted to the worm's generated section",
+                  "outline": _outline(worm.outline, plan.tolerance)},
         "axis": {"x": worm.x, "y": worm.y, "z": worm.z, "heading": math.degrees(worm.direction),
                  "distance_to_wheel_axis": math.hypot(worm.x - plan.shafts[0].x, worm.y - plan.shafts[0].y)},
         "input_end": {"name": "worm input end", "x": end[0], "y": end[1], "z": end[2]},
@@ -56,6 +58,15 @@ def worm_data(plan, files: Mapping[str, Mapping[str, str]]) -> dict[str, Any] | 
                    for b in worm.blocks],
         "findings": [_finding(f) for f in a.findings],
     }
+
+
+def _outline(outline, tolerance: float) -> dict[str, Any] | None:
+    """The fitted outline against the generated section: deviations (mm), what was fitted and checked."""
+    if outline is None:
+        return None
+    return {"deviation": outline.deviation, "vertex_deviation": outline.vertex_deviation, "tolerance": tolerance,
+            "generating_positions": outline.positions, "section_points": outline.vertices,
+            "spline_spans": outline.spans, "curves_per_space": outline.pieces}
 
 
 def _files(files: Mapping[str, Mapping[str, str]], name: str) -> dict[str, str]:
@@ -122,7 +133,9 @@ def worm_markdown(data: Mapping[str, Any]) -> list[str]:
              f"- wheel {w['wheel']['name']}: {w['wheel']['teeth']} teeth, reference {w['wheel']['reference_diameter']:.4f}, "
              f"throat {w['wheel']['throat_diameter']:.4f}, outside {w['wheel']['outside_diameter']:.4f}, root "
              f"{w['wheel']['root_diameter']:.4f}; face width by the rule {w['wheel']['face_width']:.3f}, cut "
-             f"{w['wheel']['thickness']:g} thick; its solid is a {w['wheel']['solid']}",
+             f"{w['wheel']['thickness']:g} thick; its solid is a {w['wheel']['solid']}"
+             + (f" (within {w['wheel']['outline']['deviation'] * 1000:.2f} µm of its {w['wheel']['outline']['section_points']} "
+                "points)" if w["wheel"].get("outline") else ""),
              f"- efficiency, worm driving: {w['efficiency']:.1%} (friction {w['friction']['high']:g}; "
              f"{w['efficiency_low_friction']:.1%} at {w['friction']['low']:g}); wheel driving "
              f"{w['wheel_driving_efficiency']:.1%}; self-locking: {'yes' if w['self_locking'] else 'no'}",
