@@ -10,6 +10,8 @@ from __future__ import annotations
 import math
 from typing import Any, Mapping
 
+from ..trains.design_worm import WORM_PLACE
+
 __all__ = ["worm_data", "worm_shaft_rows", "worm_parts", "worm_steps", "worm_markdown", "WORM_RULE"]
 
 WORM_RULE = ("Ratio = output turns per input (worm) turn = worm starts / wheel teeth × the product of the spur "
@@ -53,6 +55,7 @@ def worm_data(plan, files: Mapping[str, Mapping[str, str]]) -> dict[str, Any] | 
         "axis": {"x": worm.x, "y": worm.y, "z": worm.z, "heading": math.degrees(worm.direction),
                  "distance_to_wheel_axis": math.hypot(worm.x - plan.shafts[0].x, worm.y - plan.shafts[0].y)},
         "input_end": {"name": "worm input end", "x": end[0], "y": end[1], "z": end[2]},
+        "place": {"stage": 1, "role": "input", "why": WORM_PLACE},
         "blocks": [{"name": b.name, "x": b.x, "y": b.y, "length": b.length, "width": b.width, "height": b.height,
                     "bore": b.bore, "screws": [list(s) for s in b.screws], "files": _files(files, b.name)}
                    for b in worm.blocks],
@@ -143,7 +146,8 @@ def worm_markdown(data: Mapping[str, Any]) -> list[str]:
              f"back plate's inner face, through ({axis['x']:.3f}, {axis['y']:.3f}) heading {axis['heading']:.1f}, "
              f"{axis['distance_to_wheel_axis']:.4f} from the wheel's axis",
              f"- input: the {end['name']} at ({end['x']:.3f}, {end['y']:.3f}, {end['z']:.3f}): couple the motor or "
-             "crank there", ""]
+             "crank there",
+             f"- where the worm sits: {w['place']['why']}", ""]
     lines += [f"- **{x['severity']}** {x['check']}: {x['message']}" for x in w["findings"]]
     lines += ["", "Bearing blocks (made parts; end view in the DXF, the prism in the STEP):", ""]
     lines += [f"- {b['name']} at ({b['x']:.3f}, {b['y']:.3f}): {b['length']:.2f} along the axis, {b['width']:.2f} wide, "
