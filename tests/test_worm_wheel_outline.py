@@ -147,3 +147,13 @@ def test_the_solid_has_six_faces_a_tooth(fitted):
         explorer.Next()
     assert faces == 6 * pair.wheel_teeth + 3  # per tooth 5 space faces and the land; the two ends; the bore
     assert build.volume == pytest.approx(part.area() * 3.0, rel=1e-4)
+
+
+def test_a_large_fine_wheel_keeps_its_five_curves():
+    # The sidereal drive's wheel (277 teeth, module 0.5): flanks so nearly straight that the fit's wobble flips
+    # the sign of their curvature; the fillet is still found, and the fit keeps within its share of the tolerance.
+    form = thread_form(make_worm_pair(1, 277, 0.5, diameter_factor=10, pressure_angle=20.0, flank="za"))
+    outline = wheel_outline(form, TOLERANCE)
+    assert outline.pieces == 5 and outline.deviation <= FIT_SHARE * TOLERANCE
+    r = np.hypot(*outline.loop.points().T)
+    assert r.min() == pytest.approx(form.centre_distance - form.tip_radius, abs=TOLERANCE)

@@ -223,16 +223,18 @@ def _space_curve(control: np.ndarray, knots: np.ndarray) -> tuple[Curve, np.ndar
     return Curve("worm-space", points, d / speed[:, None], params), curvature
 
 
-def _pieces(curve: Curve, curvature: np.ndarray, root_radius: float, near: float) -> list[Curve]:
+def _pieces(curve: Curve, curvature: np.ndarray, root_radius: float, near: float, module: float) -> list[Curve]:
     """The space cut where its shape changes: flank, fillet, root, fillet, flank.
 
-    A flank turns left (convex), the fillet the thread's tip corner cuts turns right (concave), the root is on
-    the circle the thread's tip line cuts (radius ``a - r_a1``, within ``near`` mm).  Each piece becomes one
+    A flank turns left (convex), the fillet the thread's tip corner cuts turns right (concave): the fillet is
+    where the curvature is below ``-1 / module`` (1/mm; a large wheel's flank is so nearly straight that the
+    fit's own wobble changes the sign of its curvature, the fillet's is tens to thousands of times that).  The
+    root is on the circle the thread's tip line cuts (radius ``a - r_a1``, within ``near`` mm).  Each piece becomes one
     face of the solid: the kernel's volume integration of a face whose curvature jumps inside it comes out
     a percent off (measured on the camera-slider wheel), and the writers fit each piece on its own.
     """
     n = len(curve.points)
-    concave = np.nonzero(curvature < 0)[0]
+    concave = np.nonzero(curvature < -1 / module)[0]
     low = np.nonzero(np.hypot(curve.points[:, 0], curve.points[:, 1]) <= root_radius + near)[0]
     cuts = []
     if len(concave):
@@ -321,7 +323,7 @@ def wheel_outline(form, tolerance: float, positions: int | None = None) -> Wheel
     chain = max(space_chains(ring, radius), key=lambda c: float(c.mean(axis=0) @ aim))
     control, knots = fit_space(chain, FIT_SHARE * tolerance)
     curve, curvature = _space_curve(control, knots)
-    pieces = _pieces(curve, curvature, form.centre_distance - form.tip_radius, FIT_SHARE * tolerance)
+    pieces = _pieces(curve, curvature, form.centre_distance - form.tip_radius, FIT_SHARE * tolerance, form.module)
     curves: list[Curve] = []
     for k in range(z):
         curves.extend(c.transformed(rotation=k * step) for c in pieces)
