@@ -95,12 +95,11 @@ def test_a_space_is_five_curves_and_the_outline_is_its_turned_copies(fitted):
         assert np.allclose(a.points[-1], b.points[0], atol=1e-12)
 
 
+@pytest.mark.parametrize("fitted", ["za-30"], indirect=True)  # a ZI worm's axial section is curved, no rack
 def test_the_za_wheel_s_flanks_are_the_involute_of_the_axial_rack(fitted):
     # ISO 21771: the straight-sided rack of pressure angle alpha_x cuts the involute of the base circle
     # r cos(alpha_x); the tooth's half angle at radius R is s / (2 r) + inv(alpha_x) - inv(alpha_R).
     pair, form, outline, _ = fitted
-    if pair.flank != "za":
-        pytest.skip("a ZI worm's axial section is curved: not a straight-sided rack")
     alpha = pair.axial_pressure_angle
     r = form.wheel_reference_radius
     rb = r * math.cos(alpha)
@@ -129,6 +128,7 @@ def test_a_limit_the_fit_cannot_reach_is_a_geometry_error():
         fit_space(chain, 1e-6)
 
 
+@pytest.mark.parametrize("fitted", ["za-30"], indirect=True)  # one solid: the OCP build is the slow part
 def test_the_solid_has_six_faces_a_tooth(fitted):
     # The prism through the writers' own path: OCP's checker and its volume against area x thickness (0.1 %).
     from OCP.TopAbs import TopAbs_FACE
@@ -137,8 +137,6 @@ def test_the_solid_has_six_faces_a_tooth(fitted):
     from gearcad.export.step_solid import build_solid
 
     pair, _, outline, _ = fitted
-    if pair.flank != "za":
-        pytest.skip("one solid is enough (the OCP build is the slow part)")
     part = Part("wheel", outline.loop, (), ((0.0, 0.0, 3.0),), "", symmetry=pair.wheel_teeth)
     build = build_solid(part, 3.0, TOLERANCE)
     faces, explorer = 0, TopExp_Explorer(build.solid, TopAbs_FACE)
