@@ -86,6 +86,9 @@ def test_the_report_carries_the_worm(built):
     assert any("not a brake" in f["message"] for f in worm["findings"] if f["check"] == "self-locking")
     assert worm["input_end"]["name"] == "worm input end"
     assert "## Worm stage" in (out / "report.md").read_text(encoding="utf-8")
+    # The wheel's outline: fitted B-splines within the plan's tolerance (1 µm) of the generated section.
+    fit = worm["wheel"]["outline"]
+    assert 0 < fit["deviation"] <= fit["tolerance"] == pytest.approx(1e-3) and fit["curves_per_space"] == 5
 
 
 def test_the_worm_axis_is_crossed_at_the_centre_distance(built):
@@ -238,6 +241,35 @@ def test_design_with_a_worm_matches_ratio_worm(capsys):
     got = [(s.driver.teeth, s.driven.teeth) for s in chosen.spec.stages[1:]] + [
         (chosen.spec.stages[0].worm.starts, chosen.spec.stages[0].driven.teeth)]
     assert got == teeth
+
+
+def test_a_sidereal_drive_from_a_1_rpm_motor(tmp_path, capsys):
+    # One sidereal day is 86164.0905 s (IERS mean sidereal day, from memory): from a 1 rpm motor the output
+    # turns 60 / 86164.0905 times a motor turn.  The search lists the worm last; design builds it first (the
+    # input); the kinematic model's ratio of the built train is sympy's product of the search's stages, and the
+    # assembly's interference check passes.
+    target = "60/86164.0905"
+    assert main(["ratio", target, "--worm", "1:90-360", "--json"]) == 0
+    best = json.loads(capsys.readouterr().out)["results"][0]
+    assert best["stages"][-1]["worm"] is True and not any(s["worm"] for s in best["stages"][:-1])
+    out = tmp_path / "sidereal"
+    assert main(["design", target, "--worm", "1:90-360", "-m", "0.5", "--tolerance", "1e-6", "--out", str(out),
+                 "--formats", "dxf", "--no-sheets", "--name", "sidereal"]) == 0
+    capsys.readouterr()
+    text = (out / "train.toml").read_text(encoding="utf-8")
+    spec = parse_train(text)
+    assert spec.stages[0].worm is not None and all(s.worm is None for s in spec.stages[1:])
+    assert "the worm is the input" in text.split("[[stage]]", 1)[1].splitlines()[0]
+    product = sympy.prod(sympy.Rational(s["driver"], s["driven"]) for s in best["stages"])
+    report = json.loads((out / "report.json").read_text(encoding="utf-8"))
+    built_ratio = sympy.Rational(report["ratio"]["numerator"], report["ratio"]["denominator"])
+    assert built_ratio == product
+    period = 60 / built_ratio  # seconds a turn of the output, the motor at 1 turn a minute
+    assert abs(float(period) / 86164.0905 - 1) < 1e-6
+    assert report["assembly"]["interference"] == []
+    assert not [f for f in report["findings"] if f["severity"] == "failure"]
+    assert report["worm"]["place"]["stage"] == 1 and "bevel" in report["worm"]["place"]["why"]
+    assert "where the worm sits" in (out / "report.md").read_text(encoding="utf-8")
 
 
 @pytest.mark.parametrize("args, word", [(["--worm", "0"], "starts"), (["--worm", "1", "--kind", "planetary"], "compound"),

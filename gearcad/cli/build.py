@@ -188,7 +188,7 @@ def summary(report: dict, folder: Path, files: dict, written: bool = True) -> st
     if r["relative_error"] is not None:
         lines.append(f"  target {r['target']} = {r['target_value']:.10g}; relative error {r['relative_error']:+.3e}")
     if report.get("worm"):
-        lines.append(f"  worm {report['worm']['starts']} start(s) across the plates, centre distance "
+        lines.append(f"  worm {report['worm']['starts']} start(s), the input (first stage), across the plates, centre distance "
                      f"{report['worm']['centre_distance']:.4f} mm; the wheel's sense follows the worm's hand, the spur "
                      f"stages turn the output the {'same way as' if r['direction'] == 'same' else 'opposite way to'} "
                      "the wheel")

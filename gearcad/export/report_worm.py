@@ -10,6 +10,8 @@ from __future__ import annotations
 import math
 from typing import Any, Mapping
 
+from ..trains.design_worm import WORM_PLACE
+
 __all__ = ["worm_data", "worm_shaft_rows", "worm_parts", "worm_steps", "worm_markdown", "WORM_RULE"]
 
 WORM_RULE = ("Ratio = output turns per input (worm) turn = worm starts / wheel teeth × the product of the spur "
@@ -47,15 +49,27 @@ def worm_data(plan, files: Mapping[str, Mapping[str, str]]) -> dict[str, Any] | 
                   "outside_diameter": p.outside_diameter, "root_diameter": p.wheel_root_diameter,
                   "face_width": p.wheel_face_width, "thickness": plan.spec.thickness,
                   "shaft": plan.shafts[0].name,
-                  "solid": "prism of the mid-plane section (the throat section) of the train's thickness"},
+                  "solid": "prism of the mid-plane section (the throat section) of the train's thickness, each tooth "
+                           "space one B-spline fitted to the worm's generated section",
+                  "outline": _outline(worm.outline, plan.tolerance)},
         "axis": {"x": worm.x, "y": worm.y, "z": worm.z, "heading": math.degrees(worm.direction),
                  "distance_to_wheel_axis": math.hypot(worm.x - plan.shafts[0].x, worm.y - plan.shafts[0].y)},
         "input_end": {"name": "worm input end", "x": end[0], "y": end[1], "z": end[2]},
+        "place": {"stage": 1, "role": "input", "why": WORM_PLACE},
         "blocks": [{"name": b.name, "x": b.x, "y": b.y, "length": b.length, "width": b.width, "height": b.height,
                     "bore": b.bore, "screws": [list(s) for s in b.screws], "files": _files(files, b.name)}
                    for b in worm.blocks],
         "findings": [_finding(f) for f in a.findings],
     }
+
+
+def _outline(outline, tolerance: float) -> dict[str, Any] | None:
+    """The fitted outline against the generated section: deviations (mm), what was fitted and checked."""
+    if outline is None:
+        return None
+    return {"deviation": outline.deviation, "vertex_deviation": outline.vertex_deviation, "tolerance": tolerance,
+            "generating_positions": outline.positions, "section_points": outline.vertices,
+            "spline_spans": outline.spans, "curves_per_space": outline.pieces}
 
 
 def _files(files: Mapping[str, Mapping[str, str]], name: str) -> dict[str, str]:
@@ -122,7 +136,9 @@ def worm_markdown(data: Mapping[str, Any]) -> list[str]:
              f"- wheel {w['wheel']['name']}: {w['wheel']['teeth']} teeth, reference {w['wheel']['reference_diameter']:.4f}, "
              f"throat {w['wheel']['throat_diameter']:.4f}, outside {w['wheel']['outside_diameter']:.4f}, root "
              f"{w['wheel']['root_diameter']:.4f}; face width by the rule {w['wheel']['face_width']:.3f}, cut "
-             f"{w['wheel']['thickness']:g} thick; its solid is a {w['wheel']['solid']}",
+             f"{w['wheel']['thickness']:g} thick; its solid is a {w['wheel']['solid']}"
+             + (f" (within {w['wheel']['outline']['deviation'] * 1000:.2f} µm of its {w['wheel']['outline']['section_points']} "
+                "points)" if w["wheel"].get("outline") else ""),
              f"- efficiency, worm driving: {w['efficiency']:.1%} (friction {w['friction']['high']:g}; "
              f"{w['efficiency_low_friction']:.1%} at {w['friction']['low']:g}); wheel driving "
              f"{w['wheel_driving_efficiency']:.1%}; self-locking: {'yes' if w['self_locking'] else 'no'}",
@@ -130,7 +146,8 @@ def worm_markdown(data: Mapping[str, Any]) -> list[str]:
              f"back plate's inner face, through ({axis['x']:.3f}, {axis['y']:.3f}) heading {axis['heading']:.1f}, "
              f"{axis['distance_to_wheel_axis']:.4f} from the wheel's axis",
              f"- input: the {end['name']} at ({end['x']:.3f}, {end['y']:.3f}, {end['z']:.3f}): couple the motor or "
-             "crank there", ""]
+             "crank there",
+             f"- where the worm sits: {w['place']['why']}", ""]
     lines += [f"- **{x['severity']}** {x['check']}: {x['message']}" for x in w["findings"]]
     lines += ["", "Bearing blocks (made parts; end view in the DXF, the prism in the STEP):", ""]
     lines += [f"- {b['name']} at ({b['x']:.3f}, {b['y']:.3f}): {b['length']:.2f} along the axis, {b['width']:.2f} wide, "

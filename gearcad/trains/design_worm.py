@@ -18,7 +18,14 @@ from typing import Any
 
 from ..errors import InputError, ToleranceError
 
-__all__ = ["design_worm", "DEFAULT_DIAMETER_FACTOR"]
+__all__ = ["design_worm", "DEFAULT_DIAMETER_FACTOR", "WORM_PLACE"]
+
+#: Where a train's worm sits and why, as the report, the README and the ratio search say it.
+WORM_PLACE = ("the worm stage is the first stage, the worm the train's input: its axis lies parallel to the plates "
+              "in two bearing blocks and a motor or crank turns its end; the ratio search lists the worm last, and "
+              "the ratio is the same product in either order; a worm after the spur stages would need a right-angle "
+              "link from a plate shaft (bevel or crossed-helical gears), which gearcad does not make; so the spur "
+              "stages' backlash reaches the output undivided by the worm's ratio")
 
 #: The worm's diameter factor when none is given: q = 10, a common choice for single-start worms
 #: (DIN 3976's preferred series holds it, from memory).
@@ -74,7 +81,8 @@ def design_worm(common: Any, limits: Any, worm: str, stages: int | None, *, diam
                              best.relative_error)
     base = TrainSpec(name=common.name, module=common.module, thickness=common.thickness, stages=(),
                      target=common.target, tooth_system=common.system, fabrication=common.profile, bore=common.bore,
-                     title=f"Train for {common.target} with a worm stage", solver=SolverSpec(ratio=common.target))
+                     title=f"Train for {common.target}: the worm first (the input), then the spur stages",
+                     solver=SolverSpec(ratio=common.target))
     spur = spec_with_stages(base, SimpleNamespace(stages=best.spur, shifts=None, idler=None)) if best.spur else base
     first = StageSpec(GearSpec(option.starts), GearSpec(best.wheel), worm=worm_spec)
     spec = replace(spur, stages=(first,) + spur.stages, target=common.target, solver=None)

@@ -69,7 +69,7 @@ def train_to_toml(spec: TrainSpec) -> str:
                   if getattr(s, key) is not None]
     for stage in spec.stages:
         if stage.worm is not None:
-            lines += ["", "[[stage]]", _worm_toml(stage.worm), f"driven = {_gear_toml(stage.driven)}"]
+            lines += ["", "[[stage]]  # the worm stage comes first: the worm is the input", _worm_toml(stage.worm), f"driven = {_gear_toml(stage.driven)}"]
         else:
             lines += ["", "[[stage]]", f"driver = {_gear_toml(stage.driver)}", f"driven = {_gear_toml(stage.driven)}"]
         if stage.module is not None:

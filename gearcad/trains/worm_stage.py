@@ -26,8 +26,9 @@ blocks' screws (bought rods through the back plate), their holes in it, the worm
 supports, and the worm's clearance check against every rod, sweep and plate (the worm-wheel
 mesh is a designed fit; the generated teeth are checked by the hob simulation's own residual).
 
-The wheel is the worm's generated mid-plane section (:func:`gearcad.geometry.worm_wheel.wheel_slice`),
-a flat part of the train's thickness; its figures in the gear table are those of the rack-generated
+The wheel is the worm's generated mid-plane section (:func:`gearcad.geometry.worm_wheel.tooth_space`), each
+tooth space one B-spline fitted to it (:mod:`gearcad.trains.worm_wheel_outline`), a flat part of the train's
+thickness; its figures in the gear table are those of the rack-generated
 gear of the axial pressure angle (the worm's axial section acts as the rack in the mid-plane).
 Pure: mm and radians inside.
 """
@@ -42,7 +43,7 @@ from fractions import Fraction
 import numpy as np
 
 from ..errors import InputError
-from ..geometry.shape import Loop, Part, line_curve, polygon_area
+from ..geometry.shape import Loop, Part
 from ..meshes.checks import Finding
 from .hardware import EDGE_RULE, REACH, SPACER_WALL, bridge_room, screw_size
 from .layout import LayoutGear, LayoutProblem, Link, mesh_phase, shaft_sides, solve_layout
@@ -88,7 +89,8 @@ class WormLayout:
     ``x, y, z``: the point of the worm's axis nearest the wheel's axis (plate coordinates, mm);
     ``direction``: the axis's heading in the plate, radians (``u`` runs along it); the thread spans
     ``u`` in ``[-thread/2, thread/2]``, the shaft ``[-shaft_end, shaft_end]``; ``input_end`` the point of
-    the input shaft's end (``u = +shaft_end``).
+    the input shaft's end (``u = +shaft_end``); ``outline`` the wheel's fitted mid-plane outline
+    (:class:`gearcad.trains.worm_wheel_outline.WheelOutline`: its deviation from the generated section).
     """
 
     pair: object  # gearcad.meshes.worm.WormPair
@@ -105,6 +107,7 @@ class WormLayout:
     blocks: tuple[WormBlock, ...]
     screw: str
     screw_diameter: float
+    outline: object = None  # gearcad.trains.worm_wheel_outline.WheelOutline
 
     def at(self, u: float) -> tuple[float, float]:
         """The plate point of the axis ``u`` mm along it from the nearest point to the wheel."""
@@ -158,34 +161,25 @@ def worm_analysis_of(spec: TrainSpec, pair, material: str):
 
 # -- the wheel ------------------------------------------------------------------------------------
 
-def _polygon_loop(points: np.ndarray) -> Loop:
-    """A counter-clockwise loop of straight segments through ``points`` (N, 2), mm."""
-    pts = np.asarray(points, dtype=float)
-    keep = np.r_[True, np.hypot(*np.diff(pts, axis=0).T) > 1e-9]
-    pts = pts[keep]
-    if np.hypot(*(pts[-1] - pts[0])) < 1e-9:
-        pts = pts[:-1]
-    if polygon_area(pts) < 0:
-        pts = pts[::-1]
-    nxt = np.roll(pts, -1, axis=0)
-    return Loop(tuple(line_curve(tuple(a), tuple(b)) for a, b in zip(pts, nxt)))
+def _wheel_parts(form, name: str, bore: float, fab, tolerance: float) -> tuple[Part, Part, object]:
+    """The wheel's mid-plane section with its bore, drawn and cut (kerf applied), and its fitted outline, mm.
 
-
-def _wheel_parts(form, name: str, bore: float, fab, tolerance: float) -> tuple[Part, Part]:
-    """The wheel's mid-plane section with its bore: drawn and cut (kerf applied), mm."""
+    Each tooth space is one B-spline fitted to the generated section (:mod:`gearcad.trains.worm_wheel_outline`),
+    each tip land an arc: the writers fit and draw it as they do every gear's true curves.
+    """
     from ..geometry.offset import offset_loop
-    from ..geometry.worm_wheel import wheel_slice
+    from .worm_wheel_outline import wheel_outline
 
-    section = wheel_slice(form, 0.0, throated=False).simplify(tolerance / 2)
-    outer = _polygon_loop(np.asarray(section.exterior.coords))
+    outline = wheel_outline(form, tolerance)
+    outer = outline.loop
     hole = bore + fab.bore_clearance
     label = f"{name}  z{form.wheel_teeth}  mx{form.module:g}  worm wheel, mid-plane section"
     part = Part(name, outer, (), ((0.0, 0.0, hole),), label, symmetry=form.wheel_teeth)
     if fab.kerf == 0:
-        return part, part
+        return part, part, outline
     cut = Part(name, offset_loop(outer, fab.kerf / 2, tolerance), (), ((0.0, 0.0, hole - fab.kerf),), label,
                symmetry=form.wheel_teeth)
-    return part, cut
+    return part, cut, outline
 
 
 def _wheel_gear(pair, system):
@@ -440,7 +434,7 @@ def plan_worm(spec: TrainSpec, tolerance: float, load) -> tuple[object, dict[int
     for i, side in wanted.items():
         layers = [g.layer for g in lgears if g.shaft == i]
         bridge_layers.add(max(layers) + 1 if side == "front" else min(layers))
-    wheel_part, wheel_cut = _wheel_parts(form, "s1-wheel", bore, fab, tolerance)
+    wheel_part, wheel_cut, outline = _wheel_parts(form, "s1-wheel", bore, fab, tolerance)
     gear_stub = [PlannedGear("s1-wheel", "driven", 1, wheel, stage.driven, 0, 0, bore, wheel_part, wheel_cut,
                              phi - math.pi / 2, 0.0)]
     heights, front_z = _heights(spec, fab, gear_stub + spur_gears, sizes, bridge_layers)
@@ -459,16 +453,27 @@ def plan_worm(spec: TrainSpec, tolerance: float, load) -> tuple[object, dict[int
                    for i, ((x, y), (back, front)) in enumerate(zip(positions, sides)))
     plates = frame_plates(spec, fab, layout, list(shafts), tolerance, front_z)
     x, y = positions[0] + pair.centre_distance * np.array([math.cos(phi), math.sin(phi)])
-    worm = _worm_layout(pair, analysis, form, sizes, fab, float(x), float(y), phi + math.pi / 2, tolerance)
+    worm = dataclasses.replace(_worm_layout(pair, analysis, form, sizes, fab, float(x), float(y), phi + math.pi / 2,
+                                            tolerance), outline=outline)
     findings = [_renamed_finding(f) for f in (spur.findings if spur else ())]
     findings += [dataclasses.replace(f, check=f"worm {f.check}") for f in analysis.findings]
     findings += process_findings("s1-wheel", wheel, wheel_part.outer.points(), fab.process, fab.tool_radius,
                                  fab.min_feature)
     findings.append(_face_finding(pair, t))
+    findings.append(_outline_finding(outline, tolerance))
     ratio = _network_ratio(pair.starts, pair.wheel_teeth, spur_gears, spur_meshes, count - 1)
     plan = Plan(spec, system, fab, gears, tuple(spur_meshes), shafts, plates, layout, ratio,
                 spur.direction if spur else "same", tolerance, tuple(findings), worm=worm)
     return plan, wanted
+
+
+def _outline_finding(outline, tolerance: float) -> Finding:
+    """The wheel's drawn outline against the generated section it was fitted to."""
+    severity = "ok" if outline.deviation <= tolerance else "failure"
+    return Finding("worm wheel outline", severity, outline.deviation, tolerance,
+                   f"s1-wheel: each tooth space one B-spline within {outline.deviation * 1000:.2f} µm of the worm's "
+                   f"generated mid-plane section ({outline.positions} generating positions, {outline.vertices} points; "
+                   f"allowed {tolerance * 1000:g} µm)")
 
 
 def _face_finding(pair, thickness: float) -> Finding:
