@@ -71,7 +71,9 @@ def run_worm_ratio(args: argparse.Namespace, limits: Any, progress: Any) -> int:
                f"limits: {limits.describe()}; worm {worm.starts} start{'s' if worm.starts > 1 else ''}, wheel "
                f"{worm.wheel_min}-{worm.wheel_max} teeth\n"
                "ratio = output turns per input turn = product of driver/driven (worm: starts/wheel teeth); "
-               "the worm's axis crosses the wheel's, so the output's sense follows the worm's hand")
+               "the worm's axis crosses the wheel's, so the output's sense follows the worm's hand\n"
+               "listed worm last; design and build make the worm the first stage (the train's input, across the "
+               "plates): the same product, so the same ratio")
     if args.json:
         print_json({"target": head, "results": [worm_train_json(t, tolerance) for t in shown],
                     "tolerance": tolerance, "reach": reach.as_json(),
