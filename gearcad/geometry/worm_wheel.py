@@ -45,7 +45,7 @@ from shapely.ops import unary_union
 from ..errors import InputError
 
 __all__ = ["ThreadForm", "half_thickness", "axial_section", "transverse_flank", "worm_slice", "wheel_slice", "wheel_slices",
-           "interference", "Interference", "tooth_space", "default_positions"]
+           "interference", "Interference", "tooth_space", "default_positions", "least_gaps"]
 
 
 @dataclass(frozen=True)
@@ -314,3 +314,23 @@ def interference(form: ThreadForm, slices: list[tuple[float, object]], positions
                 if piece.area > 0:
                     worst_depth = max(worst_depth, 2 * piece.area / piece.length)
     return Interference(worst_area, worst_depth, positions)
+
+
+def least_gaps(form: ThreadForm, slices: list[tuple[float, object]], positions: int = 72) -> list[float]:
+    """The least distance between the worm and the wheel in each slice over a full turn of the worm, mm.
+
+    A wheel the worm generated touches it in every slice its thread reaches (line contact: gaps of the order
+    of the scallops); a wheel that meets the worm at a point leaves gaps growing away from the contact.  The
+    positions are those of :func:`interference`; an overlapping slice reads 0.
+    """
+    ratio = form.starts / form.wheel_teeth
+    gaps = []
+    for c, wheel in slices:
+        best = math.inf
+        for k in range(positions):
+            psi = 2 * math.pi * (k + 0.5) / positions
+            worm = worm_slice(form, c, psi)
+            if not worm.is_empty:
+                best = min(best, rotate(wheel, psi * ratio, origin=(0, 0), use_radians=True).distance(worm))
+        gaps.append(best)
+    return gaps
