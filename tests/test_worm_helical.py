@@ -92,7 +92,7 @@ def test_point_contact_against_the_generated_wheels_line_contact(handbook):
 
 
 @pytest.mark.slow
-def test_solid_is_valid_and_holds_the_twisted_sections_area(handbook):
+def test_solid_is_valid_and_holds_the_twisted_sections_area(handbook, tmp_path):
     # OCP's checker (BRepCheck_Analyzer); a screw motion keeps volume, so the solid (OCP's GProp) holds the
     # transverse area (shapely, on the outline drawn within 0.01 um) times the face width.  The solid's B-splines
     # pass within 1 um of the true outline, so the areas may differ by the perimeter times 1 um (measured:
@@ -104,8 +104,13 @@ def test_solid_is_valid_and_holds_the_twisted_sections_area(handbook):
     from gearcad.export.step_worm import is_valid
     from gearcad.export.step_worm_wheel import helical_wheel_solid, solid_volume
 
+    import cadquery as cq
+
+    from gearcad.export.step import write_step
+
     pair, form, wheel = handbook
-    solid = helical_wheel_solid(wheel)
+    write_step(helical_wheel_solid(wheel), tmp_path / "wheel.step")
+    solid = cq.importers.importStep(str(tmp_path / "wheel.step")).val().wrapped  # the file, read back
     assert is_valid(solid)
     section = Polygon(gear_loop(wheel.gear, 1e-5).points())
     bound = section.length * 1e-3 * wheel.face_width
