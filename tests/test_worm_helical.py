@@ -38,7 +38,7 @@ def test_figures_are_the_worm_wheels_in_the_transverse_section(name, system):
     wheel = helical_wheel(pair, system)
     g = wheel.gear
     assert abs(wheel.transverse_module - pair.module) <= 1e-12
-    assert wheel.helix_angle == pair.lead_angle and wheel.hand == "right"
+    assert wheel.helix_angle == pytest.approx(pair.lead_angle, abs=1e-15) and wheel.hand == "right"
     assert wheel.normal_module == pytest.approx(pair.module * math.cos(pair.lead_angle), rel=1e-15)
     assert g.system.pressure_angle == pytest.approx(pair.axial_pressure_angle, abs=1e-13)
     assert g.reference_diameter == pytest.approx(pair.module * pair.wheel_teeth, rel=1e-13)

@@ -43,13 +43,14 @@ def midplane_drawing(form: Any, *, throated: bool = True, helical: Any = None) -
 
 
 def write_worm_files(form: Any, folder: str | os.PathLike[str], *, solids: bool = False, throated: bool = True,
-                     stem: str = "worm", slices: int = 17, helical: Any = None) -> list[Path]:
+                     stem: str = "worm", slices: int | None = None, helical: Any = None) -> list[Path]:
     """Write the mid-plane DXF and SVG of the wheel and, with ``solids``, the worm and the wheel as STEP and
     STL and the two in mesh as an assembly STEP (``<stem>-pair.step``: the wheel about z at the origin, the
     worm's axis along x at the centre distance).
 
     The solids are all built before any file is written, so a solid the kernel refuses leaves no file.
-    ``slices`` is the least count of the wheel's slices across its face width.  ``helical`` (a
+    ``slices`` is the least count of the wheel's slices across its face width (default
+    :data:`gearcad.geometry.worm_wheel_sections.SLICES`).  ``helical`` (a
     :class:`gearcad.meshes.worm_helical.HelicalWheel`) replaces the generated wheel by that helical gear
     (``throated`` is then not used).
     Returns the paths written.  Every file is written under a temporary name and renamed into place.
@@ -97,5 +98,6 @@ def _build_solids(form: Any, throated: bool, slices: int, helical: Any = None) -
         from .step_worm_wheel import helical_wheel_solid
 
         return worm, helical_wheel_solid(helical)
-    spans = tooth_sections(form, throated=throated, count=slices)
+    spans = tooth_sections(form, throated=throated) if slices is None else tooth_sections(form, throated=throated,
+                                                                                          count=slices)
     return worm, wheel_solid(form, spans, sections_volume(spans))

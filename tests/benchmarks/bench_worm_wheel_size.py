@@ -29,9 +29,10 @@ PAIRS = [  # (starts, wheel teeth, module mm, diameter factor): the brief's 7 MB
     (1, 30, 2.0, 10.0),
     (2, 30, 3.0, 44 / 3),
 ]
-SETTINGS = [  # (runs, slices)
+SETTINGS = [  # (runs, slices); the default is (32, 8, 32), 11
     ((48, 12, 48), 17),
     ((32, 8, 32), 17),
+    ((32, 8, 32), 11),
     ((24, 6, 24), 17),
     ((16, 6, 16), 17),
     ((24, 6, 24), 11),
