@@ -57,7 +57,7 @@ def test_plastic_wheel_without_friction_figures_and_the_override(capsys):
     (["1", "30", "-m", "1", "--worm-diameter", "1e9"], "worm reference diameter"),
     (["x", "30", "-m", "1", "--diameter-factor", "10"], "worm starts must be a whole number"),
     (["1", "30", "-m", "1"], "--diameter-factor --worm-diameter is required"),
-    (["1", "30", "-m", "1", "--diameter-factor", "10", "--flank", "zk"], "invalid choice"),
+    (["1", "30", "-m", "1", "--diameter-factor", "10", "--flank", "zx"], "invalid choice"),
 ])
 def test_bad_input_is_one_line_exit_2(capsys, argv, word):
     code, out, err = run(capsys, "worm", *argv)

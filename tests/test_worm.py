@@ -140,7 +140,7 @@ def test_lead_angle_beyond_the_flank_forms_range():
 @pytest.mark.parametrize("kwargs, word", [
     (dict(starts=0), "worm starts"), (dict(starts=1.5), "worm starts"), (dict(wheel_teeth=10 ** 9), "wheel teeth"),
     (dict(module=1e9), "module"), (dict(module=float("nan")), "module"), (dict(diameter_factor=1e6), "diameter factor"),
-    (dict(pressure_angle=45), "pressure angle"), (dict(flank="zk"), "flank form"),
+    (dict(pressure_angle=45), "pressure angle"), (dict(flank="zx"), "flank form"),
 ])
 def test_bad_values_are_named(kwargs, word):
     args = dict(starts=1, wheel_teeth=40, module=2, diameter_factor=10)

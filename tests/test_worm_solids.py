@@ -17,6 +17,9 @@ PAIRS = {
     "handbook": lambda: make_worm_pair(2, 30, 3, worm_diameter=44),
     "single-start-q10": lambda: make_worm_pair(1, 40, 2, diameter_factor=10),
     "zi-4-starts": lambda: make_worm_pair(4, 41, 2.5, diameter_factor=11, flank="zi"),
+    # ZN and ZK (tests/test_worm_flanks.py checks their sections on the sampled surfaces, not in the kernel).
+    "zn-4-starts": lambda: make_worm_pair(4, 41, 2.5, diameter_factor=9, flank="zn", pressure_angle=22.5),
+    "zk-handbook": lambda: make_worm_pair(2, 30, 3, worm_diameter=44, flank="zk", tool_diameter=80),
 }
 _BUILT: dict = {}
 

@@ -101,3 +101,17 @@ def test_throated_rim_and_straight_face(khk):
     expected = min(khk.centre_distance - math.sqrt(khk.throat_surface_radius ** 2 - c * c), khk.wheel_outside_radius)
     assert far(throated) == pytest.approx(expected, abs=1e-3)
     assert far(straight) == pytest.approx(khk.wheel_throat_radius, abs=1e-3)
+
+
+def test_flank_runs_share_their_points_between_the_bottom_and_the_flank(khk):
+    # Each flank run of a tooth's slice (gearcad.geometry.worm_wheel_sections) puts half its points below a fifth
+    # of its depth and half above, in every slice: the n-th point stays on the same feature across the face.
+    from gearcad.geometry.worm_wheel_sections import BOTTOM_DEPTH, BOTTOM_POINTS, tooth_section
+
+    for c in (0.0, 0.45 * khk.face_width):
+        up, _, down = tooth_section(khk, c).runs
+        for run in (up, down[::-1]):
+            r = np.hypot(run[:, 0], run[:, 1])
+            split = r.min() + BOTTOM_DEPTH * (r.max() - r.min())
+            assert np.all(np.diff(r[len(r) // 2:]) > 0)  # the flank part rises
+            assert np.sum(r <= split + 1e-4) == round(BOTTOM_POINTS * len(r))  # the split point itself included

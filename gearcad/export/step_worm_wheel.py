@@ -34,7 +34,7 @@ if TYPE_CHECKING:
     from ..geometry.worm_wheel import ThreadForm
     from ..geometry.worm_wheel_sections import ToothSection
 
-__all__ = ["wheel_solid", "placed_worm", "solid_volume", "WHEEL_VOLUME_TOLERANCE"]
+__all__ = ["wheel_solid", "helical_wheel_solid", "placed_worm", "solid_volume", "WHEEL_VOLUME_TOLERANCE"]
 
 WHEEL_VOLUME_TOLERANCE = 5e-3  # relative: the wheel's volume against the slices' areas integrated (Simpson)
 
@@ -187,6 +187,21 @@ def wheel_solid(form: "ThreadForm", spans: Sequence[Sequence["ToothSection"]], e
         raise GeometryError(f"the wheel's solid has {volume:.6g} mm3 against {expected_volume:.6g} mm3 from its "
                             f"slices (allowed: within {WHEEL_VOLUME_TOLERANCE:.1%})")
     return solid
+
+
+def helical_wheel_solid(wheel: Any, tolerance: float = 1e-3) -> Any:
+    """A wheel approximated by a helical gear (:class:`gearcad.meshes.worm_helical.HelicalWheel`) as a solid (an
+    OCP shape), axis along z, mid-face at z = 0 (as the generated wheel's mid-plane).
+
+    The section is swept along the helix by :func:`gearcad.export.step_helical.helical_solid`, which checks it in
+    OCP's checker and its volume against the transverse area times the face width; ``tolerance`` is the largest
+    distance of the outline's points from its B-spline edges, mm.
+    """
+    from ..meshes.worm_helical import helical_wheel_part
+    from .step_helical import _placed, helical_solid
+
+    build = helical_solid(helical_wheel_part(wheel, tolerance), wheel.face_width, wheel.twist, tolerance)
+    return _placed(build.solid, 0.0, -wheel.face_width / 2)
 
 
 def placed_worm(worm: Any, form: "ThreadForm") -> Any:

@@ -15,7 +15,9 @@ thread centred at ``u = 0`` occupies ``|u| <= h(r)`` for ``r_f <= r <= r_a``, wi
   ``cos(alpha_r) = r_b / r``.  Turning that point back to ``phi = 0`` moves it axially by the lead
   parameter ``p = p_z / (2 pi)`` times the angle, so ``h(r) = p_x / 4 - p (inv(alpha_r) - inv(alpha_r1))``.
   Its slope at ``r_1`` is ``p tan(alpha_t) / r_1 = tan(gamma) tan(alpha_t) = tan(alpha_x)``
-  (checked in the tests).
+  (checked in the tests);
+* ZN (straight in the thread's normal section) and ZK (a biconical disc tool's envelope): no closed form
+  in ``r`` for ZK, and both by two constructions, in :mod:`gearcad.geometry.worm_flanks`.
 
 The worm is a right-hand screw: the section at angle ``phi`` is the axial one moved by ``p phi`` along the
 axis, ``phi`` turning about +x (from the wheel's centre, ``-y``, towards ``-z``), and turning the worm by
@@ -45,7 +47,7 @@ from shapely.ops import unary_union
 from ..errors import InputError
 
 __all__ = ["ThreadForm", "half_thickness", "axial_section", "transverse_flank", "worm_slice", "wheel_slice", "wheel_slices",
-           "interference", "Interference", "tooth_space", "default_positions"]
+           "interference", "Interference", "tooth_space", "default_positions", "least_gaps"]
 
 
 @dataclass(frozen=True)
@@ -60,7 +62,7 @@ class ThreadForm:
     reference_radius, tip_radius, root_radius : float
         Of the worm, mm.
     flank : str
-        ``"za"`` or ``"zi"``.
+        ``"za"``, ``"zi"``, ``"zn"`` or ``"zk"``.
     axial_pressure_angle : float
         ZA's flank angle in the axial section, radians.
     base_radius : float
@@ -73,6 +75,10 @@ class ThreadForm:
         The wheel's tip radius in the mid-plane, its outside radius and the radius of its concave rim, mm.
     face_width : float
         The wheel's face width, mm.
+    normal_pressure_angle : float
+        ZN: the flank line's angle in the thread's normal section; ZK: the tool's profile angle, radians.
+    tool_radius : float
+        ZK: the tool's radius where it meets the worm's reference cylinder, mm (0 otherwise).
     """
 
     starts: int
@@ -90,6 +96,8 @@ class ThreadForm:
     wheel_outside_radius: float
     throat_surface_radius: float
     face_width: float
+    normal_pressure_angle: float = 0.0
+    tool_radius: float = 0.0
 
     @property
     def axial_pitch(self) -> float:
@@ -123,7 +131,11 @@ def half_thickness(form: ThreadForm, radius: np.ndarray | float) -> np.ndarray:
         inv = _involute_angle(r_eff, form.base_radius) - _involute_angle(np.array(form.reference_radius), form.base_radius)
         # below the base cylinder the flank goes on radially (the thread is not involute there)
         return quarter - form.lead_parameter * inv
-    raise InputError(f"flank form must be za or zi, got {form.flank!r}")
+    if form.flank in ("zn", "zk"):
+        from .worm_flanks import axial_profile
+
+        return axial_profile(form, r)
+    raise InputError(f"flank form must be za, zi, zn or zk, got {form.flank!r}")
 
 
 def axial_section(form: ThreadForm, samples: int = 64, inner_radius: float | None = None) -> np.ndarray:
@@ -314,3 +326,23 @@ def interference(form: ThreadForm, slices: list[tuple[float, object]], positions
                 if piece.area > 0:
                     worst_depth = max(worst_depth, 2 * piece.area / piece.length)
     return Interference(worst_area, worst_depth, positions)
+
+
+def least_gaps(form: ThreadForm, slices: list[tuple[float, object]], positions: int = 72) -> list[float]:
+    """The least distance between the worm and the wheel in each slice over a full turn of the worm, mm.
+
+    A wheel the worm generated touches it in every slice its thread reaches (line contact: gaps of the order
+    of the scallops); a wheel that meets the worm at a point leaves gaps growing away from the contact.  The
+    positions are those of :func:`interference`; an overlapping slice reads 0.
+    """
+    ratio = form.starts / form.wheel_teeth
+    gaps = []
+    for c, wheel in slices:
+        best = math.inf
+        for k in range(positions):
+            psi = 2 * math.pi * (k + 0.5) / positions
+            worm = worm_slice(form, c, psi)
+            if not worm.is_empty:
+                best = min(best, rotate(wheel, psi * ratio, origin=(0, 0), use_radians=True).distance(worm))
+        gaps.append(best)
+    return gaps
