@@ -323,3 +323,17 @@ def test_the_example_train_file_reaches_its_target():
     assert sympy.Rational(plan.ratio.numerator, plan.ratio.denominator) == sympy.Rational(1, 30) * sympy.Rational(15, 45)
     assert sympy.Rational(plan.ratio.numerator, plan.ratio.denominator) == sympy.sympify(spec.target)
     assert not [f for f in plan.findings if f.severity == "failure"]
+
+
+def test_a_zn_worm_stage_plans_with_its_own_wheel():
+    # A ZN worm (straight in the thread's normal section, DIN 3975) cuts a wheel of its own: the stage's wheel is the
+    # hob simulation of the ZN thread (geometry.worm_flanks), its fitted outline within the tolerance, and it differs
+    # from the ZA wheel's (the two forms' axial sections differ away from the reference line).
+    from gearcad.trains.planner import plan_train
+
+    za = plan_train(parse_train(TRAIN))
+    zn = plan_train(parse_train(TRAIN.replace('form = "ZA"', 'form = "ZN"')))
+    fit = next(f for f in zn.findings if f.check == "worm wheel outline")
+    assert zn.spec.stages[0].worm.form == "zn" and fit.severity == "ok" and fit.value <= fit.limit
+    a, n = za.gear("s1-wheel").part.outer.points(), zn.gear("s1-wheel").part.outer.points()
+    assert not (a.shape == n.shape and np.allclose(a, n, atol=1e-6))

@@ -59,7 +59,7 @@ class GearSpec:
             raise InputError(f"bore must be greater than 0 mm, got {self.bore!r}")
 
 
-WORM_FORMS = ("za", "zi")  # flank forms a worm stage takes (gearcad.meshes.worm.FLANK_FORMS)
+WORM_FORMS = ("za", "zi", "zn")  # flank forms a worm stage takes (ZK needs its tool: only in `gearcad worm`) (gearcad.meshes.worm.FLANK_FORMS)
 
 
 @dataclass(frozen=True)
