@@ -35,7 +35,7 @@ import numpy as np
 
 from ..errors import InputError
 from ..validate import as_int
-from .candidates import FLOAT_MARGIN, ScanCandidates, SortedCandidates
+from .candidates import FLOAT_MARGIN, MAX_RAW, ScanCandidates, SortedCandidates
 from .limits import MAX_STAGES, Limits
 from .products import multiset_count, smooth_mask
 from .reach import largest_stage_ratio
@@ -268,9 +268,12 @@ class _Search:
             if self.window(*generator.within(eps, self.progress), eps):
                 return None
             done = eps
-            # ratios found grow about linearly with eps: aim at the count with a margin (x2 to x8 a round)
+            # ratios found grow about linearly with the raw candidates: aim at the count with a margin (x2 to x8
+            # a round); where the stream is pruned (see ScanCandidates.least_streamed) the work grows faster than eps
             have = len(self.found)
-            eps *= 4 if have == 0 else min(8.0, max(2.0, 1.5 * self.count / have))
+            grow = 4 if have == 0 else min(8.0, max(2.0, 1.5 * self.count / have))
+            wanted = generator.eps_for_budget(min(generator.raw_estimate(eps) * grow, MAX_RAW) * (1 - 1e-9))
+            eps = min(max(wanted, eps * 1.25), eps * grow)
         return done
 
     def _report(self, fraction: float) -> None:

@@ -14,7 +14,7 @@ from typing import Iterator, Sequence
 import numpy as np
 
 __all__ = [
-    "multiset_count", "product_set", "sieve_square_products", "products_upto", "product_blocks", "product_sum",
+    "multiset_count", "product_set", "sieve_square_products", "products_upto", "product_blocks", "product_histogram",
     "smooth_mask", "Factorizer", "sum_lower_bound",
 ]
 
@@ -121,24 +121,59 @@ def product_blocks(teeth: Sequence[int], k: int, q_range: tuple[float, float] = 
             yield rows, cols
 
 
-def product_sum(teeth: Sequence[int], k: int, q_range: tuple[float, float] = (0.0, math.inf)) -> float:
-    """Sum of the products within ``q_range`` that :func:`product_blocks` yields (for sizing a search)."""
+def product_histogram(teeth: Sequence[int], k: int, q_range: tuple[float, float], bins: int = 1024
+                      ) -> tuple[float, np.ndarray]:
+    """Sums of the products :func:`product_blocks` yields within ``q_range``, in ``bins`` equal bins from 0.
+
+    Returns ``(width, sums)``: ``sums[i]`` adds the products in ``[i width, (i + 1) width)``
+    (for sizing a search: the sum above any bound is read off without another pass).
+    """
     low, high = q_range
-    total = 0.0
+    width = high / bins
+    sums = np.zeros(bins + 1)
     for rows, cols in product_blocks(teeth, k, q_range):
-        block = np.multiply.outer(rows.astype(float), cols.astype(float))
-        total += float(block[(block >= low) & (block <= high)].sum())
-    return total
+        block = np.multiply.outer(rows.astype(float), cols.astype(float)).ravel()
+        block = block[(block >= low) & (block <= high)]
+        sums += np.bincount((block * (1 / width)).astype(np.int64), weights=block, minlength=bins + 1)[:bins + 1]
+    return width, sums
 
 
 def smooth_mask(values: np.ndarray, largest_factor: int) -> np.ndarray:
-    """True where every prime factor of ``values`` is at most ``largest_factor``."""
+    """True where every prime factor of ``values`` is at most ``largest_factor`` (False at values below 1)."""
+    values = np.asarray(values)
+    if len(values) and int(values.max()) < 2 ** 32 and int(values.min()) >= 1:
+        return _smooth_mask_32(values.astype(np.uint32), largest_factor)
     rest = values.astype(np.int64).copy()
     for prime in _primes_up_to(largest_factor):
         at = np.flatnonzero(rest % prime == 0)  # one pass over all; then only the divisible ones again
         while len(at):
             rest[at] //= prime
             at = at[rest[at] % prime == 0]
+    return rest == 1
+
+
+def _smooth_mask_32(rest: np.ndarray, largest_factor: int) -> np.ndarray:
+    """:func:`smooth_mask` of values from 1 to 2^32 - 1 (uint32, changed in place), without a division per prime.
+
+    An odd ``p`` has an inverse ``p'`` modulo 2^32, and ``n`` is a multiple of ``p``
+    exactly when ``n p' mod 2^32 <= (2^32 - 1) // p``, the product then being ``n / p``
+    (the divisibility test by multiplication of Granlund and Montgomery, 1994); uint32
+    products wrap modulo 2^32 by themselves.  Factors 2 go at once: ``n`` over its
+    lowest set bit.
+    """
+    if largest_factor >= 2:
+        rest //= rest & (~rest + np.uint32(1))
+    quotient = np.empty_like(rest)
+    divisible = np.empty(len(rest), dtype=bool)
+    for prime in _primes_up_to(largest_factor)[1:]:
+        inverse, limit = np.uint32(pow(prime, -1, 1 << 32)), np.uint32((2 ** 32 - 1) // prime)
+        np.multiply(rest, inverse, out=quotient)
+        np.less_equal(quotient, limit, out=divisible)
+        at = np.flatnonzero(divisible)
+        while len(at):
+            rest[at] = quotient[at]
+            quotient[at] = rest[at] * inverse
+            at = at[quotient[at] <= limit]
     return rest == 1
 
 
