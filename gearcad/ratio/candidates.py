@@ -23,7 +23,7 @@ from typing import Callable, Sequence
 
 import numpy as np
 
-from .products import product_blocks, product_histogram, product_set, products_upto, smooth_mask
+from .products import product_blocks, product_set, product_tails, products_upto, smooth_mask
 
 __all__ = ["SortedCandidates", "ScanCandidates", "FLOAT_MARGIN", "Progress", "not_exact"]
 
@@ -37,8 +37,8 @@ _DISTINCT_BLOCK = 1 << 16
 _SCREEN_BATCH = 1 << 20
 #: Most raw candidates one scan round may produce (bounds its time; memory is per block, screened at once).
 MAX_RAW = 2e7
-#: Bins of the histogram of streamed products (sizes the windows).
-_BINS = 1024
+#: Edges (log-spaced) at which the sums of streamed products are known (they size the windows).
+_EDGES = 96
 #: Largest denominator of an exact target whose quantum (1 / v) prunes the stream (float rounding stays far below it).
 _QUANTUM_DENOMINATOR = 100_000
 Progress = Callable[[float], None]
@@ -153,16 +153,16 @@ class ScanCandidates:
         self.q_range = (self.p_min / self.t * (1 - 1e-6), self.p_max / self.t * (1 + 1e-6))
         self.quantum = self._quantum()
         self.distinct = None
-        if self.k == 4 and self.q_range[1] <= DISTINCT_LIMIT:  # few enough to list once, each product once
-            found = products_upto(self.teeth, self.k, int(self.q_range[1]))
-            self.distinct = found[found >= self.q_range[0]]
-            self.width = self.q_range[1] / _BINS
-            values = self.distinct.astype(float)
-            self.sums = np.bincount((values * (1 / self.width)).astype(np.int64), weights=values,
-                                    minlength=_BINS + 1)[:_BINS + 1]
+        low, high = self.q_range
+        self.edges = np.geomspace(max(low, 1.0), high, _EDGES)
+        if self.k == 4 and high <= DISTINCT_LIMIT:  # few enough to list once, each product once
+            found = products_upto(self.teeth, self.k, int(high))
+            self.distinct = found[found >= low]
+            prefix = np.concatenate([[0], np.cumsum(self.distinct)])  # int64: at most ~1e7 products below 2^28
+            self.tails = (prefix[-1] - prefix[np.searchsorted(self.distinct, self.edges)]).astype(float)
         else:
-            self.width, self.sums = product_histogram(self.teeth, self.k, self.q_range, _BINS)
-        self.above = np.cumsum(self.sums[::-1])[::-1]  # above[i]: sum of the streamed products from bin i up
+            self.tails = product_tails(self.teeth, self.k, self.edges)
+        self.tails = np.maximum(self.tails - self.tails[-1], 0.0)  # the products up to the range's top only
 
     def _quantum(self) -> float:
         """The least ``|x - C|`` of a pair not of the exact ratio (``x = t E``), or 0 when unknown.
@@ -197,10 +197,13 @@ class ScanCandidates:
         for start in range(first, len(self.distinct), _DISTINCT_BLOCK):
             yield self.distinct[start:start + _DISTINCT_BLOCK], one
 
+    def streamed_sum(self, least: float) -> float:
+        """About the sum of the streamed products from ``least`` on (the tail sums, interpolated)."""
+        return float(np.interp(math.log(max(least, 1.0)), np.log(self.edges), self.tails))
+
     def raw_estimate(self, eps: float) -> float:
         """About how many raw candidates a window of ``eps`` gives: ``2 eps x`` integers per streamed product."""
-        index = min(int(self.least_streamed(eps) / self.width), _BINS)
-        return 2 * eps * self.t * float(self.above[index])
+        return 2 * eps * self.t * self.streamed_sum(self.least_streamed(eps))
 
     def eps_for_budget(self, count: float) -> float:
         """An eps that yields about ``count`` raw candidates (bisection of :meth:`raw_estimate`)."""
@@ -233,7 +236,7 @@ class ScanCandidates:
             pending.clear()
 
         least = self.least_streamed(eps)
-        total, done = max(float(self.above[min(int(least / self.width), _BINS)]), 1.0), 0.0
+        total, done = max(self.streamed_sum(least), 1.0), 0.0
         for rows, cols in self._streamed(least):
             hits = self._block_hits(rows, cols, eps)
             pending.append(hits)

@@ -37,7 +37,7 @@ from ..errors import InputError
 from ..validate import as_int
 from .candidates import FLOAT_MARGIN, MAX_RAW, ScanCandidates, SortedCandidates
 from .limits import MAX_STAGES, Limits
-from .products import multiset_count, smooth_mask
+from .products import multiple_bounds, multiset_count
 from .reach import largest_stage_ratio
 from .split import Splitter
 from .target import Target, significant
@@ -140,8 +140,9 @@ class _Search:
         """Settle the group of the exact target ratio ``a/b`` by its multiples ``(g a, g b)``.
 
         The AM-GM bound of ``(g a, g b)`` grows with ``g``, so the multiples
-        are tried in increasing ``g`` until the bound passes the best train
-        found.  Returns ``(a, b)`` when settled (the windows then leave exact
+        are taken in blocks of increasing ``g`` until it passes the best train
+        found; within a block, in the order of a stronger bound
+        (:func:`gearcad.ratio.products.multiple_bounds`), up to the best found.  Returns ``(a, b)`` when settled (the windows then leave exact
         pairs out), None when the target is not rational or the work caps are
         hit (the windows then treat the exact group like any other).
         """
@@ -158,13 +159,12 @@ class _Search:
         for start in range(g_low, g_high + 1, 100_000):
             if start - g_low > max_multiples:
                 return None
-            g = np.arange(start, min(start + 100_000, g_high + 1), dtype=np.int64)
-            bounds = np.floor(k * ((a * g).astype(float) ** (1 / k) + (b * g).astype(float) ** (1 / k)) * (1 - 1e-12))
             limit = math.inf if best is None else best[0]
-            if bounds[0] + self.idler_floor > limit:
-                break
-            smooth = smooth_mask(a * g, largest) & smooth_mask(b * g, largest)
-            for i in np.flatnonzero(smooth).tolist():
+            if math.floor(k * ((a * start) ** (1 / k) + (b * start) ** (1 / k)) * (1 - 1e-12)) + self.idler_floor > limit:
+                break  # the AM-GM bound grows with g and is below the bounds of every later pair
+            g = np.arange(start, min(start + 100_000, g_high + 1), dtype=np.int64)
+            bounds, order = multiple_bounds(a, b, g, k, self.smallest, largest)
+            for i in order.tolist():
                 limit = math.inf if best is None else best[0]
                 if bounds[i] + self.idler_floor > limit:
                     break
