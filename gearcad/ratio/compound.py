@@ -252,7 +252,9 @@ class _Search:
             if not math.isfinite(proposal) or proposal <= eps:
                 positive = nearest[nearest > eps]
                 proposal = max(eps * 8, float(positive[0]) if len(positive) else eps_all)
-            eps = min(max(proposal, eps * 8), eps_all)
+            # x8 to x64 a round: a sample's far tail (products with no partner near the target) must not
+            # throw the window open at once
+            eps = min(max(proposal, eps * 8), eps * 64 if eps > 0 else proposal, eps_all)
             if self.window(*generator.within(eps), eps) or eps >= eps_all:
                 return
             m *= 8
