@@ -246,7 +246,7 @@ class _Search:
         stride = max(1, len(generator.products) // _SIZING_SAMPLE)  # a sample sizes the windows as well
         nearest = np.sort(generator.nearest_errors(stride))
         eps_all = generator.max_eps()
-        eps, m = start_eps, 32 * self.count
+        eps, m = start_eps, 16 * self.count
         while True:
             proposal = float(nearest[min(m // stride, len(nearest) - 1)])
             if not math.isfinite(proposal) or proposal <= eps:
