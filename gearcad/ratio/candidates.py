@@ -25,7 +25,7 @@ import numpy as np
 
 from .products import product_blocks, product_set, product_tails, products_upto, smooth_mask
 
-__all__ = ["SortedCandidates", "ScanCandidates", "FLOAT_MARGIN", "Progress", "not_exact"]
+__all__ = ["SortedCandidates", "ScanCandidates", "FLOAT_MARGIN", "Progress", "not_exact", "unique_pairs"]
 
 #: Relative float margin added to every window (float products are good to ~1e-16).
 FLOAT_MARGIN = 1e-14
@@ -44,7 +44,7 @@ _QUANTUM_DENOMINATOR = 100_000
 Progress = Callable[[float], None]
 
 
-def _unique_pairs(p: np.ndarray, q: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def unique_pairs(p: np.ndarray, q: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """The distinct (p, q) pairs, sorted by p then q."""
     if len(p) == 0:
         return p, q
@@ -251,7 +251,7 @@ class ScanCandidates:
             screen()
         if not found_p:
             return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64)
-        return _unique_pairs(np.concatenate(found_p), np.concatenate(found_q))
+        return unique_pairs(np.concatenate(found_p), np.concatenate(found_q))
 
     def _block_hits(self, rows: np.ndarray, cols: np.ndarray, eps: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Pairs of one block: every integer ``C`` within ``eps C`` of ``t E`` (``E`` a streamed product).

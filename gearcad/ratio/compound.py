@@ -36,6 +36,7 @@ import numpy as np
 from ..errors import InputError
 from ..validate import as_int
 from .candidates import FLOAT_MARGIN, MAX_RAW, ScanCandidates, SortedCandidates
+from .ends import EndCandidates
 from .limits import MAX_STAGES, Limits
 from .products import multiple_bounds, multiset_count
 from .reach import largest_stage_ratio
@@ -260,6 +261,26 @@ class _Search:
             m *= 8
             self._report(0.5)
 
+    def run_end(self, generator: EndCandidates, eps: float = 1e-7) -> float | None:
+        """Rounds over the trains of steep stages while they are few (near an end of the reach).
+
+        Returns the eps of the last complete window if the other generators must go on, None when finished.
+        """
+        if len(self.found) >= self.count:
+            return None
+        done = 0.0
+        while generator.usable(eps):
+            pairs = generator.within(eps)
+            if pairs is None:  # too many trains to list: the other generators go on from here
+                break
+            if self.window(*pairs, eps):
+                return None
+            done = eps
+            if eps >= 1.0:
+                break
+            eps = min(eps * 4, 1.0)
+        return done
+
     def run_scan(self, generator: ScanCandidates) -> float | None:
         """Scan rounds; returns the eps reached if the scan must hand over, None when finished."""
         if len(self.found) >= self.count:
@@ -331,12 +352,21 @@ def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, 
     teeth = limits.teeth
     use_scan = method == "scan" or (method == "auto" and multiset_count(len(teeth), k) > SORTED_LIMIT)
     start_eps = 0.0
-    exact = search.exact_first() if span[0] <= (target.rational or 0) <= span[1] else None
+    # near an end of the reach the trains of steep stages come first, the exact ratio's among them
+    reached = search.run_end(EndCandidates(*_allowed_stage_grid(limits), k, target.value))
+    if reached is None:
+        return search.results()
+    start_eps = reached
+    rational = target.rational
+    if rational is not None and (rational.numerator, rational.denominator) in search.done_ratios:
+        exact = (rational.numerator, rational.denominator)  # settled by those windows
+    else:
+        exact = search.exact_first() if span[0] <= (rational or 0) <= span[1] else None
     if use_scan:
         reached = search.run_scan(ScanCandidates(teeth, k, target.value, ratio_range, exact))
         if reached is None:
             return search.results()
-        start_eps = reached
+        start_eps = max(start_eps, reached)
     search.run_sorted(SortedCandidates(teeth, k, target.value, ratio_range, exact), start_eps)
     return search.results()
 
