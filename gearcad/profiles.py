@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from importlib import resources
 from pathlib import Path
 from typing import Mapping
 
@@ -45,7 +44,9 @@ class ValueSpec:
 
 
 def _profile_dir(kind: str):
-    return resources.files("gearcad.profile_data").joinpath(kind)
+    from . import profile_data  # the shipped profiles are files on disk: a Path, without importlib.resources' start-up
+
+    return Path(profile_data.__path__[0]).joinpath(kind)
 
 
 def profile_names(kind: str) -> list[str]:

@@ -96,3 +96,75 @@ def test_bad_count_exit_2(capsys, count):
     assert main(["ratio", "1/40", "--stages", "2", "--count", count]) == 2
     captured = capsys.readouterr()
     assert captured.out == "" and "count" in captured.err and "Traceback" not in captured.err
+
+
+def _grid_pairs():
+    """Pairs over the tooth range with the shifts ratio/design give (balanced), none, and a few off-balance ones."""
+    from gearcad.meshes.shifts import balanced_shifts, thinning_shift
+
+    system = JUDGE.system
+    thinning = thinning_shift(JUDGE.backlash, 1.0, system)
+    teeth = [10, 11, 12, 13, 14, 15, 16, 17, 18, 20, 23, 27, 33, 41, 52, 67, 89, 120, 163, 200]
+    for i, z1 in enumerate(teeth):
+        for z2 in teeth[i::2]:
+            for shifts in (balanced_shifts(z1, z2, system, thinning), (0.0, 0.0), (0.3, -0.3), (0.6, 0.2)):
+                yield z1, z2, shifts
+
+
+@pytest.mark.parametrize("backlash", [None, 0.02, 0.0])
+def test_closed_form_verdict_is_the_pair_checks_verdict(backlash):
+    # reference: gearcad.meshes.checks.analyse_pair on the generated outline (tested against ISO 21771 in test_pair.py)
+    from gearcad.errors import GearcadError
+    from gearcad.meshes.checks import analyse_pair
+    from gearcad.meshes.pair import make_pair
+    from gearcad.ratio.clean import pair_passes
+
+    checked = passed = 0
+    for z1, z2, shifts in _grid_pairs():
+        try:
+            pair = make_pair(z1, z2, 1.0, JUDGE.system, shifts=shifts,
+                             backlash=JUDGE.backlash if backlash is None else backlash)
+        except GearcadError:
+            continue
+        try:
+            expected = all(f.severity not in ("warning", "failure") for f in analyse_pair(pair).findings)
+        except GearcadError:
+            expected = False
+        assert pair_passes(pair) == expected, (z1, z2, shifts)
+        checked += 1
+        passed += expected
+    assert checked > 300 and (0 < passed < checked or backlash == 0.0)  # both verdicts occur (none passes without backlash)
+
+
+def test_form_diameter_closed_form_matches_the_generated_outline():
+    # reference: the generator's form diameter (where fillet and involute meet on the outline it builds)
+    from gearcad.geometry.gear import SpurGear
+    from gearcad.geometry.generate import tooth_profile
+    from gearcad.ratio.clean import _undercut_and_form
+
+    for z in (10, 12, 14, 17, 18, 25, 40, 90, 200):
+        for shift in (-0.3, 0.0, 0.2, 0.5):
+            try:
+                gear = SpurGear(z, 1.0, JUDGE.system, shift=shift)
+                profile = tooth_profile(gear, tolerance=1e-3)
+            except Exception:  # a gear the generator refuses (pointed, undercut to the tip) is not compared
+                continue
+            undercut, form = _undercut_and_form(gear)
+            assert undercut == profile.undercut, (z, shift)
+            if not undercut:
+                assert form == pytest.approx(profile.form_diameter, abs=1e-9), (z, shift)
+
+
+def test_ratio_run_imports_neither_sympy_nor_the_outline_generator():
+    # a decimal and a fraction target: the fast start loads only what the search and the judge need
+    import subprocess
+    import sys
+
+    script = ("import sys, io, contextlib\nfrom gearcad.cli import main\n"
+              "with contextlib.redirect_stdout(io.StringIO()):\n"
+              "    assert main(['ratio', sys.argv[1], '--stages', '2']) == 0\n"
+              "heavy = ('sympy', 'mpmath', 'gearcad.geometry.generate', 'cadquery', 'OCP', 'ezdxf', 'shapely', 'rich')\n"
+              "print(sorted(m for m in sys.modules if m.split('.')[0] in heavy or m in heavy))\n")
+    for target in ("29.530588853", "127/20"):
+        out = subprocess.run([sys.executable, "-c", script, target], capture_output=True, text=True, check=True).stdout
+        assert out.strip() == "[]", (target, out)

@@ -231,3 +231,22 @@ def test_simple_rational_targets_match_exhaustive(expression, method):
     target = parse_target(expression)
     for k in (3, 4):
         assert solved(target, k, limits, 3, method) == exhaustive(target, k, limits, 3)  # exhaustive reference
+
+
+@pytest.mark.parametrize("expression", ["3/10", "131/100", "1/1", "7/3", "100/99"])
+@pytest.mark.parametrize("method", ["scan", "sorted"])
+def test_simple_fractions_match_exhaustive(expression, method):
+    # the scan skips streamed products too small for a non-exact pair within the window (the target's
+    # quantum 1/v); the reference knows nothing of it.  Four stages over a narrow range, two over a wide one
+    target = parse_target(expression)
+    for k, limits in ((4, make_limits(10, 17)), (3, make_limits(12, 22, 4)), (2, make_limits(10, 135))):
+        assert solved(target, k, limits, 5, method) == exhaustive(target, k, limits, 5)  # exhaustive reference
+
+
+@pytest.mark.parametrize("expression", ["83521/10000", "8.3", "7.9", "10000/83521", "1/8.2"])
+def test_targets_near_the_reach_ends_match_exhaustive(expression):
+    # at 4 stages over 10-17 teeth the reach is (17/10)^4 = 8.3521 either way: the listing of trains of
+    # steep stages (ratio/ends.py) takes these; the reference knows nothing of it
+    target = parse_target(expression)
+    for k, limits in ((4, make_limits(10, 17)), (3, make_limits(12, 22, 4, True))):
+        assert solved(target, k, limits, 5) == exhaustive(target, k, limits, 5)  # exhaustive reference

@@ -36,6 +36,11 @@ COMMANDS: dict[str, str] = {
 class OneLineParser(argparse.ArgumentParser):
     """An argparse parser whose errors are one line: ``gearcad CMD: error: ...``."""
 
+    def _get_formatter(self) -> argparse.HelpFormatter:  # the width given: argparse would import shutil for it
+        from ._format import help_width
+
+        return self.formatter_class(prog=self.prog, width=help_width())
+
     def error(self, message: str) -> NoReturn:
         self.exit(2, f"{self.prog}: error: {message} (see {self.prog} --help)\n")
 

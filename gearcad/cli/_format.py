@@ -6,7 +6,7 @@ import sys
 from typing import Any, Iterable, Sequence
 
 
-__all__ = ["print_json", "table", "fmt"]
+__all__ = ["print_json", "table", "fmt", "help_width"]
 
 
 def print_json(obj: Any) -> None:
@@ -16,6 +16,23 @@ def print_json(obj: Any) -> None:
     from ..export.jsonable import jsonable  # here, not at the top: building the parser must stay light
 
     sys.stdout.write(json.dumps(jsonable(obj), indent=2, ensure_ascii=False) + "\n")
+
+
+def help_width() -> int:
+    """The width argparse would wrap help to (``COLUMNS``, else the terminal's, else 80; less 2), found
+    without importing :mod:`shutil`, which argparse loads for it (with its compression modules) on every start."""
+    import os
+
+    try:
+        columns = int(os.environ.get("COLUMNS", "0"))
+    except ValueError:
+        columns = 0
+    if columns <= 0:
+        try:
+            columns = os.get_terminal_size(sys.__stdout__.fileno()).columns
+        except (AttributeError, ValueError, OSError):
+            columns = 0
+    return (columns or 80) - 2
 
 
 def fmt(value: float, digits: int = 4) -> str:

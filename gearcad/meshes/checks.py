@@ -13,7 +13,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..geometry.gear import SpurGear
-from ..geometry.generate import tooth_profile
 from .pair import GearPair
 
 __all__ = [
@@ -111,6 +110,8 @@ def _roll_length(tip_radius: float, base_radius: float) -> float:
 def _gear_figures(pair: GearPair, index: int, working_diameter: float) -> GearFigures:
     gear = (pair.gear1, pair.gear2)[index]
     mate = (pair.gear2, pair.gear1)[index]
+    from ..geometry.generate import tooth_profile  # here: importing the checks stays light
+
     profile = tooth_profile(gear, tolerance=1e-3)
     rb = gear.base_diameter / 2
     reach = pair.centre_distance * math.sin(pair.operating_pressure_angle) - _roll_length(mate.tip_diameter / 2, mate.base_diameter / 2)
@@ -438,6 +439,8 @@ def process_findings(name: str, gear: SpurGear, outline: np.ndarray, process: st
     """
     out: list[Finding] = []
     if process == "cnc" and tool_radius > 0:
+        from ..geometry.generate import tooth_profile
+
         form = tooth_profile(gear, tolerance=1e-3).form_diameter / 2
         reach = tool_reach(outline, tool_radius)
         short = reach > form + 1e-3

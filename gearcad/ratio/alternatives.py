@@ -5,16 +5,19 @@ Trains of equal ratio have equal error, so the solver's choice among them
 meshes pass every check without a warning (no thin tips, no undercut left
 after the least shift), which usually means larger pinions.  The ratio
 ``a/b`` is realised by driver and driven products ``(g a, g b)``; ``g`` runs
-upwards while the AM-GM bound of the products stays within the teeth allowed,
+upwards while the AM-GM bound of the products stays within the teeth allowed
+(within a block of ``g``, pairs go lightest bound first: :func:`gearcad.ratio.products.multiple_bounds`),
 and each pair is split exhaustively (:meth:`gearcad.ratio.split.Splitter.every_for`).
 """
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from .limits import Limits
-from .products import smooth_mask
+from .products import multiple_bounds
 from .reach import largest_stage_ratio
 from .split import Splitter
 from .target import Target
@@ -64,22 +67,27 @@ def same_ratio_trains(numerator: int, denominator: int, k: int, limits: Limits, 
     g_low = max(-(-low ** k // numerator), -(-low ** k // denominator), 1)
     g_high = min(high ** k // numerator, high ** k // denominator, g_low + MAX_MULTIPLES)
     for start in range(g_low, g_high + 1, _CHUNK):
+        limit = _limit(found, best, count, extra_teeth)
+        if math.floor(k * ((numerator * start) ** (1 / k) + (denominator * start) ** (1 / k)) * (1 - 1e-12)) + floor > limit:
+            break  # the AM-GM bound grows with g and is below the bound of every later pair
         g = np.arange(start, min(start + _CHUNK, g_high + 1), dtype=np.int64)
-        # only products whose every prime factor is a possible tooth count can split (a vectorised screen)
-        smooth = smooth_mask(numerator * g, high) & smooth_mask(denominator * g, high)
-        stop = False
-        for multiple in g[smooth].tolist():
-            p, q = numerator * multiple, denominator * multiple
-            bound = k * (p ** (1 / k) + q ** (1 / k)) * (1 - 1e-12) + floor
-            limit = float("inf") if best is None else best + extra_teeth
-            if len(found) >= count:  # only trains as light as the count-th held can still enter
-                limit = min(limit, found[count - 1][0])
-            if bound > limit:
-                stop = True
+        # only products whose every prime factor is a possible tooth count can split; the lightest bound first
+        bounds, order = multiple_bounds(numerator, denominator, g, k, low, high)
+        for i in order.tolist():
+            limit = _limit(found, best, count, extra_teeth)
+            if bounds[i] + floor > limit:
                 break
-            found = sorted(set(found + splitter.every_for(p, q, limit, keep=count)))
+            multiple = int(g[i])
+            found = sorted(set(found + splitter.every_for(numerator * multiple, denominator * multiple, limit, keep=count)))
             best = found[0][0] if found else None
-        if stop:
-            break
     found = [t for t in found if t[0] <= best + extra_teeth] if best is not None else []
     return [make_train(stages, target, idler_teeth) for _, stages, idler_teeth in found[:count]]
+
+
+def _limit(found: list, best: int | None, count: int, extra_teeth: int) -> float:
+    """Most teeth a train may have and still enter: within ``extra_teeth`` of the fewest, and as light
+    as the ``count``-th held once ``count`` are held."""
+    limit = float("inf") if best is None else best + extra_teeth
+    if len(found) >= count:
+        limit = min(limit, found[count - 1][0])
+    return limit

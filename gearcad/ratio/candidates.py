@@ -23,9 +23,9 @@ from typing import Callable, Sequence
 
 import numpy as np
 
-from .products import product_blocks, product_set, product_sum, products_upto, smooth_mask
+from .products import product_blocks, product_set, product_tails, products_upto, smooth_mask
 
-__all__ = ["SortedCandidates", "ScanCandidates", "FLOAT_MARGIN", "Progress", "not_exact"]
+__all__ = ["SortedCandidates", "ScanCandidates", "FLOAT_MARGIN", "Progress", "not_exact", "unique_pairs"]
 
 #: Relative float margin added to every window (float products are good to ~1e-16).
 FLOAT_MARGIN = 1e-14
@@ -37,10 +37,14 @@ _DISTINCT_BLOCK = 1 << 16
 _SCREEN_BATCH = 1 << 20
 #: Most raw candidates one scan round may produce (bounds its time; memory is per block, screened at once).
 MAX_RAW = 2e7
+#: Edges (log-spaced) at which the sums of streamed products are known (they size the windows).
+_EDGES = 96
+#: Largest denominator of an exact target whose quantum (1 / v) prunes the stream (float rounding stays far below it).
+_QUANTUM_DENOMINATOR = 100_000
 Progress = Callable[[float], None]
 
 
-def _unique_pairs(p: np.ndarray, q: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def unique_pairs(p: np.ndarray, q: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """The distinct (p, q) pairs, sorted by p then q."""
     if len(p) == 0:
         return p, q
@@ -147,32 +151,76 @@ class ScanCandidates:
         self.largest = max(self.teeth)
         self.p_min, self.p_max = min(self.teeth) ** self.k, self.largest ** self.k
         self.q_range = (self.p_min / self.t * (1 - 1e-6), self.p_max / self.t * (1 + 1e-6))
+        self.quantum = self._quantum()
         self.distinct = None
-        if self.k == 4 and self.q_range[1] <= DISTINCT_LIMIT:  # few enough to list once, each product once
-            found = products_upto(self.teeth, self.k, int(self.q_range[1]))
-            self.distinct = found[found >= self.q_range[0]]
-            self.blocks = -(-len(self.distinct) // _DISTINCT_BLOCK)
-            self.total = max(float(self.distinct.astype(float).sum()), 1.0)
+        low, high = self.q_range
+        self.edges = np.geomspace(max(low, 1.0), high, _EDGES)
+        if self.k == 4 and high <= DISTINCT_LIMIT:  # few enough to list once, each product once
+            found = products_upto(self.teeth, self.k, int(high))
+            self.distinct = found[found >= low]
+            prefix = np.concatenate([[0], np.cumsum(self.distinct)])  # int64: at most ~1e7 products below 2^28
+            self.tails = (prefix[-1] - prefix[np.searchsorted(self.distinct, self.edges)]).astype(float)
         else:
-            self.blocks = sum(1 for _ in product_blocks(self.teeth, self.k, self.q_range))
-            self.total = max(product_sum(self.teeth, self.k, self.q_range), 1.0)
+            self.tails = product_tails(self.teeth, self.k, self.edges)
+        self.tails = np.maximum(self.tails - self.tails[-1], 0.0)  # the products up to the range's top only
 
-    def _streamed(self):
-        """The streamed products as (rows, cols) blocks: each product is ``rows[i] * cols[j]``."""
+    def _quantum(self) -> float:
+        """The least ``|x - C|`` of a pair not of the exact ratio (``x = t E``), or 0 when unknown.
+
+        With the exact ratio settled apart, ``t = u / v`` in lowest terms and
+        ``x - C = (E u - C v) / v``, a non-zero integer over ``v``: at least ``1 / v``.
+        A window ``|x - C| <= eps C`` then holds only pairs with ``C >= 1 / (v eps)``, so
+        the stream starts there (:meth:`least_streamed`).  Used while float rounding of
+        ``x`` (below 1e-6) stays far under ``1 / v``.
+        """
+        if self.exact is None:
+            return 0.0
+        a, b = self.exact
+        v = a if self.swap else b
+        return 1.0 / v if v <= _QUANTUM_DENOMINATOR else 0.0
+
+    def least_streamed(self, eps: float) -> float:
+        """The least streamed product that can give a pair within ``eps`` (see :meth:`_quantum`)."""
+        if self.quantum == 0.0:
+            return self.q_range[0]
+        # |x - C| <= (eps + margin) C + 1e-9 and C <= x (1 + 2 eps) + 1: a generous lower bound of x
+        x_least = (self.quantum - 2e-9) / ((eps + FLOAT_MARGIN) * (1 + 2 * eps)) - 1
+        return max(self.q_range[0], x_least / self.t * (1 - 1e-9))
+
+    def _streamed(self, least: float):
+        """The streamed products from ``least`` on as (rows, cols) blocks: each product is ``rows[i] * cols[j]``."""
         if self.distinct is None:
-            yield from product_blocks(self.teeth, self.k, self.q_range)
+            yield from product_blocks(self.teeth, self.k, (least, self.q_range[1]))
             return
         one = np.ones(1, dtype=np.int64)
-        for start in range(0, len(self.distinct), _DISTINCT_BLOCK):
+        first = int(np.searchsorted(self.distinct, least))
+        for start in range(first, len(self.distinct), _DISTINCT_BLOCK):
             yield self.distinct[start:start + _DISTINCT_BLOCK], one
 
+    def streamed_sum(self, least: float) -> float:
+        """About the sum of the streamed products from ``least`` on (the tail sums, interpolated)."""
+        return float(np.interp(math.log(max(least, 1.0)), np.log(self.edges), self.tails))
+
+    def raw_estimate(self, eps: float) -> float:
+        """About how many raw candidates a window of ``eps`` gives: ``2 eps x`` integers per streamed product."""
+        return 2 * eps * self.t * self.streamed_sum(self.least_streamed(eps))
+
     def eps_for_budget(self, count: float) -> float:
-        """An eps that yields about ``count`` raw candidates."""
-        return count / (2 * self.t * self.total)
+        """An eps that yields about ``count`` raw candidates (bisection of :meth:`raw_estimate`)."""
+        low, high = 1e-18, 1.0
+        if self.raw_estimate(high) <= count:
+            return high
+        for _ in range(80):
+            mid = math.sqrt(low * high)
+            if self.raw_estimate(mid) <= count:
+                low = mid
+            else:
+                high = mid
+        return low
 
     def usable(self, eps: float) -> bool:
         """Whether the scan may take ``eps``: a few integers per product, and a bounded number of raw candidates."""
-        return eps * self.p_max < MAX_SPAN and eps <= self.eps_for_budget(MAX_RAW)
+        return eps * self.p_max < MAX_SPAN and self.raw_estimate(eps) <= MAX_RAW
 
     def within(self, eps: float, progress: Progress | None = None) -> tuple[np.ndarray, np.ndarray]:
         """Every (P, Q) with |P/(T Q) - 1| <= eps whose computed side is smooth; see :meth:`usable`."""
@@ -187,20 +235,23 @@ class ScanCandidates:
             found_q.append(q[keep])
             pending.clear()
 
-        for done, (rows, cols) in enumerate(self._streamed()):
+        least = self.least_streamed(eps)
+        total, done = max(self.streamed_sum(least), 1.0), 0.0
+        for rows, cols in self._streamed(least):
             hits = self._block_hits(rows, cols, eps)
             pending.append(hits)
             waiting += len(hits[0])
             if waiting >= _SCREEN_BATCH:
                 screen()
                 waiting = 0
-            if progress is not None:
-                progress((done + 1) / max(1, self.blocks))
+            if progress is not None:  # the share of the streamed products' sum done
+                done += float(rows.sum()) * float(cols.sum())
+                progress(min(1.0, done / total))
         if pending:
             screen()
         if not found_p:
             return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64)
-        return _unique_pairs(np.concatenate(found_p), np.concatenate(found_q))
+        return unique_pairs(np.concatenate(found_p), np.concatenate(found_q))
 
     def _block_hits(self, rows: np.ndarray, cols: np.ndarray, eps: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Pairs of one block: every integer ``C`` within ``eps C`` of ``t E`` (``E`` a streamed product).
@@ -209,13 +260,17 @@ class ScanCandidates:
         """
         x = np.multiply.outer(rows * self.t, cols.astype(float)).ravel()
         width = len(cols)
+        gap = self.quantum / 2  # pairs of the exact ratio (settled apart) lie closer than this, all others farther
         if eps * (float(x.max()) if x.size else 0.0) < 0.45:  # one integer per product can lie in the window
             nearest = np.rint(x)
             limit = nearest * (eps + FLOAT_MARGIN)
             limit += 1e-9
             np.subtract(x, nearest, out=x)
             np.abs(x, out=x)
-            at = np.flatnonzero(x <= limit)
+            inside = x <= limit
+            if gap:
+                inside &= x > gap
+            at = np.flatnonzero(inside)
             c = nearest[at]
         else:  # every integer of [x - w, x + w] (w bounds eps C from above), listed without a loop over offsets
             w = x * (eps * (1 + 2 * eps) + FLOAT_MARGIN) + 1e-9
@@ -223,7 +278,11 @@ class ScanCandidates:
             counts = np.maximum(high - low + 1, 0).astype(np.int64)
             owner = np.repeat(np.arange(len(x)), counts)
             c = low[owner] + (np.arange(len(owner)) - np.repeat(np.cumsum(counts) - counts, counts))
-            keep = np.flatnonzero(np.abs(c - x[owner]) <= c * (eps + FLOAT_MARGIN) + 1e-9)
+            distance = np.abs(c - x[owner])
+            inside = distance <= c * (eps + FLOAT_MARGIN) + 1e-9
+            if gap:
+                inside &= distance > gap
+            keep = np.flatnonzero(inside)
             at, c = owner[keep], c[keep]
         found_c, found_e = [c.astype(np.int64)], [rows[at // width] * cols[at % width]]
         c, e = np.concatenate(found_c), np.concatenate(found_e)

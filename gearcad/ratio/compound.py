@@ -35,9 +35,10 @@ import numpy as np
 
 from ..errors import InputError
 from ..validate import as_int
-from .candidates import FLOAT_MARGIN, ScanCandidates, SortedCandidates
+from .candidates import FLOAT_MARGIN, MAX_RAW, ScanCandidates, SortedCandidates
+from .ends import EndCandidates
 from .limits import MAX_STAGES, Limits
-from .products import multiset_count, smooth_mask
+from .products import multiple_bounds, multiset_count
 from .reach import largest_stage_ratio
 from .split import Splitter
 from .target import Target, significant
@@ -140,8 +141,9 @@ class _Search:
         """Settle the group of the exact target ratio ``a/b`` by its multiples ``(g a, g b)``.
 
         The AM-GM bound of ``(g a, g b)`` grows with ``g``, so the multiples
-        are tried in increasing ``g`` until the bound passes the best train
-        found.  Returns ``(a, b)`` when settled (the windows then leave exact
+        are taken in blocks of increasing ``g`` until it passes the best train
+        found; within a block, in the order of a stronger bound
+        (:func:`gearcad.ratio.products.multiple_bounds`), up to the best found.  Returns ``(a, b)`` when settled (the windows then leave exact
         pairs out), None when the target is not rational or the work caps are
         hit (the windows then treat the exact group like any other).
         """
@@ -158,13 +160,12 @@ class _Search:
         for start in range(g_low, g_high + 1, 100_000):
             if start - g_low > max_multiples:
                 return None
-            g = np.arange(start, min(start + 100_000, g_high + 1), dtype=np.int64)
-            bounds = np.floor(k * ((a * g).astype(float) ** (1 / k) + (b * g).astype(float) ** (1 / k)) * (1 - 1e-12))
             limit = math.inf if best is None else best[0]
-            if bounds[0] + self.idler_floor > limit:
-                break
-            smooth = smooth_mask(a * g, largest) & smooth_mask(b * g, largest)
-            for i in np.flatnonzero(smooth).tolist():
+            if math.floor(k * ((a * start) ** (1 / k) + (b * start) ** (1 / k)) * (1 - 1e-12)) + self.idler_floor > limit:
+                break  # the AM-GM bound grows with g and is below the bounds of every later pair
+            g = np.arange(start, min(start + 100_000, g_high + 1), dtype=np.int64)
+            bounds, order = multiple_bounds(a, b, g, k, self.smallest, largest)
+            for i in order.tolist():
                 limit = math.inf if best is None else best[0]
                 if bounds[i] + self.idler_floor > limit:
                     break
@@ -246,17 +247,39 @@ class _Search:
         stride = max(1, len(generator.products) // _SIZING_SAMPLE)  # a sample sizes the windows as well
         nearest = np.sort(generator.nearest_errors(stride))
         eps_all = generator.max_eps()
-        eps, m = start_eps, 32 * self.count
+        eps, m = start_eps, 16 * self.count
         while True:
             proposal = float(nearest[min(m // stride, len(nearest) - 1)])
             if not math.isfinite(proposal) or proposal <= eps:
                 positive = nearest[nearest > eps]
                 proposal = max(eps * 8, float(positive[0]) if len(positive) else eps_all)
-            eps = min(max(proposal, eps * 8), eps_all)
+            # x8 to x64 a round: a sample's far tail (products with no partner near the target) must not
+            # throw the window open at once
+            eps = min(max(proposal, eps * 8), eps * 64 if eps > 0 else proposal, eps_all)
             if self.window(*generator.within(eps), eps) or eps >= eps_all:
                 return
             m *= 8
             self._report(0.5)
+
+    def run_end(self, generator: EndCandidates, eps: float = 1e-7) -> float | None:
+        """Rounds over the trains of steep stages while they are few (near an end of the reach).
+
+        Returns the eps of the last complete window if the other generators must go on, None when finished.
+        """
+        if len(self.found) >= self.count:
+            return None
+        done = 0.0
+        while generator.usable(eps):
+            pairs = generator.within(eps)
+            if pairs is None:  # too many trains to list: the other generators go on from here
+                break
+            if self.window(*pairs, eps):
+                return None
+            done = eps
+            if eps >= 1.0:
+                break
+            eps = min(eps * 4, 1.0)
+        return done
 
     def run_scan(self, generator: ScanCandidates) -> float | None:
         """Scan rounds; returns the eps reached if the scan must hand over, None when finished."""
@@ -268,9 +291,12 @@ class _Search:
             if self.window(*generator.within(eps, self.progress), eps):
                 return None
             done = eps
-            # ratios found grow about linearly with eps: aim at the count with a margin (x2 to x8 a round)
+            # ratios found grow about linearly with the raw candidates: aim at the count with a margin (x2 to x8
+            # a round); where the stream is pruned (see ScanCandidates.least_streamed) the work grows faster than eps
             have = len(self.found)
-            eps *= 4 if have == 0 else min(8.0, max(2.0, 1.5 * self.count / have))
+            grow = 4 if have == 0 else min(8.0, max(2.0, 1.5 * self.count / have))
+            wanted = generator.eps_for_budget(min(generator.raw_estimate(eps) * grow, MAX_RAW) * (1 - 1e-9))
+            eps = min(max(wanted, eps * 1.25), eps * grow)
         return done
 
     def _report(self, fraction: float) -> None:
@@ -326,12 +352,21 @@ def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, 
     teeth = limits.teeth
     use_scan = method == "scan" or (method == "auto" and multiset_count(len(teeth), k) > SORTED_LIMIT)
     start_eps = 0.0
-    exact = search.exact_first() if span[0] <= (target.rational or 0) <= span[1] else None
+    # near an end of the reach the trains of steep stages come first, the exact ratio's among them
+    reached = search.run_end(EndCandidates(*_allowed_stage_grid(limits), k, target.value))
+    if reached is None:
+        return search.results()
+    start_eps = reached
+    rational = target.rational
+    if rational is not None and (rational.numerator, rational.denominator) in search.done_ratios:
+        exact = (rational.numerator, rational.denominator)  # settled by those windows
+    else:
+        exact = search.exact_first() if span[0] <= (rational or 0) <= span[1] else None
     if use_scan:
         reached = search.run_scan(ScanCandidates(teeth, k, target.value, ratio_range, exact))
         if reached is None:
             return search.results()
-        start_eps = reached
+        start_eps = max(start_eps, reached)
     search.run_sorted(SortedCandidates(teeth, k, target.value, ratio_range, exact), start_eps)
     return search.results()
 

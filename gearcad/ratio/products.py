@@ -14,8 +14,8 @@ from typing import Iterator, Sequence
 import numpy as np
 
 __all__ = [
-    "multiset_count", "product_set", "sieve_square_products", "products_upto", "product_blocks", "product_sum",
-    "smooth_mask", "Factorizer", "sum_lower_bound",
+    "multiset_count", "product_set", "sieve_square_products", "products_upto", "product_blocks", "product_tails",
+    "smooth_mask", "Factorizer", "sum_lower_bound", "factor_sum_bounds", "multiple_bounds",
 ]
 
 #: Above this many elements per side a product set is built by a bit sieve, not by sorting.
@@ -121,25 +121,101 @@ def product_blocks(teeth: Sequence[int], k: int, q_range: tuple[float, float] = 
             yield rows, cols
 
 
-def product_sum(teeth: Sequence[int], k: int, q_range: tuple[float, float] = (0.0, math.inf)) -> float:
-    """Sum of the products within ``q_range`` that :func:`product_blocks` yields (for sizing a search)."""
-    low, high = q_range
-    total = 0.0
-    for rows, cols in product_blocks(teeth, k, q_range):
-        block = np.multiply.outer(rows.astype(float), cols.astype(float))
-        total += float(block[(block >= low) & (block <= high)].sum())
-    return total
+def product_tails(teeth: Sequence[int], k: int, edges: np.ndarray) -> np.ndarray:
+    """For each of the ascending ``edges``, about the sum of the products at least that large that
+    :func:`product_blocks` yields (each product of its two halves once; for sizing a search).
+
+    The halves are sorted, so for each left half the right halves above an edge are a
+    suffix: one vectorised bisection over every (left half, edge) and prefix sums.
+    """
+    k1, k2 = _split(k)
+    left, right = product_set(teeth, k1).astype(float), product_set(teeth, k2).astype(float)
+    suffix = np.concatenate([np.cumsum(right[::-1])[::-1], [0.0]])  # suffix[j]: sum of right[j:]
+    first = np.searchsorted(right, np.divide.outer(edges, left), "left")  # edges x left halves
+    if k1 == k2:  # the halves of a product are taken in order (right index at least the left one)
+        first = np.maximum(first, np.arange(len(left)))
+    return (suffix[first] * left).sum(axis=1)
 
 
 def smooth_mask(values: np.ndarray, largest_factor: int) -> np.ndarray:
-    """True where every prime factor of ``values`` is at most ``largest_factor``."""
+    """True where every prime factor of ``values`` is at most ``largest_factor`` (False at values below 1)."""
+    return _strip(values, largest_factor)[0] == 1
+
+
+def _strip(values: np.ndarray, largest_factor: int) -> tuple[np.ndarray, np.ndarray]:
+    """``(rest, top)``: each value with its prime factors up to ``largest_factor`` divided out, and the
+    largest of those factors (1 if none)."""
+    values = np.asarray(values)
+    top = np.ones(len(values), dtype=np.int64)
+    if len(values) and int(values.max()) < 2 ** 32 and int(values.min()) >= 1:
+        return _strip_32(values.astype(np.uint32), largest_factor, top), top
     rest = values.astype(np.int64).copy()
     for prime in _primes_up_to(largest_factor):
         at = np.flatnonzero(rest % prime == 0)  # one pass over all; then only the divisible ones again
+        top[at] = prime
         while len(at):
             rest[at] //= prime
             at = at[rest[at] % prime == 0]
-    return rest == 1
+    return rest, top
+
+
+def _strip_32(rest: np.ndarray, largest_factor: int, top: np.ndarray) -> np.ndarray:
+    """:func:`_strip` of values from 1 to 2^32 - 1 (uint32, changed in place), without a division per prime.
+
+    An odd ``p`` has an inverse ``p'`` modulo 2^32, and ``n`` is a multiple of ``p``
+    exactly when ``n p' mod 2^32 <= (2^32 - 1) // p``, the product then being ``n / p``
+    (the divisibility test by multiplication of Granlund and Montgomery, 1994); uint32
+    products wrap modulo 2^32 by themselves.  Factors 2 go at once: ``n`` over its
+    lowest set bit.
+    """
+    if largest_factor >= 2:
+        lowest = rest & (~rest + np.uint32(1))
+        top[lowest > 1] = 2
+        rest //= lowest
+    quotient = np.empty_like(rest)
+    divisible = np.empty(len(rest), dtype=bool)
+    for prime in _primes_up_to(largest_factor)[1:]:
+        inverse, limit = np.uint32(pow(prime, -1, 1 << 32)), np.uint32((2 ** 32 - 1) // prime)
+        np.multiply(rest, inverse, out=quotient)
+        np.less_equal(quotient, limit, out=divisible)
+        at = np.flatnonzero(divisible)
+        top[at] = prime
+        while len(at):
+            rest[at] = quotient[at]
+            quotient[at] = rest[at] * inverse
+            at = at[quotient[at] <= limit]
+    return rest
+
+
+def factor_sum_bounds(values: np.ndarray, k: int, smallest: int, largest: int) -> tuple[np.ndarray, np.ndarray]:
+    """``(splits, bound)``: whether each value may be a product of ``k`` factors from ``smallest`` to
+    ``largest`` (no prime factor above ``largest``), and a lower bound of the sum of such factors.
+
+    The bound is the larger of two: the factors' mean is at least their geometric mean
+    (AM-GM) and at least ``smallest``; and the factor holding the largest prime ``L``
+    is at least ``L``, the other ``k - 1`` as before, which is the stronger bound when
+    ``L`` is above the ``k``-th root (the sum ``x + (k-1) (N/x)^(1/(k-1))`` grows with
+    ``x`` from there).
+    """
+    values = np.asarray(values, dtype=np.int64)
+    rest, top = _strip(values, largest)
+    n = values.astype(float)
+    bound = k * np.maximum(n ** (1 / k), smallest)
+    if k >= 2:
+        others = (k - 1) * np.maximum((n / top) ** (1 / (k - 1)), smallest)
+        bound = np.maximum(bound, np.where(top >= n ** (1 / k), top + others, 0.0))
+    return rest == 1, np.floor(bound * (1 - 1e-12))
+
+
+def multiple_bounds(a: int, b: int, g: np.ndarray, k: int, smallest: int, largest: int) -> tuple[np.ndarray, np.ndarray]:
+    """``(bounds, order)`` of the products ``(g a, g b)``: a lower bound of the teeth of any ``k``-stage
+    train with those driver and driven products (:func:`factor_sum_bounds` of each side), and
+    the multiples that may split at all, fewest bound first."""
+    p_ok, p_bound = factor_sum_bounds(a * g, k, smallest, largest)
+    q_ok, q_bound = factor_sum_bounds(b * g, k, smallest, largest)
+    bounds = p_bound + q_bound
+    candidates = np.flatnonzero(p_ok & q_ok)
+    return bounds, candidates[np.argsort(bounds[candidates], kind="stable")]
 
 
 def _primes_up_to(n: int) -> list[int]:

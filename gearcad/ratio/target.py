@@ -57,7 +57,8 @@ _FUNCTION_NAMES = ("abs", "acos", "asin", "atan", "cbrt", "cos", "cosh", "exp", 
 ALLOWED_NAMES = "numbers, + - * / ^ ( ), constants pi e tau, functions " + " ".join(_FUNCTION_NAMES)
 
 _NUMBER = r"(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"
-_TOKEN = re.compile(r"\s*(?:(" + _NUMBER + r")|(\*\*|[-+*/^(),])|([A-Za-zπ_][A-Za-z0-9_]*))")
+#: Tokens of an expression (compiled by ``re`` on first use: a plain number never needs it).
+_TOKEN = r"\s*(?:(" + _NUMBER + r")|(\*\*|[-+*/^(),])|([A-Za-zπ_][A-Za-z0-9_]*))"
 _PLAIN = re.compile(r"\s*\+?\s*(" + _NUMBER + r")\s*(?:/\s*(" + _NUMBER + r")\s*)?")
 _MAX_EXPONENT = 1000
 
@@ -190,7 +191,7 @@ def _tokens(text: str) -> list[str]:
     tokens, pos = [], 0
     stripped = text.rstrip()
     while pos < len(stripped):
-        match = _TOKEN.match(stripped, pos)
+        match = re.compile(_TOKEN).match(stripped, pos)
         if not match:
             raise InputError(f"target {_shown(text)} cannot be read at {stripped[pos:pos + 10]!r}; allowed: {ALLOWED_NAMES}")
         tokens.append(next(g for g in match.groups() if g is not None))

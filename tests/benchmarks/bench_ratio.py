@@ -1,8 +1,12 @@
 """Benchmark of the ratio solver (a script; pytest does not collect it).
 
-Run:  .venv/bin/python tests/benchmarks/bench_ratio.py [--quick]
+Run:  .venv/bin/python tests/benchmarks/bench_ratio.py [--quick] [--only start|sweep|fractions|exhaustive]
 
 Prints, in one run:
+* the fast start: ``gearcad ratio 29.530588853 --stages 2`` against
+  ``python -c "import numpy"``, fresh processes taken in turn, the median of 11
+  runs each (after one warm-up), wall and CPU (user + system) time, and their
+  ratio against the limit of 1.2x;
 * a sweep of 40 log-spaced targets from 1e-4 to 1e4 plus 0.001, 1/300, 100 and
   1/1436.0682, each at 2, 3 and 4 stages, each in a fresh process running
   ``gearcad ratio TARGET --stages K --json`` (2 and 3 stages over the default
@@ -10,14 +14,16 @@ Prints, in one run:
   the command (``main`` alone, once numpy is loaded, and the whole process) and the worst peak memory
   of the process (``ru_maxrss`` of that child, from ``os.wait4``), against the
   limits of the issue: 1 s up to 3 stages, 2 s at 4 stages, 1 GiB;
-* the fast start: ``gearcad ratio 29.530588853 --stages 2`` against
-  ``python -c "import numpy"`` (median of 5 each; limit 1.2x);
+* simple fractions at 4 stages over 10-200 teeth: 20 fractions p/q with p, q
+  from 1 to 200 (random, seed 11) and 3/10, 131/100, each in a fresh process,
+  worst time and worst peak memory against 2 s and 1 GiB (exact hits and
+  near-1 targets were the slow cases);
 * the solver against the exhaustive reference of tests/test_ratio_optimality.py
   on one 2-stage instance (time ratio, same optimum).
 
 Children run with bytecode caching allowed (as an installed gearcad does), after
-one warm-up run.  The machine's load shows in every figure: read them with
-``uptime`` in mind.
+one warm-up run.  The machine's load shows in every figure: the load average
+is printed first and last; read the figures with it in mind.
 """
 
 from __future__ import annotations
@@ -26,6 +32,7 @@ import importlib.util
 import json
 import os
 import pathlib
+import random
 import statistics
 import subprocess
 import sys
@@ -39,6 +46,8 @@ LIMITS = {2: 1.0, 3: 1.0, 4: 2.0}  # seconds, the issue's limits
 MEMORY_LIMIT = 1024  # MiB
 TEETH = {2: (10, 120), 3: (10, 120), 4: (10, 200)}
 EXTRA = ["0.001", "1/300", "100", "1/1436.0682"]
+FAST_START_LIMIT = 1.2
+FRACTION_SEED, FRACTION_COUNT = 11, 20
 
 DRIVER = r"""
 import io, json, sys, time, contextlib
@@ -89,47 +98,67 @@ def targets(count: int = 40) -> list[str]:
     return [f"{v:.6g}" for v in values] + EXTRA
 
 
+def _measure(label: str, listing: list[str], k: int, low: int, high: int) -> None:
+    """Run ``gearcad ratio`` on each target at ``k`` stages in a fresh process; print the worst figures."""
+    worst_main = worst_wall = worst_rss = worst_cpu = 0.0
+    worst_case = worst_rss_case = ""
+    reached = unreachable = 0
+    for text in listing:
+        argv = [sys.executable, "-c", DRIVER, "ratio", text, "--stages", str(k), "--json",
+                "--min-teeth", str(low), "--max-teeth", str(high)]
+        wall, rss, out, err, cpu = _run(argv)
+        try:
+            data = json.loads(out)
+        except json.JSONDecodeError:
+            print(f"  {k} stages {text}: no result ({err.strip()[-200:]})")
+            continue
+        code = data["code"]
+        reached += code == 0
+        unreachable += code == 1
+        if data["seconds"] > worst_main:
+            worst_main, worst_case = data["seconds"], text
+        if rss > worst_rss:
+            worst_rss, worst_rss_case = rss, text
+        worst_wall, worst_cpu = max(worst_wall, wall), max(worst_cpu, cpu)
+    verdict = "ok" if worst_main <= LIMITS[k] and worst_rss <= MEMORY_LIMIT else "OVER"
+    print(f"  {label}{k} stages, teeth {low}-{high}: {reached} solved, {unreachable} beyond reach (exit 1); "
+          f"worst main() {worst_main:.3f} s (target {worst_case}), worst process {worst_wall:.3f} s "
+          f"(CPU {worst_cpu:.3f} s), worst peak {worst_rss:.0f} MiB (target {worst_rss_case}); "
+          f"limits {LIMITS[k]:g} s, {MEMORY_LIMIT} MiB: {verdict}")
+
+
 def sweep(quick: bool = False) -> None:
     listing = targets(12 if quick else 40)
-    print(f"sweep: {len(listing)} targets (40 log-spaced 1e-4..1e4 and {', '.join(EXTRA)}), fresh process each")
+    print(f"sweep: {len(listing)} targets (log-spaced 1e-4..1e4 and {', '.join(EXTRA)}), fresh process each")
     _run([sys.executable, "-c", DRIVER, "ratio", "2", "--stages", "2", "--json"])  # warm-up: bytecode caches
     for k in (2, 3, 4):
-        low, high = TEETH[k]
-        worst_main = worst_wall = worst_rss = worst_cpu = 0.0
-        worst_case = ""
-        reached = unreachable = 0
-        for text in listing:
-            argv = [sys.executable, "-c", DRIVER, "ratio", text, "--stages", str(k), "--json",
-                    "--min-teeth", str(low), "--max-teeth", str(high)]
-            wall, rss, out, err, cpu = _run(argv)
-            try:
-                data = json.loads(out)
-            except json.JSONDecodeError:
-                print(f"  {k} stages {text}: no result ({err.strip()[-200:]})")
-                continue
-            code = data["code"]
-            reached += code == 0
-            unreachable += code == 1
-            if data["seconds"] > worst_main:
-                worst_main, worst_case = data["seconds"], text
-            worst_wall, worst_rss, worst_cpu = max(worst_wall, wall), max(worst_rss, rss), max(worst_cpu, cpu)
-        verdict = "ok" if worst_main <= LIMITS[k] and worst_rss <= MEMORY_LIMIT else "OVER"
-        print(f"  {k} stages, teeth {low}-{high}: {reached} solved, {unreachable} beyond reach (exit 1); "
-              f"worst main() {worst_main:.3f} s (target {worst_case}), worst process {worst_wall:.3f} s "
-              f"(CPU {worst_cpu:.3f} s), "
-              f"worst peak {worst_rss:.0f} MiB; limits {LIMITS[k]:g} s, {MEMORY_LIMIT} MiB: {verdict}")
+        _measure("", listing, k, *TEETH[k])
 
 
-def fast_start() -> None:
+def fractions(quick: bool = False) -> list[str]:
+    """Simple fractions p/q (p, q from 1 to 200, seeded) and 3/10, 131/100, at 4 stages over 10-200 teeth."""
+    rng = random.Random(FRACTION_SEED)
+    listing = [f"{rng.randint(1, 200)}/{rng.randint(1, 200)}" for _ in range(6 if quick else FRACTION_COUNT)]
+    listing += ["3/10", "131/100"]
+    print(f"simple fractions: {', '.join(listing)}; fresh process each")
+    _run([sys.executable, "-c", DRIVER, "ratio", "2", "--stages", "2", "--json"])  # warm-up: bytecode caches
+    _measure("fractions, ", listing, 4, *TEETH[4])
+    return listing
+
+
+def fast_start(runs: int = 11) -> None:
+    """Median wall and CPU time of ``gearcad ratio 29.530588853 --stages 2`` against ``python -c 'import numpy'``."""
     numpy_runs, ratio_runs = [], []
-    for _ in range(10):
+    for _ in range(runs + 1):  # taken in turn, so a change of load touches both; the first of each is a warm-up
         numpy_runs.append(_run([sys.executable, "-c", "import numpy"]))
         ratio_runs.append(_run([sys.executable, "-m", "gearcad", "ratio", "29.530588853", "--stages", "2"]))
     for name, index in (("wall", 0), ("CPU", 4)):
         a = statistics.median(r[index] for r in numpy_runs[1:])
         b = statistics.median(r[index] for r in ratio_runs[1:])
-        print(f"fast start ({name}, median of 9): python -c 'import numpy' {a:.3f} s; "
-              f"gearcad ratio 29.530588853 --stages 2 {b:.3f} s; ratio {b / a:.2f}x (limit 1.2x)")
+        verdict = "ok" if b / a <= FAST_START_LIMIT else "OVER"
+        print(f"fast start ({name}, median of {runs}): python -c 'import numpy' {a:.3f} s; "
+              f"gearcad ratio 29.530588853 --stages 2 {b:.3f} s; ratio {b / a:.2f}x "
+              f"(limit {FAST_START_LIMIT}x): {verdict}")
 
 
 def _reference():
@@ -163,11 +192,19 @@ def compare_with_exhaustive(low: int, high: int) -> None:
 
 def main() -> None:
     quick = "--quick" in sys.argv
+    parts = ("start", "sweep", "fractions", "exhaustive")
+    if "--only" in sys.argv:
+        parts = tuple(sys.argv[sys.argv.index("--only") + 1].split(","))
     print(f"load average: {os.getloadavg()[0]:.2f} on {os.cpu_count()} cores")
-    fast_start()
-    sweep(quick)
-    if not quick:
+    if "start" in parts:
+        fast_start()
+    if "sweep" in parts:
+        sweep(quick)
+    if "fractions" in parts:
+        fractions(quick)
+    if "exhaustive" in parts and not quick:
         compare_with_exhaustive(10, 120)
+    print(f"load average at the end: {os.getloadavg()[0]:.2f}")
 
 
 if __name__ == "__main__":
