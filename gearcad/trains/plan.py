@@ -115,6 +115,7 @@ class Plan:
     findings: tuple[Finding, ...]
     mechanism: object | None = None  # gearcad.trains.supports.Mechanism: supports, bought parts, interference
     worm: object | None = None  # gearcad.trains.worm_stage.WormLayout: a worm stage's worm, across the plates
+    bonded: tuple[tuple[str, ...], ...] = ()  # parts glued face on face into one, each group bottom up (plate/gear names)
 
     def gear(self, name: str) -> PlannedGear:
         """The planned gear called ``name``."""

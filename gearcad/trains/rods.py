@@ -56,7 +56,8 @@ def holding_discs(plan, s) -> list:
 
 def add_spacers(w: Work, name: str, x: float, y: float, d: float, occupied: list[tuple[float, float]],
                 lo: float, hi: float) -> None:
-    """Spacers on a shaft in every gap between ``occupied`` intervals from ``lo`` to ``hi``; the last one short by the end shake.
+    """Spacers on a shaft in every gap between ``occupied`` intervals from ``lo`` to ``hi``; the last one long enough
+    (over twice the end shake) short by the end shake, so the parts between them keep their play.
 
     Those shorter than the shaft's diameter are named washers (``hardware.spacer_word``).
     """
@@ -72,8 +73,9 @@ def add_spacers(w: Work, name: str, x: float, y: float, d: float, occupied: list
         return
     inner = d + w.fab.bore_clearance
     outer = d + 2 * SPACER_WALL
+    short = max((k for k, (a, b) in enumerate(gaps, start=1) if b - a > 2 * END_SHAKE), default=None)
     for k, (a, b) in enumerate(gaps, start=1):
-        top = b - END_SHAKE if k == len(gaps) and b - a > 2 * END_SHAKE else b
+        top = b - END_SHAKE if k == short else b
         w.rods.append(Rod(spacer_name(name, k, top - a, d), "spacer", x, y, outer, inner, a, top))
 
 
