@@ -14,7 +14,7 @@ import numpy as np
 
 from .hardware import FRAME, Sweep
 
-__all__ = ["gear_top", "sweeps_of", "clear_of_sweeps"]
+__all__ = ["gear_top", "sweeps_of", "clear_of_sweeps", "near_outline"]
 
 
 def gear_top(g, thickness: float) -> float:
@@ -78,3 +78,15 @@ def clear_of_sweeps(x: float, y: float, r: float, z0: float, z1: float, sweeps, 
         inside = (w.inner - d - r) if w.inner > 0 else -math.inf
         gap = min(gap, max(outside, inside))
     return gap - margin
+
+
+def near_outline(pts: np.ndarray, p: np.ndarray, reach: float) -> bool:
+    """Whether point ``p`` lies inside the closed outline ``pts`` or within ``reach`` of its edge, mm."""
+    a, b = pts, np.roll(pts, -1, axis=0)
+    ab = b - a
+    k = np.clip(np.einsum("ij,ij->i", p - a, ab) / np.einsum("ij,ij->i", ab, ab), 0, 1)
+    if float(np.min(np.hypot(*(p - (a + k[:, None] * ab)).T))) < reach:
+        return True
+    crosses = ((a[:, 1] > p[1]) != (b[:, 1] > p[1])) & (
+        p[0] < a[:, 0] + (p[1] - a[:, 1]) * ab[:, 0] / np.where(ab[:, 1] == 0, 1, ab[:, 1]))
+    return bool(np.count_nonzero(crosses) % 2)
