@@ -12,6 +12,7 @@ import shapely
 import sympy
 
 from gearcad.cli import main
+from gearcad.trains.hardware import END_SHAKE
 from gearcad.trains.plan import placed_holes, placed_outline
 from gearcad.trains.planner import plan_train
 from gearcad.trains.trainfile import parse_train, train_to_toml
@@ -167,7 +168,8 @@ def test_every_planet_pin_is_held_at_both_ends_in_two_carrier_discs_that_clear_t
         ring = plan.gear("ring")
         bore = shapely.Polygon(spacer.part.holes[0].points())
         disc = shapely.Polygon(lower.part.outer.points())
-        assert spacer.z == lower.z and bore.contains(disc)
+        # The disc turns inside the glued cup, the end shake over the web (the spacer ring's lower face).
+        assert lower.z == pytest.approx(spacer.z + END_SHAKE, abs=1e-9) and bore.contains(disc)
         assert disc.exterior.distance(bore.exterior) >= plan.fabrication.gear_clearance - 1e-3
         web = next(p for p in plan.plates if p.name == "ring-web")
         assert web.z < spacer.z < ring.z < z_of["carrier"]
@@ -194,21 +196,79 @@ idler = 19
 """
 
 
-def test_the_ring_web_and_spacer_stay_bonded_under_the_ring_when_an_idler_needs_a_bridge():
-    # Web, spacer ring and ring are one bonded stack: one layer pitch apart, whatever bridge room the train needs;
-    # the idler's bridge stands beside the differential in the spacer ring's layer, and the assembly is clean.
+def test_the_ring_web_and_spacer_stay_glued_under_the_ring_when_an_idler_needs_a_bridge():
+    # Web, spacer ring and ring are one glued stack, face on face, whatever bridge room the train needs; the
+    # idler's bridge stands beside the differential below the ring's layer, and the assembly is clean.
     from gearcad.trains.interference import check_assembly
 
     plan = plan_train(parse_train(BRIDGED_B))
     z = {p.name: p.z for p in plan.plates}
-    pitch = plan.spec.thickness + plan.fabrication.layer_gap
-    assert z["ring-spacer"] - z["ring-web"] == pytest.approx(pitch)
-    assert plan.gear("ring").z - z["ring-spacer"] == pytest.approx(pitch)
+    t = plan.spec.thickness
+    assert z["ring-spacer"] - z["ring-web"] == pytest.approx(t, abs=1e-9)
+    assert plan.gear("ring").z - z["ring-spacer"] == pytest.approx(t, abs=1e-9)
     idler = next(s for s in plan.mechanism.shafts if s.name == "idler-b")
-    assert "bridge-idler-b" in idler.supports and z["bridge-idler-b"] == pytest.approx(z["ring-spacer"])
-    assert all(s.free_span == pytest.approx(pitch + plan.fabrication.layer_gap)
+    assert "bridge-idler-b" in idler.supports
+    assert z["bridge-idler-b"] + t <= plan.gear("b-idler").z - plan.fabrication.layer_gap + 1e-9
+    # Each pin's free span: the planet and its two washers, the end shake above the disc and the layer gap under the
+    # upper carrier.
+    assert all(s.free_span == pytest.approx(t + END_SHAKE + plan.fabrication.layer_gap)
                for s in plan.mechanism.shafts if s.name.startswith("pin-"))
     assert check_assembly(plan, plan.mechanism).overlaps == ()
+
+
+def _footprint(plan, name):
+    """A flat part's material in the plane as placed (shapely): gear tip circle, ring annulus, plate outline less its
+    inner contours (a spacer ring's bore)."""
+    from shapely.geometry import Point
+
+    gear = next((g for g in plan.gears if g.name == name), None)
+    if gear is not None:
+        s = plan.shafts[gear.shaft]
+        if gear.role == "ring":
+            return Point(s.x, s.y).buffer(gear.gear.outer_diameter / 2, 256).difference(
+                Point(s.x, s.y).buffer(gear.gear.tip_diameter / 2, 256))
+        return Point(s.x, s.y).buffer(gear.gear.tip_diameter / 2, 256)
+    plate = next(p for p in plan.plates if p.name == name)
+    return shapely.Polygon(plate.part.outer.points(), [h.points() for h in plate.part.holes])
+
+
+@pytest.mark.parametrize("text", [PLANETARY, BRIDGED_B, MEAN], ids=["planetary", "bridged", "mean"])
+def test_glued_parts_meet_face_on_face_and_every_other_part_keeps_the_end_shake(text):
+    # Recomputed from the plan: every glued pair's faces meet (top of one = bottom of the next, 1e-9 mm) over a
+    # shared area (shapely); every other pair of flat parts that overlap in the plane (gears, discs, plates, bridges)
+    # keeps at least the end shake between its faces (END_SHAKE, common practice for small clockwork), but meshing
+    # gears, which share their layer.  The carrier disc drops in through the ring (shapely: inside its tip circle).
+    plan = plan_train(parse_train(text))
+    t = plan.spec.thickness
+    z = {p.name: p.z for p in plan.plates} | {g.name: g.z for g in plan.gears}
+    top = {p.name: p.z + t for p in plan.plates} | {g.name: g.z + t + g.hub_length for g in plan.gears}
+    glued = {frozenset(pair) for group in plan.bonded for pair in zip(group, group[1:])}
+    for group in plan.bonded:
+        for lower, upper in zip(group, group[1:]):
+            assert abs(top[lower] - z[upper]) <= 1e-9, (lower, upper)
+            assert _footprint(plan, lower).intersection(_footprint(plan, upper)).area > 1.0
+    if plan.spec.summing.differential == "planetary":
+        assert plan.bonded == (("ring-web", "ring-spacer", "ring"),)
+        ring = plan.gear("ring")
+        disc = shapely.Polygon(next(p for p in plan.plates if p.name == "carrier-back").part.outer.points())
+        s = plan.shafts[ring.shaft]
+        assert shapely.Point(s.x, s.y).buffer(ring.gear.tip_diameter / 2, 256).contains(disc)
+    meshing = {frozenset(m.names) for m in plan.meshes}
+    planets = [g.name for g in plan.gears if g.role == "planet"]
+    meshing |= {frozenset((p, q)) for p in planets for q in planets + [g.name for g in plan.gears
+                                                                       if g.role in ("sun", "ring")] if p != q}
+    names = list(z)
+    checked = 0
+    for i, a in enumerate(names):
+        for b in names[i + 1:]:
+            if frozenset((a, b)) in glued | meshing:
+                continue
+            if _footprint(plan, a).intersection(_footprint(plan, b)).area <= 1e-6:
+                continue
+            gap = max(z[b] - top[a], z[a] - top[b])
+            assert gap >= END_SHAKE - 1e-9, (a, b, gap)
+            checked += 1
+    assert checked > 10
 
 
 @pytest.mark.parametrize("sun,pairs", [(z, n) for z in range(13, 25) for n in (2, 3, 4, 5)])

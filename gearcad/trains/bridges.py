@@ -18,9 +18,9 @@ import numpy as np
 from ..geometry.shape import Loop, Part, arc_curve, line_curve
 from .hardware import EDGE_RULE, Rod, ShaftSupport
 from .rods import Work, add_pillar, frame_shaft, stud
-from .sweeps import clear_of_sweeps, gear_top
+from .sweeps import clear_of_sweeps, gear_top, near_outline
 
-__all__ = ["Ahead", "bridge_z", "bridged_span", "near_outline", "bridged"]
+__all__ = ["Ahead", "bridge_z", "bridged_span", "bridged"]
 
 
 @dataclass(frozen=True)
@@ -58,18 +58,6 @@ def _stadium(p1: np.ndarray, p2: np.ndarray, half: float, tolerance: float) -> L
     a1 = arc_curve(tuple(p1), half, phi + math.pi / 2, phi + 3 * math.pi / 2, tolerance)
     return Loop((a2, line_curve(tuple(a2.points[-1]), tuple(a1.points[0])), a1,
                  line_curve(tuple(a1.points[-1]), tuple(a2.points[0]))))
-
-
-def near_outline(pts: np.ndarray, p: np.ndarray, reach: float) -> bool:
-    """Whether point ``p`` lies inside the closed outline ``pts`` or within ``reach`` of its edge, mm."""
-    a, b = pts, np.roll(pts, -1, axis=0)
-    ab = b - a
-    k = np.clip(np.einsum("ij,ij->i", p - a, ab) / np.einsum("ij,ij->i", ab, ab), 0, 1)
-    if float(np.min(np.hypot(*(p - (a + k[:, None] * ab)).T))) < reach:
-        return True
-    crosses = ((a[:, 1] > p[1]) != (b[:, 1] > p[1])) & (
-        p[0] < a[:, 0] + (p[1] - a[:, 1]) * ab[:, 0] / np.where(ab[:, 1] == 0, 1, ab[:, 1]))
-    return bool(np.count_nonzero(crosses) % 2)
 
 
 def _segment_distance(p: np.ndarray, a: np.ndarray, b: np.ndarray) -> float:

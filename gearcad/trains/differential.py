@@ -145,8 +145,8 @@ def _finish(build: SummingBuild, spec, system, fab, layout, placed, sides, keys,
 
     room = bridge_room(spec.thickness, fab.layer_gap)
     room_a = "idler-a" in sides and not sides["idler-a"][1]
-    # The planetary differential's web and spacer ring are bonded under the ring (layers 1 and 2 under 3): no room
-    # may open between them, so idler b's bridge stands beside the differential in the spacer ring's layer.
+    # The planetary differential's web, spacer ring and ring are glued face on face (its stack): no room may open
+    # between them, so idler b's bridge stands beside the differential, below the ring's layer.
     room_b = "idler-b" in sides and not sides["idler-b"][0] and diff.kind != "planetary"
 
     def z_of(layer: int) -> float:
@@ -162,8 +162,9 @@ def _finish(build: SummingBuild, spec, system, fab, layout, placed, sides, keys,
     index = {k: i for i, k in enumerate(shaft_keys)}
     planned = []
     for g in build.gears:
+        z = diff.gear_z(g.role, g.layer, z_of, spec.thickness, fab.layer_gap)
         planned.append(PlannedGear(g.name, g.role, g.stage, g.gear, g.spec, index[g.shaft], g.layer, g.bore, g.part,
-                                   g.cut, g.rotation, z_of(g.layer), label_at=g.label_at))
+                                   g.cut, g.rotation, z, label_at=g.label_at))
     axle = np.array([shafts[index["axle"]].x, shafts[index["axle"]].y])
     discs = diff.plates(build, axle, z_of)
     # The front plate above the top layer and above every disc (the planetary differential's carrier sits one
@@ -181,7 +182,7 @@ def _finish(build: SummingBuild, spec, system, fab, layout, placed, sides, keys,
         f"carrier (output) turns {signed.numerator}/{signed.denominator} per input turn from the kinematic model; "
         f"side a at {rho[0]}, side b at {rho[1]}, {diff.kind} differential"))
     return Plan(spec, system, fab, tuple(planned), meshes, tuple(shafts), tuple(plates), layout,
-                abs(signed), direction_of(signed), tolerance, tuple(build.findings))
+                abs(signed), direction_of(signed), tolerance, tuple(build.findings), bonded=diff.bonded())
 
 
 def _rated(meshes: list, paths, diff, signed: Fraction, rho: list[Fraction], spec: TrainSpec, fab: Fabrication,
@@ -219,7 +220,7 @@ def _rated(meshes: list, paths, diff, signed: Fraction, rho: list[Fraction], spe
     for m in meshes:
         at = wanted[m.names]
         rate = rate_internal_pair if hasattr(m.pair, "ring") else rate_pair
-        rating = rate(m.pair, at.torque, at.speed, spec.thickness, material, material, process)
+        rating = rate(m.pair, at.torque, at.speed, diff.face(m.names, spec.thickness), material, material, process)
         out.append(PlannedMesh(m.names, m.pair, m.analysis, m.findings + rating.findings(), rating))
     return tuple(out)
 

@@ -84,6 +84,18 @@ class MeanDifferential:
         reach = self.radius + self.planet.tip_diameter / 2
         return [(1, self.carrier_radius), (2, reach), (3, reach), (4, reach), (5, self.carrier_radius)]
 
+    def gear_z(self, role: str, layer: int, z_of, thickness: float, gap: float) -> float:
+        """A gear's lower face: its layer's, mm."""
+        return z_of(layer)
+
+    def bonded(self) -> tuple[tuple[str, ...], ...]:
+        """No part of the spur differential is glued to another."""
+        return ()
+
+    def face(self, names: tuple[str, str], thickness: float) -> float:
+        """Face width of a mesh, mm: every gear of the spur differential meets its mates over the full sheet."""
+        return thickness
+
     def add(self, build: SummingBuild, axle: np.ndarray, input_at: np.ndarray, paths) -> None:
         ss = self.spec.summing
         _check_bore("sun-a", self.sun, GearSpec(ss.sun), self.tube)

@@ -1,15 +1,24 @@
 """The planetary differential of a summing train: sun on side A, ring (with outside teeth) on side B.
 
-Pure.  Layers 0 path A; 1 a web bonded under the ring (it rides on sun A's tube); 2 a spacer
-ring bonded between web and ring, and inside it the lower carrier disc; 3 sun, planets and ring,
-whose outside teeth are path B's driven gear; 4 the upper carrier disc.  Each planet pin is held
-at both ends, in the two carrier discs (as in :mod:`.epicyclic`); the pins join the discs.  The
-carrier is the output.  Lengths in mm, angles in radians.
+Pure.  Layers 0 path A; 1 a web under the ring (it rides on sun A's tube); 2 a spacer ring
+between web and ring, and inside it the lower carrier disc; 3 sun, planets and ring, whose
+outside teeth are path B's driven gear; 4 the upper carrier disc.  Each planet pin is held at
+both ends, in the two carrier discs (as in :mod:`.epicyclic`); the pins join the discs.  The
+carrier is the output.
+
+The web, the spacer ring and the ring are glued into one cup, face on face (:meth:`stack`): the
+top of one is the bottom of the next.  Gaps stay only between parts that turn relative to each
+other: the lower carrier disc stands ``END_SHAKE`` above the web inside the cup (so it stands
+out of the spacer ring by as much), the sun and the planets ``END_SHAKE`` above the disc, so
+they stand ``2 END_SHAKE`` above the ring and mesh it over the sheet's thickness less that
+(path B's gears stay level with the ring, whose outside teeth they mesh over the full face).
+Lengths in mm, angles in radians.
 """
 
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 from fractions import Fraction
 
 import numpy as np
@@ -17,6 +26,7 @@ import numpy as np
 from ..meshes.checks import Finding, analyse_pair
 from .epicyclic import kerf_cut, ring_phase, same_phase
 from ..errors import InputError
+from .hardware import END_SHAKE
 from ..geometry.internal import ring_loop
 from ..geometry.shape import Part, circle_loop, gear_loop
 from ..meshes.internal import analyse_internal_pair, make_internal_pair
@@ -30,7 +40,20 @@ from ..ratio.summing import summing_ratio
 from .spec import GearSpec, TrainSpec
 from .summing_paths import SummingBuild, SummingPath
 
-__all__ = ["PlanetaryDifferential"]
+__all__ = ["PlanetaryDifferential", "DifferentialStack"]
+
+
+@dataclass(frozen=True)
+class DifferentialStack:
+    """Lower faces (mm) of the planetary differential's parts: the glued cup (web, spacer, ring), the lower carrier
+    disc in it, the sun and planets above the disc, and the upper carrier disc."""
+
+    web: float
+    spacer: float
+    ring: float
+    disc: float
+    planets: float
+    carrier: float
 
 
 class PlanetaryDifferential:
@@ -79,7 +102,37 @@ class PlanetaryDifferential:
 
     def envelope(self):
         web = self._web_diameter() / 2
-        return [(1, web), (2, web), (4, self.carrier_radius)]
+        # The planets stand 2 END_SHAKE above the ring, into the upper carrier's layer.
+        reach = self.radius + self.sun_pair.gear2.tip_diameter / 2
+        return [(1, web), (2, web), (4, max(self.carrier_radius, reach))]
+
+    def stack(self, z_of, thickness: float, gap: float) -> DifferentialStack:
+        """The z stack from the web's layer (``z_of(1)``): the cup face on face, the moving parts END_SHAKE apart.
+
+        ``thickness``: the sheet's, ``gap``: the fabrication profile's layer gap (under the upper carrier disc,
+        room for the planet pins' washers with the end shake), mm.
+        """
+        web = z_of(1)
+        spacer = web + thickness
+        ring = spacer + thickness
+        disc = spacer + END_SHAKE  # turns in the cup: END_SHAKE over the web, so it stands END_SHAKE out of the spacer
+        planets = disc + thickness + END_SHAKE
+        return DifferentialStack(web, spacer, ring, disc, planets, planets + thickness + gap)
+
+    def gear_z(self, role: str, layer: int, z_of, thickness: float, gap: float) -> float:
+        """A gear's lower face: the sun and planets above the lower carrier disc; path B's gears level with the ring."""
+        st = self.stack(z_of, thickness, gap)
+        if role in ("sun", "planet"):
+            return st.planets
+        return st.ring if layer == self.top_layer else z_of(layer)
+
+    def bonded(self) -> tuple[tuple[str, ...], ...]:
+        """The parts glued face on face, bottom up."""
+        return (("ring-web", "ring-spacer", "ring"),)
+
+    def face(self, names: tuple[str, str], thickness: float) -> float:
+        """Face width of a mesh, mm: the planets meet the ring over the sheet less their 2 END_SHAKE rise."""
+        return thickness - 2 * END_SHAKE if "ring" in names and names[0].startswith("planet") else thickness
 
     def _web_diameter(self) -> float:
         return (self.outside.root_diameter + self.ring_pair.ring.root_diameter) / 2
@@ -116,16 +169,26 @@ class PlanetaryDifferential:
         build.findings += list(self.conditions.findings) + [
             Finding("assembly notes", "ok", self.tube, self.spec.bore,
                     f"the sun and path a's driven gear are fixed to one {self.tube:g} mm tube free on the "
-                    f"{self.spec.bore:g} mm axle; the ring web and the spacer ring are bonded under the ring and the web "
-                    "rides on that tube; the planet pins are held at both ends, in the lower carrier disc (turning "
-                    "inside the spacer ring, on the tube) and the carrier (the output, on the axle above the set); "
-                    "the pins join the two discs"),
+                    f"{self.spec.bore:g} mm axle; the ring web, the spacer ring and the ring are glued face on face into "
+                    "one cup whose web rides on that tube; the lower carrier disc drops into the cup through the ring "
+                    f"and turns in it {END_SHAKE:g} mm over the web (a shim washer on the tube between), the sun and "
+                    f"planets {END_SHAKE:g} mm over the disc; the planet pins are held at both ends, in the lower carrier "
+                    "disc and the carrier (the output, on the axle above the set); the pins join the two discs"),
+            self._face_finding(),
             Finding("lower carrier disc", "ok", self.disc_room, self.fab.gear_clearance,
                     f"the lower carrier disc clears the spacer ring by {self.disc_room:.3f} mm all round (at least "
                     f"{self.fab.gear_clearance:g} mm)"),
             Finding("ring rim", "ok", self.rim, MIN_RIM * self.m,
                     f"the ring's outside teeth ({self.outside.teeth}, path b's driven gear) leave {self.rim:.3f} mm of rim "
                     f"below their root circle (at least {MIN_RIM:g} module)")]
+
+    def _face_finding(self) -> Finding:
+        t = self.spec.thickness
+        face = self.face(("planet-1", "ring"), t)
+        # Our rule: the planets meet the ring over half the sheet at least (a thinner contact wears the teeth).
+        return Finding("ring face", "ok" if face >= t / 2 - 1e-9 else "failure", face, t / 2,
+                       f"the planets stand {2 * END_SHAKE:g} mm above the ring (the lower carrier disc turns under them "
+                       f"in the glued cup) and mesh it over {face:.2f} of the {t:g} mm sheet (at least half; our rule)")
 
     def rephase_path_b(self, build: SummingBuild, placed: dict, paths) -> None:
         """Turn path B's gears (from the input) so the last one meshes the ring's outside teeth."""
@@ -142,6 +205,7 @@ class PlanetaryDifferential:
 
     def plates(self, build: SummingBuild, axle: np.ndarray, z_of) -> list[PlannedPlate]:
         fab, tol = self.fab, build.tolerance
+        st = self.stack(z_of, self.spec.thickness, fab.layer_gap)
         pins = tuple((*c, self.pin + fab.bore_clearance) for _, c in self.pins)
         disc = circle_loop(*axle, 2 * self.carrier_radius, tol, clockwise=False)
         carrier = Part("carrier", disc, (), ((*axle, self.spec.bore + fab.bore_clearance),) + pins,
@@ -151,14 +215,14 @@ class PlanetaryDifferential:
                      f"{self.spec.name} carrier-back, {len(self.pins)} planet pins")
         rim = circle_loop(*axle, self._web_diameter(), tol, clockwise=False)
         web = Part("ring-web", rim, (), ((*axle, self.tube + fab.bore_clearance),),
-                   f"{self.spec.name} ring web (bond under the ring spacer)")
+                   f"{self.spec.name} ring web (glued under the ring spacer)")
         bore = circle_loop(*axle, self.ring_pair.ring.tip_diameter, tol, clockwise=True)  # an inner contour, not a hole
         spacer = Part("ring-spacer", rim, (bore,), (),
-                      f"{self.spec.name} ring spacer (bond between web and ring)")
-        return [PlannedPlate("ring-web", web, kerf_cut(web, fab, tol), z_of(1)),
-                PlannedPlate("ring-spacer", spacer, kerf_cut(spacer, fab, tol), z_of(2)),
-                PlannedPlate("carrier-back", lower, kerf_cut(lower, fab, tol), z_of(2)),
-                PlannedPlate("carrier", carrier, kerf_cut(carrier, fab, tol), z_of(self.top_layer + 1))]
+                      f"{self.spec.name} ring spacer (glued between web and ring)")
+        return [PlannedPlate("ring-web", web, kerf_cut(web, fab, tol), st.web),
+                PlannedPlate("ring-spacer", spacer, kerf_cut(spacer, fab, tol), st.spacer),
+                PlannedPlate("carrier-back", lower, kerf_cut(lower, fab, tol), st.disc),
+                PlannedPlate("carrier", carrier, kerf_cut(carrier, fab, tol), st.carrier)]
 
     def network(self, gears: list, meshes: list) -> None:
         ss = self.spec.summing

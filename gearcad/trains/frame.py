@@ -17,7 +17,7 @@ import numpy as np
 from ..errors import InputError
 from ..geometry.shape import Part, rounded_rectangle
 from .hardware import EDGE_RULE, FRAME
-from .bridges import near_outline
+from .sweeps import near_outline
 from .rods import Work, add_pillar
 from .sweeps import clear_of_sweeps, gear_top
 

@@ -17,13 +17,17 @@ plates (every arbor held at its two ends, the first rule of a movement; common
 practice), and keeps ``clearance`` from the tip circle of every gear in the
 layers it passes.  Only where no placement lets every shaft reach both plates
 does the search accept a shaft that reaches one plate: the plan then holds its
-other end in a bridge (``gearcad.trains.supports``).  Coaxial shafts coincide.
+other end in a bridge (``gearcad.trains.supports``), and the search ranks the
+placements with fewer such shafts first.  Other placements (``alternative``)
+are there for a planner whose best placement leaves a stud.  Coaxial shafts
+coincide.
 Pure numpy; lengths in mm, angles in radians.
 """
 
 from __future__ import annotations
 
 import dataclasses
+import functools
 import itertools
 import math
 from dataclasses import dataclass
@@ -36,6 +40,9 @@ __all__ = ["LayoutGear", "Link", "LayoutProblem", "Layout", "solve_layout", "mes
            "clearance_shortfall", "fit_plate"]
 
 ROTATIONS = np.radians(np.arange(0.0, 90.0, 3.0))
+ONE_PLATE = 1e9  # mm²: the score of a shaft that reaches one plate only, above any plate's area (a ranking key)
+ALTERNATIVES = 6  # other placements a planner may ask for
+SPREAD = math.radians(30.0)  # alternatives start from grid points this far apart in some turn at least
 
 
 @dataclass(frozen=True)
@@ -172,9 +179,25 @@ def _plate(problem: LayoutProblem, pos: np.ndarray, rotations: np.ndarray = ROTA
     return area[np.arange(len(area)), best], rotations[best]
 
 
+def _one_plate(problem: LayoutProblem, pos: np.ndarray) -> np.ndarray:
+    """How many shafts of each candidate reach one plate only (their other end wants a bridge, or a stud)."""
+    top = max(g.layer for g in problem.gears)
+    count = np.zeros(pos.shape[0])
+    for s in range(len(problem.shaft_radii)):
+        lo, hi = _shaft_layers(problem, s)
+        back = _shaft_gaps(problem, pos, s, set(range(0, lo))) <= 1e-9
+        front = _shaft_gaps(problem, pos, s, set(range(hi + 1, top + 1))) <= 1e-9
+        count += ~(back & front)
+    return count
+
+
 def _score(problem: LayoutProblem, turns: np.ndarray) -> np.ndarray:
+    """The plate's area of each candidate (inf where a rule fails); where shafts may reach one plate, fewer such
+    shafts first (each costs ``ONE_PLATE`` mm², more than any plate), then the area."""
     pos = _positions(problem, turns)
     area, _ = _plate(problem, pos)
+    if not problem.both_plates:
+        area = area + ONE_PLATE * _one_plate(problem, pos)
     return np.where(_violation(problem, pos) <= 1e-9, area, np.inf)
 
 
@@ -225,8 +248,25 @@ def _fixed_turns(problem: LayoutProblem) -> np.ndarray:
     return fixed
 
 
-def solve_layout(problem: LayoutProblem) -> Layout:
-    """Place the shafts for the smallest plate; raise :class:`InputError` when no placement keeps the rules."""
+def solve_layout(problem: LayoutProblem, alternative: int = 0) -> Layout | None:
+    """Place the shafts for the smallest plate; raise :class:`InputError` when no placement keeps the rules.
+
+    ``alternative`` k > 0: the k-th other placement, refined from a grid point at least ``SPREAD`` away in some
+    turn from those before it (a planner tries them where the best one leaves a shaft on a stud); ``None`` when
+    there are no more.
+    """
+    found = _candidates(problem, ALTERNATIVES if alternative else 0)
+    if alternative >= len(found):
+        return None
+    problem, pos, free = found[alternative]
+    fine = np.radians(np.arange(0.0, 90.0, 0.05))
+    _, rotation = _plate(problem, pos[None], fine)
+    return _place_on_plate(problem, pos, float(rotation[0]), free)
+
+
+@functools.lru_cache(maxsize=8)
+def _candidates(problem: LayoutProblem, wanted: int) -> list[tuple[LayoutProblem, np.ndarray, int]]:
+    """The best placement and up to ``wanted`` distinct others: (the problem whose rules they keep, positions, free)."""
     fixed = _fixed_turns(problem)
     free = int(np.isnan(fixed).sum())
     grid = _grid(free)
@@ -240,17 +280,39 @@ def solve_layout(problem: LayoutProblem) -> Layout:
         raise InputError(f"no shaft layout keeps every gear clear (short by {shortfall:.2f} mm at best): "
                          "a gear on one shaft is larger than the distance to a shaft it passes; "
                          "change the tooth counts or use fewer stages")
-    order = np.argsort(scores)[: min(8, int(np.isfinite(scores).sum()))]
+    finite = int(np.isfinite(scores).sum())
+    order = np.argsort(scores)[: min(8, finite)]
     best_turns, best_score = grid[order[0]], float(scores[order[0]])
     for k in order if free else []:
         turns, score = _refine(problem, grid[k], fixed)
         if score < best_score:
             best_turns, best_score = turns, score
-    turns = _with_fixed(best_turns[None], fixed)
-    pos = _positions(problem, turns)
-    fine = np.radians(np.arange(0.0, 90.0, 0.05))
-    _, rotation = _plate(problem, pos, fine)
-    return _place_on_plate(problem, pos[0], float(rotation[0]), free)
+    chosen = [best_turns]
+    if free and wanted:
+        seeds = [grid[order[0]]]
+        for k in np.argsort(scores)[:finite]:
+            if len(chosen) > wanted:
+                break
+            if min(float(np.abs(_wrap(grid[k] - q)).max()) for q in seeds) < SPREAD:
+                continue
+            seeds.append(grid[k])
+            turns, _ = _refine(problem, grid[k], fixed)
+            shape = _shape(_positions(problem, _with_fixed(turns[None], fixed))[0])
+            if all(np.abs(shape - _shape(_positions(problem, _with_fixed(q[None], fixed))[0])).max() > 1e-3
+                   for q in chosen):  # not the same placement, nor its mirror image
+                chosen.append(turns)
+    return [(problem, _positions(problem, _with_fixed(t[None], fixed))[0], free) for t in chosen]
+
+
+def _shape(pos: np.ndarray) -> np.ndarray:
+    """A placement's distances between every two shafts, in order: equal for placements equal up to a rigid motion
+    or a mirror image (which hold their shafts alike), mm."""
+    d = pos[:, None, :] - pos[None, :, :]
+    return np.hypot(d[..., 0], d[..., 1])
+
+
+def _wrap(angles: np.ndarray) -> np.ndarray:
+    return (angles + math.pi) % (2 * math.pi) - math.pi
 
 
 def clearance_shortfall(problem: LayoutProblem, positions: np.ndarray) -> float:

@@ -124,12 +124,38 @@ def _gear_words(plan, g) -> str:
     return f"gear {g.name} on {plan.shafts[g.shaft].name}"
 
 
+def _z_of(plan, name: str) -> float:
+    return next(p.z for p in (*plan.plates, *plan.gears) if p.name == name)
+
+
+def _inside_glued(plan, p) -> str:
+    """Words for a disc that turns inside a glued group (a carrier disc in the differential's cup)."""
+    t = plan.spec.thickness
+    for group in plan.bonded:
+        lo, hi = min(_z_of(plan, n) for n in group), max(_z_of(plan, n) for n in group) + t
+        if lo < p.z < hi:
+            return f", dropped into the glued part through {group[-1]}"
+    return ""
+
+
+def _glue_words(plan, group: tuple[str, ...]) -> str:
+    """Glue a bonded group face on face (a planetary differential's web, spacer ring and ring: the ring's tips
+    stand flush with the spacer ring's bore, which is their circle, so the eye or a fingertip centres it)."""
+    words = f"Glue {', '.join(group[:-1])} and {group[-1]} face on face, in this order from the bottom, into one part"
+    if {"ring-spacer", "ring"} <= set(group):
+        words += (": outer edges of the web and the spacer ring flush, the ring's tooth tips flush with the spacer "
+                  "ring's bore all round (the bore is their tip circle); keep glue out of the bore and off the teeth")
+    return words + "."
+
+
 def assembly_steps(plan) -> list[str]:
     """Numbered assembly steps (without the numbers): joins, the front plate's bridges, then from the back plate up."""
     mech = plan.mechanism
     if mech is None:
         return []
     steps = [(f"Join {' and '.join(j.gears)}: " if len(j.gears) > 1 else "") + f"{j.note}." for j in mech.joins]
+    steps += [_glue_words(plan, group) for group in plan.bonded]
+    glued = {n: group for group in plan.bonded for n in group}
     front_bridges = [b for b in mech.bridges if _bridge_side(plan, b) == "front"]
     front_studs = sorted(s.name for s in mech.shafts if s.kind == "stud" and s.supports == ("front-plate",))
     held_front = {s.name for s in mech.shafts if any(b in s.supports for b in front_bridges)} | set(front_studs)
@@ -154,14 +180,17 @@ def assembly_steps(plan) -> list[str]:
     for r in sorted(holders, key=lambda r: r.z0):
         steps.append(f"Fit the {_WHAT[r.kind]} {r.name} ({r.diameter:g} mm, {r.length:.2f} mm long) into its hole in the "
                      f"{r.supports[0] if r.supports else 'plate'}.")
-    items = [(g.z, _gear_words(plan, g)) for g in plan.gears if plan.shafts[g.shaft].name not in held_front]
+    items = [(g.z, _gear_words(plan, g)) for g in plan.gears if plan.shafts[g.shaft].name not in held_front
+             and g.name not in glued]
     items += [(r.z0, f"{_word(plan, r)} {r.name} ({r.length:.2f} mm)") for r in mech.rods
               if r.kind in ("spacer", "pipe", "pin", "dowel") and not any(r.name.startswith(f"{n}-") for n in held_front)]
     items += [(r.z0, f"pillar sleeve {r.name} ({r.length:.2f} mm) over its screw") for r in mech.rods
               if r.kind == "pillar" and "back-plate" not in r.supports and not set(r.supports) & set(front_bridges)]
     # Discs first in their layer (a carrier disc before the pins that stand in it); a bonded part says so.
-    items = [(p.z, p.name + (f" {p.part.label[p.part.label.index('('):]}" if "(bond" in p.part.label else ""))
-             for p in plan.plates if p.name not in ("back-plate", "front-plate") and p.name not in front_bridges] + items
+    items = [(p.z, p.name + _inside_glued(plan, p)) for p in plan.plates
+             if p.name not in ("back-plate", "front-plate") and p.name not in front_bridges and p.name not in glued] + items
+    items += [(min(_z_of(plan, n) for n in group), f"the glued {' + '.join(group)} (one part) over the "
+               + next(plan.shafts[g.shaft].name for g in plan.gears if g.name in group)) for group in plan.bonded]
     bridges = set(mech.bridges)
     layer = None
     for z, what in sorted(items, key=lambda t: t[0]):

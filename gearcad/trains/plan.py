@@ -115,6 +115,7 @@ class Plan:
     findings: tuple[Finding, ...]
     mechanism: object | None = None  # gearcad.trains.supports.Mechanism: supports, bought parts, interference
     worm: object | None = None  # gearcad.trains.worm_stage.WormLayout: a worm stage's worm, across the plates
+    bonded: tuple[tuple[str, ...], ...] = ()  # parts glued face on face into one, each group bottom up (plate/gear names)
 
     def gear(self, name: str) -> PlannedGear:
         """The planned gear called ``name``."""
@@ -294,7 +295,8 @@ def _tool_finding(name: str, loop: Loop, fab: Fabrication) -> Finding | None:
                    f"{name}: the tightest root fillet ({tightest:.3f} mm radius) takes the {fab.tool_radius:g} mm tool")
 
 
-def _layout(spec: TrainSpec, chain: _Chain, pairs, bores: dict[int, float], fab: Fabrication) -> tuple[LayoutProblem, Layout]:
+def _layout(spec: TrainSpec, chain: _Chain, pairs, bores: dict[int, float], fab: Fabrication,
+            alternative: int = 0) -> tuple[LayoutProblem, Layout | None]:
     names = [g[0] for g in chain.gears]
     gears = tuple(LayoutGear(name, shaft, layer, _gear_of(name, pairs).tip_diameter / 2)
                   for name, _, _, _, shaft, layer in chain.gears)
@@ -308,7 +310,7 @@ def _layout(spec: TrainSpec, chain: _Chain, pairs, bores: dict[int, float], fab:
     # What passes the gears of other layers is the shaft with its spacer tube on it.
     problem = LayoutProblem(tuple(bores[s] / 2 + SPACER_WALL for s in range(chain.shafts)), gears, links, meshes,
                             fab.gear_clearance, fab.plate_margin, coaxial)
-    return problem, solve_layout(problem)
+    return problem, solve_layout(problem, alternative)
 
 
 def _phases(chain: _Chain, layout: Layout) -> dict[str, float]:
@@ -391,8 +393,13 @@ def _meshes(chain: _Chain, pairs, fab: Fabrication, spec: TrainSpec, load: Input
         yield PlannedMesh((a, b), pair, analysis, extra, rating)
 
 
-def plan_compound(spec: TrainSpec, tolerance: float, load: InputLoad | None) -> tuple[Plan, dict[int, str]]:
-    """The plan of a compound train (its ``[[stage]]`` tables) and the bridges its layout asks for."""
+def plan_compound(spec: TrainSpec, tolerance: float, load: InputLoad | None,
+                  alternative: int = 0) -> tuple[Plan, dict[int, str]] | None:
+    """The plan of a compound train (its ``[[stage]]`` tables) and the bridges its layout asks for.
+
+    ``alternative`` k > 0: on the layout search's k-th other placement (``layout.solve_layout``); ``None`` when
+    there is none.
+    """
     if not spec.stages:
         raise InputError("the train has no stages: solve its ratio first (gearcad design)")
     system = _system(spec)
@@ -404,7 +411,9 @@ def plan_compound(spec: TrainSpec, tolerance: float, load: InputLoad | None) -> 
         bore = _bore(spec, gspec, shaft, chain, fab)
         _check_bore(name, _gear_of(name, pairs), gspec, bore)
         bores[shaft] = max(bores.get(shaft, 0.0), bore)
-    problem, layout = _layout(spec, chain, pairs, bores, fab)
+    problem, layout = _layout(spec, chain, pairs, bores, fab, alternative)
+    if layout is None:
+        return None
     sides = shaft_sides(problem, layout.positions)
     shafts = [PlannedShaft(_shaft_name(i, chain.shafts), float(x), float(y), bores[i], back, front)
               for i, ((x, y), (back, front)) in enumerate(zip(layout.positions, sides))]

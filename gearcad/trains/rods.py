@@ -12,10 +12,12 @@ import dataclasses
 import math
 from dataclasses import dataclass
 
+import numpy as np
+
 from ..meshes.checks import Finding
 from .hardware import (END_SHAKE, FRAME, PIPE_WALL, REACH, Rod, SPACER_WALL, STUD_PIPE, ShaftSupport, screw_length,
                        spacer_name, spacers_of)
-from .sweeps import gear_top
+from .sweeps import gear_top, near_outline
 
 __all__ = ["Work", "plate_named", "holding_discs", "add_spacers", "frame_shaft", "stud", "axle_pipes", "respace",
            "coaxial_pipe", "add_pillar"]
@@ -56,7 +58,8 @@ def holding_discs(plan, s) -> list:
 
 def add_spacers(w: Work, name: str, x: float, y: float, d: float, occupied: list[tuple[float, float]],
                 lo: float, hi: float) -> None:
-    """Spacers on a shaft in every gap between ``occupied`` intervals from ``lo`` to ``hi``; the last one short by the end shake.
+    """Spacers on a shaft in every gap between ``occupied`` intervals from ``lo`` to ``hi``; the last one long enough
+    (over twice the end shake) short by the end shake, so the parts between them keep their play.
 
     Those shorter than the shaft's diameter are named washers (``hardware.spacer_word``).
     """
@@ -72,8 +75,9 @@ def add_spacers(w: Work, name: str, x: float, y: float, d: float, occupied: list
         return
     inner = d + w.fab.bore_clearance
     outer = d + 2 * SPACER_WALL
+    short = max((k for k, (a, b) in enumerate(gaps, start=1) if b - a > 2 * END_SHAKE), default=None)
     for k, (a, b) in enumerate(gaps, start=1):
-        top = b - END_SHAKE if k == len(gaps) and b - a > 2 * END_SHAKE else b
+        top = b - END_SHAKE if k == short else b
         w.rods.append(Rod(spacer_name(name, k, top - a, d), "spacer", x, y, outer, inner, a, top))
 
 
@@ -97,31 +101,79 @@ def frame_shaft(w: Work, i: int, s, gears, supports: list[tuple[str, float]], ki
     return ShaftSupport(s.name, kind, tuple(n for n, _ in supports), z1 - z0, z_hi - (z_lo + t))
 
 
+def _stud_room(w: Work, s, gears, up: bool, reach: float) -> tuple[float, str]:
+    """How far a stud's pipe may run beyond its gears, away from its plate, and what stops it there.
+
+    The nearest part (in z, beyond ``reach``) whose material or sweep comes within the gear clearance of the pipe:
+    another gear's sweep (planets' orbits and hubs included), a disc, a rod, a bridge, the far frame plate.
+    Returns the z of that part's face and its name, mm.
+    """
+    r = s.diameter / 2
+    own = {g.name for g in gears} | {f"{g.name}-hub" for g in gears}
+    found = [(w.front_z, "the front plate")] if up else [(w.back_z + w.t, "the back plate")]
+
+    def near(x: float, y: float, outer: float, inner: float = 0.0) -> bool:
+        d = math.hypot(x - s.x, y - s.y)
+        return max(d - outer - r, (inner - d - r) if inner > 0 else -math.inf) < w.margin
+
+    spans = [(sw.z0, sw.z1, sw.name) for sw in w.sweeps if sw.name not in own and near(sw.x, sw.y, sw.outer, sw.inner)]
+    spans += [(rod.z0, rod.z1, rod.name) for rod in w.rods if not rod.name.startswith(s.name)
+              and rod.kind != "screw" and near(rod.x, rod.y, rod.diameter / 2)]
+    spans += [(a.z0, a.z1, a.name) for a in w.future.values() if near(a.x, a.y, a.radius)]
+    spans += [(b.z, b.z + w.t, b.name) for b in w.bridges
+              if near_outline(b.part.outer.points(), np.array([s.x, s.y]), r + w.margin)]
+    for z0, z1, name in spans:
+        if up and z0 >= reach - 1e-9:
+            found.append((z0, name))
+        elif not up and z1 <= reach + 1e-9:
+            found.append((z1, name))
+    return min(found) if up else max(found)
+
+
 def stud(w: Work, s, gears, support: tuple[str, float], why: str) -> ShaftSupport:
-    """The last resort: a stud fixed in one plate, the gears fixed to a pipe that turns on it."""
+    """The last resort: a stud fixed in one plate, the gears fixed to a pipe that turns on it.
+
+    The pipe runs from the plate's face past the gears and is at least ``STUD_PIPE`` bore diameters long: where the
+    gears span less, it stands proud of them on the side away from the plate, into the room the layer stack leaves
+    (the end shake short of whatever comes next).  Where that room is too short the stud is a failure finding.
+    """
     t = w.t
     name, z_plate = support
     d_stud = s.diameter - 2 * PIPE_WALL
     low = min(g.z for g in gears)
     high = max(gear_top(g, t) for g in gears)
-    # The pipe runs from the plate's face past the gears; the stud ends flush with it (a washer glued or the end peened).
-    if z_plate < low:
-        p0, p1 = z_plate + t, high
-        z0, z1 = z_plate, high
+    need = STUD_PIPE * s.diameter
+    up = z_plate < low
+    room, blocker = _stud_room(w, s, gears, up, high if up else low)
+    # The stud ends flush with the pipe (a washer glued to it or its end peened keeps the pipe on).
+    if up:
+        p0 = z_plate + t
+        p1 = max(high, min(p0 + need, room - END_SHAKE))
+        z0, z1 = z_plate, p1
     else:
-        p0, p1 = low, z_plate
-        z0, z1 = low, z_plate + t
+        p1 = z_plate
+        p0 = min(low, max(p1 - need, room + END_SHAKE))
+        z0, z1 = p0, z_plate + t
     pipe = f"{s.name}-pipe"
     w.rods.append(Rod(s.name, "stud", s.x, s.y, d_stud, 0.0, z0, z1, (name,), tuple(g.name for g in gears)))
     w.rods.append(Rod(pipe, "pipe", s.x, s.y, s.diameter, d_stud + w.fab.bore_clearance, p0, p1, (s.name,),
                       tuple(g.name for g in gears)))
     length = p1 - p0
-    severity = "ok" if why.startswith("the train file") and length >= STUD_PIPE * s.diameter - 1e-9 else "warning"
-    w.findings.append(Finding(f"stud {s.name}", severity, length, STUD_PIPE * s.diameter,
-                              f"{s.name}: {why}; it is a {d_stud:g} mm stud fixed in the {name} with its gears fixed to a "
-                              f"{s.diameter:g} mm pipe {length:.2f} mm long turning on it "
-                              f"({'at least' if length >= STUD_PIPE * s.diameter else 'SHORTER than'} "
-                              f"{STUD_PIPE:g} bore diameters); a cantilever: keep its load light"))
+    proud = (p1 - high) if up else (low - p0)
+    where = (f", standing {proud:.2f} mm proud of its gears {'above' if up else 'below'} them" if proud > 1e-9 else "")
+    if length < need - 1e-9:
+        w.findings.append(Finding(
+            f"stud {s.name}", "failure", length, need,
+            f"{s.name}: {why}; a stud there would turn its gears on a {s.diameter:g} mm pipe only {length:.2f} mm long "
+            f"(from the {name} to the end shake before {blocker}), shorter than {STUD_PIPE:g} bore diameters "
+            f"({need:.2f} mm): give the train a thicker sheet or other tooth counts, or hold {s.name} in two plates"))
+    else:
+        severity = "ok" if why.startswith("the train file") else "warning"
+        w.findings.append(Finding(
+            f"stud {s.name}", severity, length, need,
+            f"{s.name}: {why}; it is a {d_stud:g} mm stud fixed in the {name} with its gears fixed to a "
+            f"{s.diameter:g} mm pipe {length:.2f} mm long turning on it (at least {STUD_PIPE:g} bore diameters"
+            f"{where}); a cantilever: keep its load light"))
     return ShaftSupport(s.name, "stud", (name,), z1 - z0, length, pipe=pipe)
 
 

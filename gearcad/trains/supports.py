@@ -7,7 +7,8 @@ Pure.  From a plan's gears, shafts and plates this module works out
   cut like the plates, standing on its own pillars in room the plan leaves between two
   layers) where a gear of another layer blocks the way; a pair of carrier discs for planet
   pins; or, as the last resort, a fixed *stud* in one plate with the gears turning on a
-  pipe at least ``STUD_PIPE`` bore diameters long (reported as a warning);
+  pipe at least ``STUD_PIPE`` bore diameters long, standing proud of its gears where they
+  span less (reported as a warning; a failure where the layer stack leaves no room for it);
 - every shaft's length from the layer stack and the plates' thickness, and its free span
   (between the inner faces of its two supports);
 - the pipes: an output on the axis of the input turns on a pipe around it, the sides of a
@@ -46,12 +47,31 @@ def _shafts(w: Work, bridges_wanted: dict[int, str]) -> None:
 
     The bridged shafts go intermediate shafts first, the input and output last: a bridge keeps clear of the rods
     of the bridged shafts still to come, so where two nearly coaxial shafts both want a bridge in one room, the
-    first (an intermediate shaft where there is one) becomes the stud and the other keeps its bridge.
+    first (an intermediate shaft where there is one) becomes the stud and the other keeps its bridge.  Where that
+    stud's pipe finds no room for its ``STUD_PIPE`` bore diameters, the order is tried once more with that shaft
+    last (the other one takes the stud), and kept when it has no such failure.
     """
     plan = w.plan
     one_plate = [i for i, s in enumerate(plan.shafts)
                  if s.back != s.front and i in bridges_wanted and any(g.shaft == i for g in plan.gears)]
     one_plate.sort(key=lambda i: (plan.shafts[i].name in ("input", "output", "centre"), i))
+    start = (list(w.rods), list(w.findings), list(w.bridges))
+    _build_shafts(w, bridges_wanted, one_plate)
+    short = [i for i in one_plate if _short_stud(w, plan.shafts[i].name)]
+    if short and len(one_plate) > 1:
+        first = (w.rods, w.findings, w.bridges, w.shafts)
+        w.rods, w.findings, w.bridges = (list(x) for x in start)
+        _build_shafts(w, bridges_wanted, [i for i in one_plate if i != short[0]] + [short[0]])
+        if any(_short_stud(w, s.name) for s in plan.shafts):
+            w.rods, w.findings, w.bridges, w.shafts = first
+
+
+def _short_stud(w: Work, name: str) -> bool:
+    return any(f.check == f"stud {name}" and f.severity == "failure" for f in w.findings)
+
+
+def _build_shafts(w: Work, bridges_wanted: dict[int, str], one_plate: list[int]) -> None:
+    plan = w.plan
     done = {i: _one_shaft(w, i, s, bridges_wanted) for i, s in enumerate(plan.shafts) if i not in one_plate}
     for i in one_plate:
         s = plan.shafts[i]
