@@ -251,14 +251,15 @@ def test_parts_list_counts_every_rod_with_its_length(name):
 
     plan = plan_of(name)
     rows = parts_list(plan, {})
-    fasteners = [r for r in rows if r["kind"] == "bought" and r["name"].endswith(("hex nut", "plain washer"))]
-    bought = [r for r in rows if r["kind"] == "bought" and r not in fasteners]
+    bought = [r for r in rows if r["kind"] == "bought"]
     assert sum(r["quantity"] for r in bought) == len(plan.mechanism.rods)
-    # A nut and a washer close every through screw (not those tapped into a bridge).
-    through = [r.name for r in plan.mechanism.rods if r.kind == "screw" and r.nut]
-    assert through and sorted(n for r in fasteners if r["name"].endswith("hex nut") for n in r["note"][7:].split(", ")) \
-        == sorted(through)
-    assert sum(r["quantity"] for r in fasteners if r["name"].endswith("plain washer")) == len(through)
+    # A plain washer and a hex nut close every through screw (not those tapped into a bridge), on the plate's face.
+    rods = {r.name: r for r in plan.mechanism.rods}
+    through = [r for r in plan.mechanism.rods if r.kind == "screw" and r.nut]
+    assert through
+    for screw in through:
+        washer, nut = rods[screw.name.replace("-screw", "-washer")], rods[screw.name.replace("-screw", "-nut")]
+        assert washer.z1 == pytest.approx(nut.z0) and nut.z1 <= screw.z1 + 1e-9 and nut.bore == screw.diameter
     for r in plan.mechanism.rods:
         row = next(b for b in bought if r.name in b["note"].split(", "))
         assert row["length"] == pytest.approx(r.length, abs=0.005)

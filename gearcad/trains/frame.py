@@ -87,9 +87,12 @@ def ring_bolts(w: Work) -> None:
         x, y = s.x + bx * c - by * si, s.y + bx * si + by * c
         lo, hi = w.back_z, w.front_z + w.t
         add_pillar(w, f"ring-bolt-{k}-lower", x, y, w.back_z + w.t, ring.z, ("back-plate", "ring"), (lo, hi))
-        w.rods.pop()  # one screw for both sleeves
+        lower = tuple(f"ring-bolt-{k}-lower-{part}" for part in ("screw", "washer", "nut"))
+        w.rods[:] = [r for r in w.rods if r.name not in lower]  # one screw (washer, nut) for both sleeves
         add_pillar(w, f"ring-bolt-{k}-upper", x, y, top, w.front_z, ("ring", "front-plate"), (lo, hi))
-        w.rods[-1] = dataclasses.replace(w.rods[-1], name=f"ring-bolt-{k}-screw")
+        upper = f"ring-bolt-{k}-upper-"
+        w.rods[:] = [dataclasses.replace(r, name=f"ring-bolt-{k}-" + r.name[len(upper):])
+                     if r.name.startswith(upper) and not r.name[len(upper):].startswith("pillar") else r for r in w.rods]
 
 
 def _frame_holes(w: Work, z: float) -> tuple[tuple[float, float, float], ...]:

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from ..errors import InputError
 from ..meshes.checks import Finding
 
-__all__ = ["END_SHAKE", "REACH", "STUD_PIPE", "PIPE_WALL", "SPACER_WALL", "EDGE_RULE", "FRAME", "Rod", "Sweep",
+__all__ = ["NUTS", "WASHERS", "END_SHAKE", "REACH", "STUD_PIPE", "PIPE_WALL", "SPACER_WALL", "EDGE_RULE", "FRAME", "Rod", "Sweep",
            "ShaftSupport", "Mechanism", "screw_size", "screw_length", "bridge_room", "SHIM", "spacer_word",
            "spacer_name", "spacers_of"]
 
@@ -44,6 +44,15 @@ FRAME = ("back-plate", "front-plate")
 # ISO 273 medium clearance holes (from memory): hole diameter -> thread.
 _CLEARANCE = ((2.4, "M2", 2.0), (2.9, "M2.5", 2.5), (3.4, "M3", 3.0), (4.5, "M4", 4.0), (5.5, "M5", 5.0),
               (6.6, "M6", 6.0), (9.0, "M8", 8.0), (11.0, "M10", 10.0), (13.5, "M12", 12.0))
+
+
+#: Hex nuts (ISO 4032: width across flats s, height m) and plain washers (ISO 7089: bore, outside diameter,
+#: thickness) by thread, mm (from memory).
+NUTS = {"M2": (4.0, 1.6), "M2.5": (5.0, 2.0), "M3": (5.5, 2.4), "M4": (7.0, 3.2), "M5": (8.0, 4.7), "M6": (10.0, 5.2),
+        "M8": (13.0, 6.8), "M10": (16.0, 8.4), "M12": (18.0, 10.8)}
+WASHERS = {"M2": (2.2, 5.0, 0.3), "M2.5": (2.7, 6.0, 0.5), "M3": (3.2, 7.0, 0.5), "M4": (4.3, 9.0, 0.8),
+           "M5": (5.3, 10.0, 1.0), "M6": (6.4, 12.0, 1.6), "M8": (8.4, 16.0, 1.6), "M10": (10.5, 20.0, 2.0),
+           "M12": (13.0, 24.0, 2.5)}
 
 
 _SCREW_LENGTHS = (6, 8, 10, 12, 16, 20, 25, 30, 35, 40, 45, 50, 55, 60, 65, 70, 80, 90, 100, 110, 120, 130, 140, 150,

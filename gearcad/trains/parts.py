@@ -21,7 +21,7 @@ PARTS_COLUMNS = ("name", "kind", "quantity", "diameter", "bore", "length", "thic
 
 _WHAT = {"arbor": "shaft (turns in its supports)", "axle": "axle (fixed)", "pin": "planet pin", "stud": "stud (fixed)",
          "pipe": "pipe (tube)", "spacer": "spacer tube", "pillar": "pillar (sleeve)", "screw": "screw with nut and washer",
-         "dowel": "dowel pin"}
+         "dowel": "dowel pin", "nut": "hex nut", "washer": "plain washer"}
 
 
 def _r(v: float) -> float:
@@ -40,6 +40,10 @@ def _rod_name(plan, r) -> str:
     washers are ordered, e.g. DIN 988 shim rings d x D x s, from memory), other rods by what they are."""
     if r.kind == "screw":
         return f"{r.thread} x {_r(r.length):g}"
+    if r.kind == "nut":  # ISO 4032 (from memory)
+        return f"{r.thread} hex nut"
+    if r.kind == "washer":  # ISO 7089, bore x outside x thickness (from memory)
+        return f"{r.thread} plain washer {_r(r.bore):g} x {_r(r.diameter):g} x {_r(r.length):g}"
     word = _word(plan, r)
     if r.kind == "spacer" and word.endswith("washer"):
         return f"{word} {_r(r.bore):g} x {_r(r.diameter):g} x {_r(r.length):g}"
@@ -71,7 +75,7 @@ def parts_list(plan, files: Mapping[str, Mapping[str, str]]) -> list[dict[str, A
             name = _rod_name(plan, r)
             row = groups[key] = {"name": name, "kind": "bought", "quantity": 0, "diameter": _r(r.diameter),
                                  "bore": _r(r.bore) if r.bore else None, "length": _r(r.length), "thread": r.thread or None,
-                                 "material": "steel" if r.kind in ("arbor", "axle", "pin", "stud", "screw", "dowel")
+                                 "material": "steel" if r.kind in ("arbor", "axle", "pin", "stud", "screw", "dowel", "nut", "washer")
                                  else "brass", "note": "", "used_for": []}
             if r.kind == "spacer" and _word(plan, r).endswith("washer"):  # a washer: its inner and outer diameter and thickness
                 row.update(inner_diameter=_r(r.bore), outer_diameter=_r(r.diameter), thickness=_r(r.length))
@@ -80,23 +84,6 @@ def parts_list(plan, files: Mapping[str, Mapping[str, str]]) -> list[dict[str, A
         row["used_for"].append(r.name)
     for row in groups.values():
         row["note"] = ", ".join(row.pop("used_for"))
-    rows += _nuts(mech.rods if mech else ())
-    return rows
-
-
-def _nuts(rods) -> list[dict[str, Any]]:
-    """A hex nut and a plain washer for every through screw, by thread (ISO 4032 nuts and ISO 7089 washers, the
-    usual stock: from memory)."""
-    count: dict[str, list[str]] = {}
-    for r in rods:
-        if r.kind == "screw" and r.nut:
-            count.setdefault(r.thread, []).append(r.name)
-    rows = []
-    for thread, names in count.items():
-        for what in ("hex nut", "plain washer"):
-            rows.append({"name": f"{thread} {what}", "kind": "bought", "quantity": len(names), "diameter": None,
-                         "bore": None, "length": None, "thread": thread, "material": "steel",
-                         "note": "closes " + ", ".join(names)})
     return rows
 
 

@@ -15,8 +15,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..meshes.checks import Finding
-from .hardware import (END_SHAKE, FRAME, PIPE_WALL, REACH, Rod, SPACER_WALL, STUD_PIPE, ShaftSupport, screw_length,
-                       spacer_name, spacers_of)
+from .hardware import (END_SHAKE, FRAME, NUTS, PIPE_WALL, REACH, Rod, SPACER_WALL, STUD_PIPE, WASHERS, ShaftSupport,
+                       screw_length, spacer_name, spacers_of)
 from .sweeps import gear_top, near_outline
 
 __all__ = ["Work", "plate_named", "holding_discs", "add_spacers", "frame_shaft", "stud", "axle_pipes", "respace",
@@ -251,3 +251,10 @@ def add_pillar(w: Work, name: str, x: float, y: float, z0: float, z1: float, hol
     nut = 0.8 * w.nominal + 0.5 * w.nominal  # nut (ISO 4032, 0.8 d, from memory) and a washer
     length = screw_length(hi - lo + nut)
     w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, lo + length, holds, thread=w.screw, nut=True))
+    # The plain washer on the plate's outer face and the hex nut on it (drawn as its across-corners cylinder).
+    bore, outside, thick = WASHERS[w.screw]
+    flats, height = NUTS[w.screw]
+    w.rods.append(Rod(f"{name}-washer", "washer", x, y, outside, bore, hi, hi + thick, (), (f"{name}-screw",),
+                      thread=w.screw))
+    w.rods.append(Rod(f"{name}-nut", "nut", x, y, flats / math.cos(math.pi / 6), w.nominal, hi + thick,
+                      hi + thick + height, (), (f"{name}-screw",), thread=w.screw))
