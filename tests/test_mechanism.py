@@ -13,11 +13,10 @@ from importlib import resources
 import pytest
 import shapely
 
-from gearcad.errors import InputError
 from gearcad.trains.planner import plan_train
 from gearcad.trains.trainfile import parse_train
 from gearcad.trains.interference import check_assembly
-from gearcad.trains.hardware import END_SHAKE, REACH, STUD_PIPE, Rod, spacers_of
+from gearcad.trains.hardware import END_SHAKE, REACH, STUD_PIPE, spacers_of
 
 COMPOUND = """name = "three"
 module = 1.0

@@ -14,7 +14,6 @@ import pytest
 import sympy
 
 from gearcad.cli import main
-from gearcad.errors import InputError
 from gearcad.trains.trainfile import parse_train, train_to_toml
 
 TRAIN = """

@@ -11,7 +11,6 @@ Geometry comes from :mod:`gearcad.geometry.worm_wheel`.  Lengths in mm.
 
 from __future__ import annotations
 
-import dataclasses
 import os
 from pathlib import Path
 from typing import Any

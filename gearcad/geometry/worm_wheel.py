@@ -39,7 +39,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-import shapely
 from shapely.affinity import rotate
 from shapely.geometry import Point, Polygon, box
 from shapely.ops import unary_union

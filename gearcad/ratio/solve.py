@@ -6,8 +6,6 @@ from dataclasses import dataclass, replace
 from fractions import Fraction
 from typing import TYPE_CHECKING, Callable, Sequence
 
-from ..errors import InputError
-from ..validate import as_int, finite
 from .compound import check_stages, solve_compound
 from .limits import MAX_STAGES, TEETH_BOUNDS, Limits
 from .target import Target, parse_target

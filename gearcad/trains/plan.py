@@ -20,7 +20,6 @@ from ..meshes.checks import Finding, PairAnalysis, analyse_pair
 from ..errors import InputError
 from ..geometry.bore import bore_loop
 from ..geometry.gear import SpurGear
-from ..geometry.generate import DEFAULT_TOLERANCE
 from ..geometry.offset import min_concave_radius, offset_loop
 from ..geometry.shape import Loop, Part, circle_loop, gear_loop, rounded_rectangle
 from ..ratio.kinematics import direction_of

@@ -90,7 +90,7 @@ def frame_shaft(w: Work, i: int, s, gears, supports: list[tuple[str, float]], ki
     """A shaft held by two supports (name, lower face z): its rod and spacers."""
     t = w.t
     supports = sorted(supports, key=lambda p: p[1])
-    (n0, z_lo), (n1, z_hi) = supports[0], supports[-1]
+    z_lo, z_hi = supports[0][1], supports[-1][1]
     back, front = _reach(s.name, s.diameter)
     z0, z1 = z_lo - back, z_hi + t + front
     rod = Rod(s.name, kind, s.x, s.y, s.diameter, 0.0, z0, z1, tuple(n for n, _ in supports), tuple(g.name for g in gears))
