@@ -16,7 +16,7 @@ import pytest
 PACKAGE = Path(__file__).resolve().parent.parent / "gearcad"
 
 #: The shared base: input readers, validators and the error family.
-BASE = {"errors", "validate", "inputfiles", "profiles", "materials", "profile_data"}
+BASE = {"errors", "lazy", "validate", "inputfiles", "profiles", "materials", "profile_data"}
 #: What each stage folder may import besides the base (and itself).
 ALLOWED = {
     "geometry": set(),

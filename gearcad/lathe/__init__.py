@@ -8,8 +8,7 @@ by :mod:`gearcad.export.threadsheet`.  Names are loaded on first use (PEP 562).
 
 from __future__ import annotations
 
-import importlib
-from typing import Any
+from ..lazy import lazy_names
 
 _HOMES = {
     "Pitch": "threads", "Series": "threads", "SERIES": "threads", "parse_pitch": "threads",
@@ -25,14 +24,4 @@ _HOMES = {
 
 __all__ = sorted(_HOMES)
 
-
-def __getattr__(name: str) -> Any:
-    if name not in _HOMES:
-        raise AttributeError(f"module 'gearcad.lathe' has no attribute {name!r}")
-    value = getattr(importlib.import_module(f".{_HOMES[name]}", __name__), name)
-    globals()[name] = value
-    return value
-
-
-def __dir__() -> list[str]:
-    return sorted(set(globals()) | set(__all__))
+__getattr__, __dir__ = lazy_names(__name__, _HOMES, __all__)
