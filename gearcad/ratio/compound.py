@@ -105,6 +105,7 @@ class _Search:
     limits: Limits
     count: int
     progress: Progress | None = None
+    cap: float | None = None  # trains worse than this |relative error| are not wanted
     found: list[Train] = field(default_factory=list)
     done_ratios: set = field(default_factory=set)
 
@@ -115,6 +116,14 @@ class _Search:
         self.smallest = min(self.limits.teeth)
         largest = largest_stage_ratio(self.limits)
         self.splitter = None if largest is None else Splitter(self.k, self.limits, self.shelf, self.idler, largest)
+        self.cap_exact = None if self.cap is None else Fraction(self.cap)
+
+    def _capped(self, eps: float) -> float:
+        """``eps``, but no wider than the cap (rounded up, so the window holds every group within it)."""
+        return eps if self.cap is None else min(eps, math.nextafter(self.cap, math.inf))
+
+    def _past_cap(self, eps: float) -> bool:
+        return self.cap_exact is not None and Fraction(eps) >= self.cap_exact
 
     # -- one ratio ---------------------------------------------------------
     def _best_for_pair(self, p: int, q: int, bound: float) -> tuple[int, tuple, int | None] | None:
@@ -232,13 +241,13 @@ class _Search:
         for error, num, den, index in self._groups(p, q, eps):
             if error > eps_exact:
                 return False
-            if self._enough(error):
+            if self._enough(error) or (self.cap_exact is not None and error > self.cap_exact):
                 return True
             self.done_ratios.add((num, den))
             train = self._best_for_ratio(p[index], q[index])
             if train is not None:
                 self.found.append(train)
-        return len(self.found) >= self.count  # every group within eps is done
+        return len(self.found) >= self.count or self._past_cap(eps)  # every group within eps is done
 
     # -- rounds ------------------------------------------------------------
     def run_sorted(self, generator: SortedCandidates, start_eps: float = 0.0) -> None:
@@ -255,8 +264,8 @@ class _Search:
                 proposal = max(eps * 8, float(positive[0]) if len(positive) else eps_all)
             # x8 to x64 a round: a sample's far tail (products with no partner near the target) must not
             # throw the window open at once
-            eps = min(max(proposal, eps * 8), eps * 64 if eps > 0 else proposal, eps_all)
-            if self.window(*generator.within(eps), eps) or eps >= eps_all:
+            eps = self._capped(min(max(proposal, eps * 8), eps * 64 if eps > 0 else proposal, eps_all))
+            if self.window(*generator.within(eps), eps) or eps >= eps_all or self._past_cap(eps):
                 return
             m *= 8
             self._report(0.5)
@@ -269,26 +278,27 @@ class _Search:
         if len(self.found) >= self.count:
             return None
         done = 0.0
+        eps = self._capped(eps)
         while generator.usable(eps):
             pairs = generator.within(eps)
             if pairs is None:  # too many trains to list: the other generators go on from here
                 break
-            if self.window(*pairs, eps):
+            if self.window(*pairs, eps) or self._past_cap(eps):
                 return None
             done = eps
             if eps >= 1.0:
                 break
-            eps = min(eps * 4, 1.0)
+            eps = self._capped(min(eps * 4, 1.0))
         return done
 
     def run_scan(self, generator: ScanCandidates) -> float | None:
         """Scan rounds; returns the eps reached if the scan must hand over, None when finished."""
         if len(self.found) >= self.count:
             return None
-        eps = generator.eps_for_budget(_SCAN_BUDGET)
+        eps = self._capped(generator.eps_for_budget(_SCAN_BUDGET))
         done = 0.0
         while generator.usable(eps):
-            if self.window(*generator.within(eps, self.progress), eps):
+            if self.window(*generator.within(eps, self.progress), eps) or self._past_cap(eps):
                 return None
             done = eps
             # ratios found grow about linearly with the raw candidates: aim at the count with a margin (x2 to x8
@@ -296,7 +306,7 @@ class _Search:
             have = len(self.found)
             grow = 4 if have == 0 else min(8.0, max(2.0, 1.5 * self.count / have))
             wanted = generator.eps_for_budget(min(generator.raw_estimate(eps) * grow, MAX_RAW) * (1 - 1e-9))
-            eps = min(max(wanted, eps * 1.25), eps * grow)
+            eps = self._capped(min(max(wanted, eps * 1.25), eps * grow))
         return done
 
     def _report(self, fraction: float) -> None:
@@ -304,11 +314,13 @@ class _Search:
             self.progress(fraction)
 
     def results(self) -> list[Train]:
-        return sorted(self.found, key=lambda t: rank_key(t, self.target))[: self.count]
+        kept = [t for t in self.found if self.cap_exact is None
+                or abs(exact_relative_error(t.numerator, t.denominator, self.target)) <= self.cap_exact]
+        return sorted(kept, key=lambda t: rank_key(t, self.target))[: self.count]
 
 
 def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, *,
-                   progress: Progress | None = None, method: str = "auto") -> list[Train]:
+                   progress: Progress | None = None, method: str = "auto", cap: float | None = None) -> list[Train]:
     """The best ``count`` trains of exactly ``stages`` stages, best first.
 
     Parameters
@@ -326,6 +338,11 @@ def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, 
     method : {"auto", "sorted", "scan"}
         Candidate generator (see :mod:`gearcad.ratio.candidates`); all give
         the same results.
+    cap : float, optional
+        Leave out every train whose |relative error| exceeds ``cap``: the
+        result is then the best ``count`` of those within it (maybe fewer, or
+        none); a caller merging several searches passes the worst error it
+        still needs, and the windows stop growing there.
 
     Returns
     -------
@@ -346,8 +363,9 @@ def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, 
     if span is None:
         return []
     if not span[0] <= target.approx <= span[1]:
-        return _beyond_reach(target, k, limits, count, span, progress, method)
-    search = _Search(target, k, limits, count, progress)
+        found = _beyond_reach(target, k, limits, count, span, progress, method)
+        return found if cap is None else [t for t in found if abs(t.relative_error) <= cap]
+    search = _Search(target, k, limits, count, progress, None if cap is None else float(cap))
     ratio_range = (float(span[0]), float(span[1]))
     teeth = limits.teeth
     use_scan = method == "scan" or (method == "auto" and multiset_count(len(teeth), k) > SORTED_LIMIT)

@@ -244,9 +244,12 @@ def _with_spur(query: WormQuery, k: int, progress: Progress | None) -> list[Worm
     found: list[WormTrain] = []
     for i, (floor, z2) in enumerate(wheels):
         best = _best_distinct(found, query.target, query.count)
-        if len(best) == query.count and floor > abs(best[-1].relative_error) * (1 + 1e-12):
+        # Trains worse than the count-th best so far cannot enter the list (a hair of slack keeps exact ties).
+        cap = abs(best[-1].relative_error) * (1 + 1e-9) + 1e-300 if len(best) == query.count else None
+        if cap is not None and floor > cap:
             break  # the wheels are sorted by floor: no later one can do better either
-        spur: list[Train] = solve_compound(_remainder(query.target, w.starts, z2), k, query.limits, query.count)
+        spur: list[Train] = solve_compound(_remainder(query.target, w.starts, z2), k, query.limits, query.count,
+                                           cap=cap)
         found += [_make(t.stages, w.starts, z2, query.target) for t in spur]
         if progress is not None:
             progress((i + 1) / len(wheels))
