@@ -249,6 +249,31 @@ def test_stl_has_triangles_spanning_the_gear(built, tmp_path):
     assert triangulation.NbTriangles() == len(vertices) // 3
 
 
+@pytest.mark.slow
+def test_stl_normals_are_those_of_the_stored_vertices_and_point_out(built, tmp_path):
+    # The STL format: each facet's unit normal follows its vertices by the right-hand rule, outward (from memory).
+    # Checked against the stored single-precision vertices, and outwardness by the divergence theorem: the
+    # volume sum(area * (n . centroid)) / 3 equals OCP's own volume of the solid (GProp).
+    from OCP.BRepGProp import BRepGProp
+    from OCP.GProp import GProp_GProps
+
+    from gearcad.export.step import write_stl
+
+    solid = built["result"].solid
+    write_stl(solid, tmp_path / "g.stl", linear_tolerance=0.02, angular_tolerance=10.0)
+    data = (tmp_path / "g.stl").read_bytes()
+    rows = np.frombuffer(data, dtype=np.dtype([("n", "<f4", 3), ("v", "<f4", (3, 3)), ("a", "<u2")]),
+                         count=int.from_bytes(data[80:84], "little"), offset=84)
+    v = rows["v"].astype(float)
+    cross = np.cross(v[:, 1] - v[:, 0], v[:, 2] - v[:, 0])
+    area2 = np.linalg.norm(cross, axis=1)
+    assert np.allclose(rows["n"], cross / area2[:, None], atol=1e-6)
+    volume = float(np.sum(area2 / 2 * np.einsum("ij,ij->i", rows["n"], v.mean(axis=1))) / 3)
+    props = GProp_GProps()
+    BRepGProp.VolumeProperties_s(solid.wrapped if hasattr(solid, "wrapped") else solid, props)
+    assert volume == pytest.approx(props.Mass(), rel=2e-3)
+
+
 # -- assembly, stdout, failures ------------------------------------------------------------------
 
 def plate(name="plate"):
@@ -346,3 +371,24 @@ def test_bad_inputs_and_unwritable_paths(tmp_path):
     with pytest.raises(InputError, match="one name per shape"):
         write_step([box, box], tmp_path / "g.step", names=["only one"])
     assert list(tmp_path.iterdir()) == []
+
+
+def test_facet_normals_are_remade_from_the_stored_vertices(tmp_path):
+    # A micrometre facet whose stored normal (as a writer working on exact coordinates may give it) is off its
+    # single-precision vertices by a few degrees, and a zero-area facet: the first gets the right-hand-rule normal
+    # of what is stored, the second a zero normal (the STL format's own rule, from memory).
+    from gearcad.export.step_files import _normals_from_vertices
+
+    facet = np.dtype([("n", "<f4", 3), ("v", "<f4", (3, 3)), ("a", "<u2")])
+    rows = np.zeros(2, dtype=facet)
+    rows["v"][0] = [(70.0, 0.0, 0.0), (70.000004, 0.0, 0.0), (70.0, 0.000004, 0.0)]
+    rows["n"][0] = (0.1, 0.0, 0.995)
+    rows["v"][1] = [(1.0, 1.0, 1.0), (1.0, 1.0, 1.0), (2.0, 2.0, 2.0)]
+    path = tmp_path / "t.stl"
+    path.write_bytes(b"\0" * 80 + (2).to_bytes(4, "little") + rows.tobytes())
+    _normals_from_vertices(path)
+    back = np.frombuffer(path.read_bytes(), dtype=facet, count=2, offset=84)
+    assert np.allclose(back["n"][0], (0.0, 0.0, 1.0), atol=1e-6) and np.all(back["n"][1] == 0)
+    path.write_bytes(path.read_bytes()[:-10])
+    with pytest.raises(ExportError, match="bytes"):
+        _normals_from_vertices(path)

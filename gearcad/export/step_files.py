@@ -276,4 +276,28 @@ def write_stl(solid: Any, path: str | os.PathLike[str], linear_tolerance: float 
         writer.ASCIIMode = False
         if not writer.Write(shape, str(tmp)):
             raise ExportError(f"cannot write {target}: the STL writer failed (no triangulation?)")
+        _normals_from_vertices(Path(tmp))
     return target
+
+
+def _normals_from_vertices(path: Path) -> None:
+    """Make each facet's normal the one its stored (single-precision) vertices give by the right-hand rule.
+
+    The kernel's writer takes normals from the exact triangles; on micrometre facets (a tight fillet turn)
+    rounding the vertices to single precision turns them enough that mesh checkers re-derive ("fix") them.
+    The binary STL layout: 80-byte header, uint32 count, then per facet 12 float32 and a uint16 (the STL
+    format's own definition, from memory).
+    """
+    import numpy as np
+
+    data = bytearray(path.read_bytes())
+    count = int.from_bytes(data[80:84], "little")
+    facet = np.dtype([("normal", "<f4", (3,)), ("vertices", "<f4", (3, 3)), ("attribute", "<u2")])
+    if len(data) != 84 + count * facet.itemsize:
+        raise ExportError(f"cannot write {path.name}: the STL writer left {len(data)} bytes for {count} facets")
+    facets = np.frombuffer(data, dtype=facet, count=count, offset=84).copy()
+    v = facets["vertices"].astype(np.float64)
+    normal = np.cross(v[:, 1] - v[:, 0], v[:, 2] - v[:, 0])
+    length = np.linalg.norm(normal, axis=1)
+    facets["normal"] = np.where(length[:, None] > 0, normal / np.where(length > 0, length, 1.0)[:, None], 0.0)
+    path.write_bytes(bytes(data[:84]) + facets.tobytes())
