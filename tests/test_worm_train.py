@@ -188,7 +188,10 @@ BAD = [
     ("worm = { starts = 1, diameter_factor = 10 }\ndriven = 30\nidler = 20", "idler"),
     ("worm = { starts = 1, diameter_factor = 10 }\ndriver = 12\ndriven = 30", "driver"),
     ("worm = { starts = 4, diameter_factor = 10 }\ndriven = 40", "lead angle"),  # atan(4/10) = 21.8 > ZA's 15
-    ("worm = { starts = 1, diameter_factor = 10, form = \"ZK\" }\ndriven = 30", "form"),
+    ("worm = { starts = 1, diameter_factor = 10, form = \"ZK\" }\ndriven = 30", "tool_diameter"),
+    ("worm = { starts = 1, diameter_factor = 10, form = \"ZK\", tool_diameter = 1 }\ndriven = 30", "tool diameter"),
+    ("worm = { starts = 1, diameter_factor = 10, tool_diameter = 80 }\ndriven = 30", "tool_diameter"),
+    ("worm = { starts = 1, diameter_factor = 10, form = \"ZQ\" }\ndriven = 30", "form"),
     ("worm = { starts = 1, diameter_factor = 10 }\ndriven = 15", "too few"),  # undercut below 18 at 20 degrees
     ("worm = { starts = 0, diameter_factor = 10 }\ndriven = 30", "starts"),
     ("worm = { starts = 1, diameter_factor = 50 }\ndriven = 30", "diameter_factor"),
@@ -336,3 +339,17 @@ def test_a_zn_worm_stage_plans_with_its_own_wheel():
     assert zn.spec.stages[0].worm.form == "zn" and fit.severity == "ok" and fit.value <= fit.limit
     a, n = za.gear("s1-wheel").part.outer.points(), zn.gear("s1-wheel").part.outer.points()
     assert not (a.shape == n.shape and np.allclose(a, n, atol=1e-6))
+
+
+def test_a_zk_worm_stage_names_its_tool_and_writes_it_back():
+    # ZK (DIN 3975: cut by a biconical disc) needs the disc's diameter; the stage plans with the ZK thread's own wheel
+    # and the train file keeps the key.
+    from gearcad.trains.planner import plan_train
+
+    text = TRAIN.replace('form = "ZA" }', 'form = "ZK", tool_diameter = 80 }')
+    spec = parse_train(text)
+    assert (spec.stages[0].worm.form, spec.stages[0].worm.tool_diameter) == ("zk", 80.0)
+    assert parse_train(train_to_toml(spec)) == spec
+    plan = plan_train(spec)
+    fit = next(f for f in plan.findings if f.check == "worm wheel outline")
+    assert fit.severity == "ok" and plan.worm.pair.tool_diameter == 80.0

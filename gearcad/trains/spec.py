@@ -59,14 +59,16 @@ class GearSpec:
             raise InputError(f"bore must be greater than 0 mm, got {self.bore!r}")
 
 
-WORM_FORMS = ("za", "zi", "zn")  # flank forms a worm stage takes (ZK needs its tool: only in `gearcad worm`) (gearcad.meshes.worm.FLANK_FORMS)
+WORM_FORMS = ("za", "zi", "zn", "zk")  # flank forms a worm stage takes (gearcad.meshes.worm.FLANK_FORMS)
 
 
 @dataclass(frozen=True)
 class WormSpec:
     """The worm of a worm stage: starts, diameter factor ``q``, flank form, and optionally the pressure
-    angle (degrees; axial for ZA, normal for ZI; None: the train's) and a friction coefficient
-    (None: from the worm (steel) and wheel (the fabrication profile's) materials).  The figures,
+    angle (degrees; axial for ZA, normal for ZI, ZN and ZK; None: the train's) and a friction coefficient
+    (None: from the worm (steel) and wheel (the fabrication profile's) materials).  A ZK worm names the
+    diameter of the biconical disc that cuts it (``tool_diameter``, mm; bounded by the module in
+    :func:`gearcad.meshes.worm.make_worm_pair`).  The figures,
     and the bounds that need the wheel and the module, are in :mod:`gearcad.trains.worm_stage`."""
 
     starts: int
@@ -74,6 +76,7 @@ class WormSpec:
     form: str = "za"
     pressure_angle: float | None = None
     friction: float | None = None
+    tool_diameter: float | None = None
 
     def __post_init__(self) -> None:
         from ..meshes.worm import (DIAMETER_FACTOR_RANGE, FRICTION_RANGE, MAX_LEAD_ANGLE, PRESSURE_ANGLE_RANGE,
@@ -98,6 +101,16 @@ class WormSpec:
             value = getattr(self, key)
             if value is not None and not (isinstance(value, (int, float)) and low <= value <= high):
                 raise InputError(f"worm {key} must be from {low:g} to {high:g}{unit}, got {value!r}")
+        if form == "zk" and self.tool_diameter is None:
+            raise InputError("worm tool_diameter is needed for a ZK worm (the diameter of the biconical disc that cuts "
+                             "it, mm); allowed: give tool_diameter, or another form")
+        if form != "zk" and self.tool_diameter is not None:
+            raise InputError(f"worm tool_diameter belongs to a ZK worm, not {form.upper()}; allowed: leave it out")
+        if self.tool_diameter is not None:
+            d0 = finite(self.tool_diameter, "worm tool_diameter")
+            if d0 <= 0:
+                raise InputError(f"worm tool_diameter must be greater than 0 mm, got {self.tool_diameter!r}")
+            object.__setattr__(self, "tool_diameter", d0)
         object.__setattr__(self, "starts", starts)
         object.__setattr__(self, "diameter_factor", q)
         object.__setattr__(self, "form", form)

@@ -77,7 +77,7 @@ PLANETARY_KEYS = {"sun", "planet", "ring", "planets", "planet_ring", "fixed", "i
                   "herringbone", "gap"}
 SUMMING_KEYS = {"differential", "sun", "planet", "planets", "ring", "module", "tube", "axis_distance", "shift_limit"}
 STAGE_KEYS = {"driver", "driven", "module", "idler", "helix", "hand", "herringbone", "gap", "worm"}
-WORM_KEYS = {"starts", "diameter_factor", "form", "pressure_angle", "friction"}
+WORM_KEYS = {"starts", "diameter_factor", "form", "pressure_angle", "friction", "tool_diameter"}
 GEAR_KEYS = {"teeth", "shift", "bore", "flat", "keyway", "hub", "hand"}
 SOLVE_KEYS = {"ratio", "stages", "min_teeth", "max_teeth", "max_stage_ratio", "direction", "hunting", "coaxial", "exclude"}
 
@@ -242,13 +242,14 @@ def _worm(s: dict, ctx: _Context, i: int) -> WormSpec | None:
     if isinstance(starts, bool) or not isinstance(starts, int):
         raise ctx.error(f"must be a whole number, got {_short(starts)}", "worm.starts", "stage", i)
     if "form" in w and not isinstance(w["form"], str):
-        raise ctx.error(f"must be \"ZA\" or \"ZI\", got {_short(w['form'])}", "worm.form", "stage", i)
-    numbers = {k: _number(w, k, ctx, "stage", i, "worm.") for k in ("pressure_angle", "friction")}
+        raise ctx.error(f"must be \"ZA\", \"ZI\", \"ZN\" or \"ZK\", got {_short(w['form'])}", "worm.form", "stage", i)
+    numbers = {k: _number(w, k, ctx, "stage", i, "worm.") for k in ("pressure_angle", "friction", "tool_diameter")}
     try:
         return WormSpec(starts, _number(w, "diameter_factor", ctx, "stage", i, "worm.", required=True),
                         w.get("form", "za"), **numbers)
     except InputError as exc:
-        key = next((k for k in ("starts", "diameter_factor", "form", "pressure_angle", "friction", "lead angle")
+        key = next((k for k in ("tool_diameter", "starts", "diameter_factor", "form", "pressure_angle", "friction",
+                                "lead angle")
                     if k.replace("_", " ") in str(exc) or k in str(exc)), "starts")
         raise ctx.error(str(exc), "worm." + ("diameter_factor" if key == "lead angle" else key), "stage", i) from None
 

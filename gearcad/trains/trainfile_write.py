@@ -83,7 +83,8 @@ def train_to_toml(spec: TrainSpec) -> str:
 def _worm_toml(worm: WormSpec) -> str:
     """A worm stage's ``worm = { ... }`` line (degrees)."""
     parts = [f"starts = {worm.starts}", f"diameter_factor = {worm.diameter_factor!r}", f"form = {_quoted(worm.form.upper())}"]
-    parts += [f"{k} = {getattr(worm, k)!r}" for k in ("pressure_angle", "friction") if getattr(worm, k) is not None]
+    parts += [f"{k} = {getattr(worm, k)!r}" for k in ("pressure_angle", "friction", "tool_diameter")
+              if getattr(worm, k) is not None]
     return "worm = { " + ", ".join(parts) + " }"
 
 

@@ -145,7 +145,8 @@ def worm_pair_of(spec: TrainSpec):
     stage = spec.stages[0]
     module = spec.module if stage.module is None else stage.module
     return make_worm_pair(stage.worm.starts, stage.driven.teeth, module, diameter_factor=stage.worm.diameter_factor,
-                          pressure_angle=_pressure_angle(spec), flank=stage.worm.form, wheel_shift=stage.driven.shift)
+                          pressure_angle=_pressure_angle(spec), flank=stage.worm.form, wheel_shift=stage.driven.shift,
+                          tool_diameter=stage.worm.tool_diameter)
 
 
 def worm_analysis_of(spec: TrainSpec, pair, material: str):
