@@ -9,7 +9,6 @@ its own diameter.  Lengths in mm.
 
 from __future__ import annotations
 
-import dataclasses
 import math
 
 import numpy as np
@@ -17,9 +16,8 @@ import numpy as np
 from ..errors import InputError
 from ..geometry.shape import Part, rounded_rectangle
 from .hardware import EDGE_RULE, FRAME
-from .sweeps import near_outline
 from .rods import Work, add_pillar
-from .sweeps import clear_of_sweeps, gear_top
+from .sweeps import clear_of_sweeps, gear_top, near_outline
 
 __all__ = ["frame_pillars", "ring_bolts", "finish_frame_plates", "check_edges"]
 
@@ -86,13 +84,10 @@ def ring_bolts(w: Work) -> None:
         c, si = math.cos(ring.rotation), math.sin(ring.rotation)
         x, y = s.x + bx * c - by * si, s.y + bx * si + by * c
         lo, hi = w.back_z, w.front_z + w.t
-        add_pillar(w, f"ring-bolt-{k}-lower", x, y, w.back_z + w.t, ring.z, ("back-plate", "ring"), (lo, hi))
-        lower = tuple(f"ring-bolt-{k}-lower-{part}" for part in ("screw", "washer", "nut"))
-        w.rods[:] = [r for r in w.rods if r.name not in lower]  # one screw (washer, nut) for both sleeves
-        add_pillar(w, f"ring-bolt-{k}-upper", x, y, top, w.front_z, ("ring", "front-plate"), (lo, hi))
-        upper = f"ring-bolt-{k}-upper-"
-        w.rods[:] = [dataclasses.replace(r, name=f"ring-bolt-{k}-" + r.name[len(upper):])
-                     if r.name.startswith(upper) and not r.name[len(upper):].startswith("pillar") else r for r in w.rods]
+        # One screw (with its washer and nut) through both sleeves.
+        add_pillar(w, f"ring-bolt-{k}-lower", x, y, w.back_z + w.t, ring.z, ("back-plate", "ring"), (lo, hi), screw=None)
+        add_pillar(w, f"ring-bolt-{k}-upper", x, y, top, w.front_z, ("ring", "front-plate"), (lo, hi),
+                   screw=f"ring-bolt-{k}")
 
 
 def _frame_holes(w: Work, z: float) -> tuple[tuple[float, float, float], ...]:

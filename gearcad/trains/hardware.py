@@ -77,7 +77,6 @@ class Rod:
     supports: tuple[str, ...] = ()
     carries: tuple[str, ...] = ()
     thread: str = ""
-    nut: bool = False  # a screw closed by a nut and a plain washer (not tapped into a part)
 
     @property
     def length(self) -> float:

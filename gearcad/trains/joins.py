@@ -124,7 +124,9 @@ def _pipe_output(plan, index: int) -> bool:
 def _planetary_joins(plan, rods) -> tuple[object, list[Join], list[Finding]]:
     """A ring-fixed set: the sun fixed to the centre shaft by a D-flat, the carrier's front disc glued to its pipe
     (:mod:`gearcad.trains.planetary_drive`); the input and output each on one of them."""
-    pipe = next((r for r in rods if r.kind == "pipe" and r.name == "centre-pipe"), None)
+    from .planetary_drive import PIPE_SUFFIX
+
+    pipe = next((r for r in rods if r.kind == "pipe" and r.name == "centre" + PIPE_SUFFIX), None)
     if pipe is None:
         return plan, [], []
     gears = list(plan.gears)

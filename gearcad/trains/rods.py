@@ -236,25 +236,30 @@ def coaxial_pipe(w: Work, s, gears) -> ShaftSupport:
 
 
 def add_pillar(w: Work, name: str, x: float, y: float, z0: float, z1: float, holds: tuple[str, ...],
-               bolt_z: tuple[float, float] | None = None, tapped: bool = False) -> None:
+               bolt_z: tuple[float, float] | None = None, tapped: bool = False, screw: str | None = "") -> None:
     """A pillar (a sleeve over a through screw) from ``z0`` to ``z1``, and its screw through the plates it holds.
 
     ``tapped``: the screw comes in from the outside of the frame plate and ends flush in a thread tapped in the
-    bridge (nothing stands out into the layer beyond the bridge); otherwise a nut and washer close it.
+    bridge (nothing stands out into the layer beyond the bridge); otherwise a plain washer and a hex nut close it.
+    ``screw``: the name the screw (and its washer and nut) take, ``""`` for the pillar's own; None for no screw
+    (another sleeve's screw runs through this one).
     """
     hole = w.fab.spacer_hole
     w.rods.append(Rod(name, "pillar", x, y, 2 * w.nominal, hole, z0, z1, holds))
+    if screw is None:
+        return
+    screw = screw or name
     lo, hi = bolt_z if bolt_z else (z0 - w.t, z1 + w.t)
     if tapped:
-        w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, hi, holds, thread=w.screw))
+        w.rods.append(Rod(f"{screw}-screw", "screw", x, y, w.nominal, 0.0, lo, hi, holds, thread=w.screw))
         return
     nut = 0.8 * w.nominal + 0.5 * w.nominal  # nut (ISO 4032, 0.8 d, from memory) and a washer
     length = screw_length(hi - lo + nut)
-    w.rods.append(Rod(f"{name}-screw", "screw", x, y, w.nominal, 0.0, lo, lo + length, holds, thread=w.screw, nut=True))
+    w.rods.append(Rod(f"{screw}-screw", "screw", x, y, w.nominal, 0.0, lo, lo + length, holds, thread=w.screw))
     # The plain washer on the plate's outer face and the hex nut on it (drawn as its across-corners cylinder).
     bore, outside, thick = WASHERS[w.screw]
     flats, height = NUTS[w.screw]
-    w.rods.append(Rod(f"{name}-washer", "washer", x, y, outside, bore, hi, hi + thick, (), (f"{name}-screw",),
+    w.rods.append(Rod(f"{screw}-washer", "washer", x, y, outside, bore, hi, hi + thick, (), (f"{screw}-screw",),
                       thread=w.screw))
-    w.rods.append(Rod(f"{name}-nut", "nut", x, y, flats / math.cos(math.pi / 6), w.nominal, hi + thick,
-                      hi + thick + height, (), (f"{name}-screw",), thread=w.screw))
+    w.rods.append(Rod(f"{screw}-nut", "nut", x, y, flats / math.cos(math.pi / 6), w.nominal, hi + thick,
+                      hi + thick + height, (), (f"{screw}-screw",), thread=w.screw))

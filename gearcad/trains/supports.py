@@ -147,7 +147,9 @@ def complete_plan(plan, bridges_wanted: dict[int, str] | None = None):
         raise InputError(f"studs names {unknown[0]!r}, which is not a shaft of this train; shafts: "
                          + ", ".join(s.name for s in plan.shafts))
     _shafts(w, bridges_wanted)
-    w.findings += [f for f in (ring_drive_finding(plan),) if f is not None]
+    ring_turns = ring_drive_finding(plan)
+    if ring_turns is not None:
+        w.findings.append(ring_turns)
     ring_bolts(w)
     width, height = frame_pillars(w, plan.layout.width, plan.layout.height)
     plates = finish_frame_plates(w, width, height)
