@@ -230,30 +230,32 @@ def _floor(remainder: Target, span: tuple[Fraction, Fraction]) -> float:
 
 
 def _with_spur(query: WormQuery, k: int, progress: Progress | None) -> list[WormTrain]:
-    """The best trains of ``k`` spur stages and the worm, every wheel tried or proved unable to compete.
+    """The best ``count`` trains (distinct ratios) of ``k`` spur stages and the worm, every wheel tried or proved
+    unable to compete.
 
     The wheels whose spur part lies within the spur stages' reach go first (their error floor is 0); a wheel
     whose floor (:func:`_floor`) exceeds the ``count``-th best error found so far cannot place a train among
-    the best, so its search is skipped.  The result equals the search over every wheel.
+    the best, so its search is skipped.  The list is merged wheel by wheel: a train once pushed out of it never
+    returns, so the result equals the search over every wheel.
     """
     w = query.worm
     span = stage_ratio_range(query.limits, k)
     if span is None:
         return []
     wheels = sorted(((_floor(_remainder(query.target, w.starts, z2), span), z2) for z2 in _wheels(query)))
-    found: list[WormTrain] = []
+    best: list[WormTrain] = []
     for i, (floor, z2) in enumerate(wheels):
-        best = _best_distinct(found, query.target, query.count)
         # Trains worse than the count-th best so far cannot enter the list (a hair of slack keeps exact ties).
         cap = abs(best[-1].relative_error) * (1 + 1e-9) + 1e-300 if len(best) == query.count else None
         if cap is not None and floor > cap:
             break  # the wheels are sorted by floor: no later one can do better either
         spur: list[Train] = solve_compound(_remainder(query.target, w.starts, z2), k, query.limits, query.count,
                                            cap=cap)
-        found += [_make(t.stages, w.starts, z2, query.target) for t in spur]
+        best = _best_distinct(best + [_make(t.stages, w.starts, z2, query.target) for t in spur], query.target,
+                              query.count)
         if progress is not None:
             progress((i + 1) / len(wheels))
-    return found
+    return best
 
 
 def _best_distinct(trains: list[WormTrain], target: Target, count: int) -> list[WormTrain]:
@@ -296,18 +298,19 @@ def worm_reach(query: WormQuery) -> Reach:
     so the union over the stage counts is the interval of the most spur stages.  ``stage_counts`` counts the
     worm stage.
     """
-    wheels = _wheels(query)
     counts = tuple(k + 1 for k in query.spur_counts)
-    if not wheels:
-        return Reach(counts, Fraction(0), Fraction(0))
+    return Reach(counts, *_span(query, max(query.spur_counts)))
+
+
+def _span(query: WormQuery, k: int) -> tuple[Fraction, Fraction]:
+    """Least and greatest ratio of ``k`` spur stages and the worm stage (both 0 when the limits allow none)."""
+    wheels = _wheels(query)
     s = largest_stage_ratio(query.limits)
-    k = max(query.spur_counts)
-    if s is None or s < 1:
-        if k > 0:
-            return Reach(counts, Fraction(0), Fraction(0))
-        s = Fraction(1)
+    if not wheels or (k > 0 and (s is None or s < 1)):
+        return Fraction(0), Fraction(0)
+    s = s if k > 0 else Fraction(1)
     starts = query.worm.starts
-    return Reach(counts, Fraction(starts, max(wheels)) / s ** k, Fraction(starts, min(wheels)) * s ** k)
+    return Fraction(starts, max(wheels)) / s ** k, Fraction(starts, min(wheels)) * s ** k
 
 
 def worm_reach_note(query: WormQuery) -> str:
@@ -326,8 +329,7 @@ def worm_reach_note(query: WormQuery) -> str:
     s = largest_stage_ratio(query.limits) or Fraction(1)
     k = max(query.spur_counts)
     value = Fraction(t.approx)
-    more = next((n for n in range(k + 1, MAX_STAGES) if Fraction(w.starts, w.wheel_max) / s ** n <= value
-                 <= Fraction(w.starts, w.wheel_min) * s ** n), None)
+    more = next((n for n in range(k + 1, MAX_STAGES) if _span(query, n)[0] <= value <= _span(query, n)[1]), None)
     if more is not None:
         ways.append(f"--stages {more + 1}")
     for n in range(k, MAX_STAGES):  # the fewest spur stages whose reach a wider wheel range or more starts extends
