@@ -13,7 +13,7 @@ from gearcad.errors import GearcadError, InputError
 from gearcad.geometry import SpurGear, TipRelief, tooth_profile
 from gearcad.geometry.arcfit import fit_arcs, fit_loop, smooth_pieces
 from gearcad.geometry.generate import Curve
-from gearcad.geometry.involute import involute_points, involute_tangents
+from gearcad.geometry.involute_curve import involute_points, involute_tangents
 from gearcad.geometry.shape import circle_loop, gear_loop
 
 TOL = 1e-3  # mm: the fit tolerance under test (1 µm)

@@ -321,7 +321,7 @@ def test_the_tool_reach_against_shapely_and_the_space_width():
     # tip circle (pi d_a / z - s_a, ISO 21771's tip thickness), the widest the space gets.
     from shapely.geometry import Point, Polygon
 
-    from gearcad.meshes.checks import largest_tool, space_direction, tool_reach
+    from gearcad.meshes.outline_checks import largest_tool, space_direction, tool_reach
     from gearcad.geometry.generate import tooth_profile
     from gearcad.trains.planner import plan_train
 

@@ -156,7 +156,7 @@ def test_a_cutter_too_large_trims_the_ring_and_is_refused():
     def overlap(ring, z0):
         object.__setattr__(ring, "cutter_teeth", z0)  # look at a cutter the ring refused
         rb, ra = ring.base_diameter / 2, ring.tip_diameter / 2
-        from gearcad.geometry.involute import involute_points, roll_angle_at
+        from gearcad.geometry.involute_curve import involute_points, roll_angle_at
 
         t = np.linspace(float(roll_angle_at(ra, rb)), float(roll_angle_at(ring.form_diameter / 2, rb)), 200)
         flank = involute_points(rb, ring.space_half_angle_at_base, t)

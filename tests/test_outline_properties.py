@@ -11,7 +11,7 @@ from hypothesis import strategies as st
 from gearcad.errors import GearcadError
 from gearcad.geometry import SpurGear, TipRelief, outline, tooth_profile
 from gearcad.geometry.generate import _cutter, _fillet_points
-from gearcad.geometry.involute import involute_points
+from gearcad.geometry.involute_curve import involute_points
 from gearcad.profiles import load_tooth_system
 
 SYSTEMS = {a: load_tooth_system(n) for a, n in ((14.5, "full-14.5"), (20.0, "iso53-a"), (25.0, "full-25"))}

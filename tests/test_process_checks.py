@@ -78,7 +78,7 @@ def test_the_ring_tool_reach_against_shapely_and_the_space_width():
     # space at its tip circle, the widest the space gets.
     from shapely.geometry import Point, Polygon
 
-    from gearcad.meshes.checks import ring_largest_tool, ring_tool_reach, space_direction
+    from gearcad.meshes.outline_checks import ring_largest_tool, ring_tool_reach, space_direction
 
     plan = plan_train(parse_train(planetary(1.0, "laser-3mm-acrylic")))
     ring = plan.gear("ring")

@@ -29,7 +29,7 @@ import numpy as np
 
 from ..errors import GeometryError, InputError
 from .gear import SpurGear
-from .involute import involute_points, involute_tangents, roll_angle_at
+from .involute_curve import involute_points, involute_tangents, roll_angle_at
 from .sampling import arc_step, sample_curve
 
 __all__ = [

@@ -53,7 +53,7 @@ import numpy as np
 
 from ..errors import InputError
 from .generate import DEFAULT_TOLERANCE, MIN_TOLERANCE, Curve
-from .involute import involute_points, involute_tangents, roll_angle_at
+from .involute_curve import involute_points, involute_tangents, roll_angle_at
 from .ring import CUTTER_SHIFT_RANGE, DEFAULT_CUTTER_TEETH, MIN_CUTTER_TEETH, RIM_FACTOR, TRIM_LIMIT, RingGear
 from .ring_cutter import Cutter
 from .ring_motion import external_tooth_depth, ring_tooth_depth, to_inner_frame, to_ring_frame

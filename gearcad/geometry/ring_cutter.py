@@ -12,7 +12,8 @@ import numpy as np
 
 from ..errors import GeometryError
 from ..profiles import ToothSystem
-from .involute import inv, involute_points, roll_angle_at
+from .involute import inv
+from .involute_curve import involute_points, roll_angle_at
 
 __all__ = ["Cutter", "make_cutter", "cutter_outline"]
 

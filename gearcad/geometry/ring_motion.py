@@ -10,7 +10,7 @@ import math
 
 import numpy as np
 
-from .involute import roll_angle_at
+from .involute_curve import roll_angle_at
 
 __all__ = ["to_ring_frame", "to_inner_frame", "ring_tooth_depth", "external_tooth_depth"]
 

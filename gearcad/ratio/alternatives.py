@@ -8,20 +8,21 @@ after the least shift), which usually means larger pinions.  The ratio
 upwards while the AM-GM bound of the products stays within the teeth allowed
 (within a block of ``g``, pairs go lightest bound first: :func:`gearcad.ratio.products.multiple_bounds`),
 and each pair is split exhaustively (:meth:`gearcad.ratio.split.Splitter.every_for`).
+One and two stages take the multiples in plain order under the AM-GM bound
+alone (it grows with ``g``), in pure Python: ``gearcad ratio --stages 2`` starts
+without numpy.  Any valid lower bound gives the same trains (each pair is split
+exhaustively up to the fewest held), so the two ways agree.
 """
 
 from __future__ import annotations
 
 import math
 
-import numpy as np
-
 from .limits import Limits
-from .products import multiple_bounds
 from .reach import largest_stage_ratio
 from .split import Splitter
 from .target import Target
-from .train import Train, make_train
+from .train import Train, make_train, needs_idler
 
 __all__ = ["same_ratio_trains"]
 
@@ -56,8 +57,6 @@ def same_ratio_trains(numerator: int, denominator: int, k: int, limits: Limits, 
     s = largest_stage_ratio(limits)
     if s is None:
         return []
-    from .compound import needs_idler
-
     idler = needs_idler(k, limits)
     splitter = Splitter(k, limits, limits.shelf(), idler, s)
     low, high = min(limits.teeth), max(limits.teeth)
@@ -66,6 +65,35 @@ def same_ratio_trains(numerator: int, denominator: int, k: int, limits: Limits, 
     best = None
     g_low = max(-(-low ** k // numerator), -(-low ** k // denominator), 1)
     g_high = min(high ** k // numerator, high ** k // denominator, g_low + MAX_MULTIPLES)
+    if k <= 2:
+        for multiple in range(g_low, g_high + 1):
+            limit = _limit(found, best, count, extra_teeth)
+            if _am_gm(numerator * multiple, denominator * multiple, k, low) + floor > limit:
+                break  # the bound grows with the multiple
+            found = sorted(set(found + splitter.every_for(numerator * multiple, denominator * multiple, limit, keep=count)))
+            best = found[0][0] if found else None
+    else:
+        found, best = _by_blocks(numerator, denominator, k, splitter, (g_low, g_high), (low, high), floor, count,
+                                 extra_teeth)
+    found = [t for t in found if t[0] <= best + extra_teeth] if best is not None else []
+    return [make_train(stages, target, idler_teeth) for _, stages, idler_teeth in found[:count]]
+
+
+def _am_gm(p: int, q: int, k: int, smallest: int) -> int:
+    """A lower bound of the teeth of ``k`` stages with driver and driven products ``p`` and ``q`` (AM-GM)."""
+    return math.floor(k * (max(p ** (1 / k), smallest) + max(q ** (1 / k), smallest)) * (1 - 1e-12))
+
+
+def _by_blocks(numerator: int, denominator: int, k: int, splitter: Splitter, g_range: tuple[int, int],
+               teeth_range: tuple[int, int], floor: int, count: int, extra_teeth: int) -> tuple[list, int | None]:
+    """The multiples in blocks, each block lightest factor bound first (numpy: the ranges of 3 and 4 stages)."""
+    import numpy as np
+
+    from .products import multiple_bounds
+
+    (g_low, g_high), (low, high) = g_range, teeth_range
+    found: list[tuple[int, tuple, int | None]] = []
+    best = None
     for start in range(g_low, g_high + 1, _CHUNK):
         limit = _limit(found, best, count, extra_teeth)
         if math.floor(k * ((numerator * start) ** (1 / k) + (denominator * start) ** (1 / k)) * (1 - 1e-12)) + floor > limit:
@@ -80,8 +108,7 @@ def same_ratio_trains(numerator: int, denominator: int, k: int, limits: Limits, 
             multiple = int(g[i])
             found = sorted(set(found + splitter.every_for(numerator * multiple, denominator * multiple, limit, keep=count)))
             best = found[0][0] if found else None
-    found = [t for t in found if t[0] <= best + extra_teeth] if best is not None else []
-    return [make_train(stages, target, idler_teeth) for _, stages, idler_teeth in found[:count]]
+    return found, best
 
 
 def _limit(found: list, best: int | None, count: int, extra_teeth: int) -> float:

@@ -25,7 +25,7 @@ import numpy as np
 from ..errors import InputError
 from ..meshes.pair import centre_distance_for_shift, split_shift, total_shift_for_centre
 from ..validate import finite
-from .compound import _allowed_stage_grid
+from .windows import allowed_stage_grid
 from .geometry_link import pressure_angle
 from .limits import Limits
 from .ranking import _fewest_teeth_rows, top_ratios
@@ -227,7 +227,7 @@ def solve_coaxial(target: Target, stages: int, limits: Limits, count: int = 5,
         limit = finite(shift_limit, "shift limit")
         if not 0 <= limit <= MAX_SHIFT_LIMIT:
             raise InputError(f"shift limit must be from 0 to {MAX_SHIFT_LIMIT:g}, got {shift_limit!r}")
-    d, n = _allowed_stage_grid(limits)
+    d, n = allowed_stage_grid(limits)
     pairs = _reverted_pairs(d, n, limit or None)
     if len(pairs.num) == 0:
         return []

@@ -9,11 +9,14 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Sequence
+from typing import TYPE_CHECKING, Sequence
 
 from .target import Target
 
-__all__ = ["Train", "make_train", "exact_relative_error", "output_direction", "chain_ratio"]
+if TYPE_CHECKING:
+    from .limits import Limits
+
+__all__ = ["Train", "make_train", "exact_relative_error", "output_direction", "chain_ratio", "needs_idler", "rank_key"]
 
 
 @dataclass(frozen=True)
@@ -100,3 +103,14 @@ def make_train(stages: Sequence[tuple[int, int]], target: Target, idler: int | N
     total = sum(d + n for d, n in stages) + (idler or 0)
     return Train(tuple((int(d), int(n)) for d, n in stages), ratio.numerator, ratio.denominator,
                  float(error), "same" if signed > 0 else "opposite", idler, total, shifts)
+
+
+def needs_idler(k: int, limits: Limits) -> bool:
+    """Whether a train of ``k`` stages needs an idler for the direction ``limits`` ask."""
+    return limits.direction is not None and output_direction(k) != limits.direction
+
+
+def rank_key(train: Train, target: Target) -> tuple:
+    """Sort key of the solvers' results: |error| (exact), total teeth, ratio, stages."""
+    error = abs(exact_relative_error(train.numerator, train.denominator, target))
+    return (error, train.total_teeth, Fraction(train.numerator, train.denominator), train.stages)

@@ -15,7 +15,8 @@ from __future__ import annotations
 import dataclasses
 
 from ..geometry.ring import RingGear
-from ..meshes.checks import Finding, process_findings, ring_process_findings
+from ..meshes.checks import Finding
+from ..meshes.outline_checks import process_findings, ring_process_findings
 
 __all__ = ["process_check", "gear_process_findings"]
 

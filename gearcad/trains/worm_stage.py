@@ -377,7 +377,7 @@ def plan_worm(spec: TrainSpec, tolerance: float, load) -> tuple[object, dict[int
         A load given (no load ratings for worm trains), the pair's bounds, a bore too large for the wheel,
         no heading for the worm clear of the other shafts, or no layout.
     """
-    from ..meshes.checks import process_findings
+    from ..meshes.outline_checks import process_findings
     from ..meshes.worm import thread_form
     from ..profiles import load_fabrication, load_tooth_system
     from .plan import Plan, PlannedGear, PlannedShaft, frame_plates, plan_compound
