@@ -16,7 +16,7 @@ import shapely
 from gearcad.trains.planner import plan_train
 from gearcad.trains.trainfile import parse_train
 from gearcad.trains.interference import check_assembly
-from gearcad.trains.hardware import END_SHAKE, REACH, STUD_PIPE, spacers_of
+from gearcad.trains.hardware import END_SHAKE, PITCHES, PROTRUSION_THREADS, REACH, STUD_PIPE, screw_length, spacers_of
 
 COMPOUND = """name = "three"
 module = 1.0
@@ -259,6 +259,12 @@ def test_parts_list_counts_every_rod_with_its_length(name):
     for screw in through:
         washer, nut = rods[screw.name.replace("-screw", "-washer")], rods[screw.name.replace("-screw", "-nut")]
         assert washer.z1 == pytest.approx(nut.z0) and nut.z1 <= screw.z1 + 1e-9 and nut.bore == screw.diameter
+        # common practice: two threads stand out beyond the nut; the stock length is the first preferred one that
+        # does (ISO 4762 lengths, from memory)
+        stand_out = screw.z1 - nut.z1
+        assert stand_out >= PROTRUSION_THREADS * PITCHES[screw.thread] - 1e-9, screw.name
+        assert screw_length(screw.length - stand_out + PROTRUSION_THREADS * PITCHES[screw.thread]) == \
+            pytest.approx(screw.length), screw.name
     for r in plan.mechanism.rods:
         row = next(b for b in bought if r.name in b["note"].split(", "))
         assert row["length"] == pytest.approx(r.length, abs=0.005)
@@ -571,3 +577,10 @@ def test_two_bridges_crossing_like_an_x_are_caught():
     moved = dataclasses.replace(plan, plates=plan.plates + (ghost,))
     check = check_assembly(moved, plan.mechanism)
     assert any({"bridge-ghost", bridge.name} == {a, b} for a, b, _ in check.overlaps)
+
+
+def test_frame_screw_pitches_are_the_iso_261_coarse_ones():
+    # Source: ISO 261:1998 coarse pitches as the lathe's thread table holds them (gearcad.lathe.threads, from memory).
+    from gearcad.lathe.threads import ISO_COARSE
+
+    assert {name: f"{pitch:g}mm" for name, pitch in PITCHES.items()} == {name: ISO_COARSE[name] for name in PITCHES}

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from ..errors import InputError
 from ..meshes.checks import Finding
 
-__all__ = ["NUTS", "WASHERS", "END_SHAKE", "REACH", "STUD_PIPE", "PIPE_WALL", "SPACER_WALL", "EDGE_RULE", "FRAME", "Rod", "Sweep",
+__all__ = ["NUTS", "WASHERS", "PITCHES", "PROTRUSION_THREADS", "through_screw_length", "END_SHAKE", "REACH", "STUD_PIPE", "PIPE_WALL", "SPACER_WALL", "EDGE_RULE", "FRAME", "Rod", "Sweep",
            "ShaftSupport", "Mechanism", "screw_size", "screw_length", "bridge_room", "SHIM", "spacer_word",
            "spacer_name", "spacers_of"]
 
@@ -54,6 +54,12 @@ WASHERS = {"M2": (2.2, 5.0, 0.3), "M2.5": (2.7, 6.0, 0.5), "M3": (3.2, 7.0, 0.5)
            "M5": (5.3, 10.0, 1.0), "M6": (6.4, 12.0, 1.6), "M8": (8.4, 16.0, 1.6), "M10": (10.5, 20.0, 2.0),
            "M12": (13.0, 24.0, 2.5)}
 
+
+#: ISO 261 coarse pitches of the frame's screw sizes, mm (from memory; ``tests/test_mechanism.py`` holds them equal
+#: to the lathe's thread table).
+PITCHES = {"M2": 0.4, "M2.5": 0.45, "M3": 0.5, "M4": 0.7, "M5": 0.8, "M6": 1.0, "M8": 1.25, "M10": 1.5, "M12": 1.75}
+#: Threads a through screw stands out beyond its nut (common practice: the nut then bears on full threads).
+PROTRUSION_THREADS = 2
 
 _SCREW_LENGTHS = (6, 8, 10, 12, 16, 20, 25, 30, 35, 40, 45, 50, 55, 60, 65, 70, 80, 90, 100, 110, 120, 130, 140, 150,
                   160, 180, 200)  # ISO 4762 preferred lengths, mm (from memory)
@@ -161,6 +167,12 @@ def screw_size(hole: float) -> tuple[str, float]:
     if not fits:
         raise InputError(f"spacer_hole {hole:g} mm is too small for an M2 screw (2.4 mm clearance hole at least)")
     return fits[-1]
+
+
+def through_screw_length(grip: float, thread: str) -> float:
+    """The stock length (mm) of a through screw over ``grip`` mm: its plain washer, its hex nut and
+    :data:`PROTRUSION_THREADS` threads beyond, rounded up to a preferred length."""
+    return screw_length(grip + WASHERS[thread][2] + NUTS[thread][1] + PROTRUSION_THREADS * PITCHES[thread])
 
 
 def screw_length(length: float) -> float:

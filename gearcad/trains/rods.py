@@ -16,7 +16,7 @@ import numpy as np
 
 from ..meshes.checks import Finding
 from .hardware import (END_SHAKE, FRAME, NUTS, PIPE_WALL, REACH, Rod, SPACER_WALL, STUD_PIPE, WASHERS, ShaftSupport,
-                       screw_length, spacer_name, spacers_of)
+                       spacer_name, spacers_of, through_screw_length)
 from .sweeps import gear_top, near_outline
 
 __all__ = ["Work", "plate_named", "holding_discs", "add_spacers", "frame_shaft", "stud", "axle_pipes", "respace",
@@ -253,8 +253,7 @@ def add_pillar(w: Work, name: str, x: float, y: float, z0: float, z1: float, hol
     if tapped:
         w.rods.append(Rod(f"{screw}-screw", "screw", x, y, w.nominal, 0.0, lo, hi, holds, thread=w.screw))
         return
-    nut = 0.8 * w.nominal + 0.5 * w.nominal  # nut (ISO 4032, 0.8 d, from memory) and a washer
-    length = screw_length(hi - lo + nut)
+    length = through_screw_length(hi - lo, w.screw)
     w.rods.append(Rod(f"{screw}-screw", "screw", x, y, w.nominal, 0.0, lo, lo + length, holds, thread=w.screw))
     # The plain washer on the plate's outer face and the hex nut on it (drawn as its across-corners cylinder).
     bore, outside, thick = WASHERS[w.screw]
