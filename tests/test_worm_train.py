@@ -283,6 +283,36 @@ def test_design_bad_worm_options_exit_2(tmp_path, capsys, args, word):
     assert not out.exists() and word in capsys.readouterr().err
 
 
+def test_design_shapes_the_worm_zk(tmp_path):
+    # --worm-flank, --worm-diameter-factor and --worm-tool-diameter reach the train file's worm table, and the
+    # planned pair is the ZK pair gearcad worm makes from the same figures (DIN 3975's forms).
+    from gearcad.meshes.worm import make_worm_pair
+    from gearcad.trains.worm_stage import worm_pair_of
+
+    out = tmp_path / "zk"
+    assert main(["design", "1/40", "--worm", "1", "--worm-flank", "zk", "--worm-tool-diameter", "60",
+                 "--worm-diameter-factor", "12", "-m", "1", "--stages", "1", "--out", str(out), "--formats", "dxf",
+                 "--no-sheets"]) == 0
+    spec = parse_train((out / "train.toml").read_text(encoding="utf-8"))
+    worm = spec.stages[0].worm
+    assert (worm.form, worm.tool_diameter, worm.diameter_factor) == ("zk", 60.0, 12.0)
+    assert spec.stages[0].driven.teeth == 40
+    pair = worm_pair_of(spec)
+    alone = make_worm_pair(1, 40, 1.0, diameter_factor=12.0, flank="zk", tool_diameter=60.0)
+    assert pair.centre_distance == pytest.approx(alone.centre_distance) == pytest.approx((12 + 40) / 2)
+
+
+@pytest.mark.parametrize("args, words", [
+    (["--worm-flank", "zn"], "need"), (["--worm", "1", "--worm-flank", "zk"], "--worm-tool-diameter"),
+    (["--worm", "1", "--worm-tool-diameter", "50"], "ZK"), (["--worm", "4", "--worm-diameter-factor", "3"], "lead angle"),
+    (["--worm", "1", "--worm-diameter-factor", "nan"], "--worm-diameter-factor")])
+def test_design_bad_worm_shape_exit_2(tmp_path, capsys, args, words):
+    out = tmp_path / "d"
+    assert main(["design", "1/90", "-m", "1.5", "--out", str(out), *args]) == 2
+    err = capsys.readouterr().err
+    assert not out.exists() and words in err and len(err.strip().splitlines()) == 1
+
+
 @pytest.mark.slow
 def test_the_solids_of_a_worm_train(tmp_path):
     # The worm and the blocks as STEP files, valid in OCP's checker; the worm placed across the plates.

@@ -57,9 +57,16 @@ def add_parser(subparsers: argparse._SubParsersAction) -> argparse.ArgumentParse
     p.add_argument("--hand", choices=("left", "right"), default="right", help="hand of the input gear (default right)")
     p.add_argument("--herringbone", action="store_true", help="herringbone stages (needs --helix)")
     p.add_argument("--worm", metavar="STARTS[:ZMIN-ZMAX]",
-                   help="a worm stage as `gearcad ratio --worm` finds it (a worm of STARTS starts, diameter factor 10, "
-                        "ZA, driving a wheel of ZMIN to ZMAX teeth; --module is its axial module); the train file puts "
+                   help="a worm stage as `gearcad ratio --worm` finds it (a worm of STARTS starts, diameter factor 10 "
+                        "and ZA flanks unless --worm-* say otherwise, driving a wheel of ZMIN to ZMAX teeth; --module is its axial module); the train file puts "
                         "it first: the worm is the input, across the plates; --stages counts it")
+    p.add_argument("--worm-flank", choices=("za", "zi", "zn", "zk"), default="za",
+                   help="with --worm: the worm's flank form (default za: straight in the axial section; zi involute "
+                        "helicoid, zn straight in the normal section, zk cut by a biconical disc)")
+    p.add_argument("--worm-diameter-factor", type=float, metavar="Q",
+                   help="with --worm: the worm's diameter factor q = d1 / module (3 to 40; default 10)")
+    p.add_argument("--worm-tool-diameter", type=float, metavar="MM",
+                   help="with --worm-flank zk: diameter of the biconical disc that cuts the worm, mm")
     add_output_options(p)
     return p
 
@@ -87,7 +94,9 @@ def run(args: argparse.Namespace) -> int:
                         direction=args.direction, planets=args.planets, fixed=args.fixed, input=args.input_member,
                         stepped=args.stepped, max_ring_teeth=args.max_ring_teeth,
                         neighbour_margin=args.neighbour_margin, differential=args.differential, candidates=args.count,
-                        helix=args.helix, hand=args.hand, herringbone=args.herringbone, worm=args.worm)
+                        helix=args.helix, hand=args.hand, herringbone=args.herringbone, worm=args.worm,
+                        worm_flank=args.worm_flank, worm_diameter_factor=args.worm_diameter_factor,
+                        worm_tool_diameter=args.worm_tool_diameter)
     except ToleranceError as exc:  # a result outside what was asked: exit 1, nothing built
         if args.json:
             from ._format import print_json

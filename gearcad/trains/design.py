@@ -84,7 +84,8 @@ def design(target: str, *, kind: str = "compound", module: float, tolerance: flo
            fixed: str | None = None, input: str | None = None, stepped: bool = False,
            max_ring_teeth: int | None = None, neighbour_margin: float | None = None,
            differential: str | None = None, candidates: int | None = None, helix: float | None = None,
-           hand: str = "right", herringbone: bool = False, worm: str | None = None) -> Design:
+           hand: str = "right", herringbone: bool = False, worm: str | None = None, worm_flank: str = "za",
+           worm_diameter_factor: float | None = None, worm_tool_diameter: float | None = None) -> Design:
     """Solve ``target`` and choose the train to build.
 
     Parameters
@@ -115,6 +116,12 @@ def design(target: str, *, kind: str = "compound", module: float, tolerance: flo
     worm : str, optional
         ``STARTS[:ZMIN-ZMAX]``: a worm stage as ``gearcad ratio --worm`` finds it (the train's first stage,
         the worm its input; :mod:`gearcad.trains.design_worm`); compound trains only.
+    worm_flank : {"za", "zi", "zn", "zk"}
+        The worm's flank form (default ZA: straight in the axial section).
+    worm_diameter_factor : float, optional
+        The worm's diameter factor ``q`` (default 10).
+    worm_tool_diameter : float, optional
+        A ZK worm's cutting disc diameter, mm (needed for ZK, refused for the other forms).
 
     Returns
     -------
@@ -151,6 +158,13 @@ def design(target: str, *, kind: str = "compound", module: float, tolerance: flo
     if kind != "summing" and (differential is not None):
         raise InputError("--differential applies only to --kind summing")
     limits = _limits(min_teeth, max_teeth, max_stage_ratio, hunting, exclude, inventory, direction)
+    given = [name for name, value in (("--worm-flank", worm_flank != "za"),
+                                      ("--worm-diameter-factor", worm_diameter_factor is not None),
+                                      ("--worm-tool-diameter", worm_tool_diameter is not None)) if value]
+    if worm is None and given:
+        raise InputError(f"{', '.join(given)} shape{'' if len(given) > 1 else 's'} the worm of a worm stage and "
+                         f"need{'' if len(given) > 1 else 's'} --worm; allowed: add --worm STARTS, or leave "
+                         f"{'them' if len(given) > 1 else 'it'} out")
     if worm is not None:
         if kind != "compound" or coaxial or inventory is not None or shift_limit is not None:
             raise InputError(f"--worm {worm} builds a compound train with a worm stage; allowed: leave out --kind "
@@ -158,7 +172,8 @@ def design(target: str, *, kind: str = "compound", module: float, tolerance: flo
                              "apply to --worm; allowed: leave them out")
         from .design_worm import design_worm
 
-        spec, error, train = design_worm(common, limits, worm, stages)
+        spec, error, train = design_worm(common, limits, worm, stages, diameter_factor=worm_diameter_factor,
+                                         form=worm_flank, tool_diameter=worm_tool_diameter)
         return Design(replace(spec, target_tolerance=common.tolerance), "worm", error, common.tolerance, train)
     chosen = _choose(common, limits, kind, stages, coaxial, inventory, shift_limit, planets, fixed, input, stepped,
                      max_ring_teeth, neighbour_margin, differential, candidates)

@@ -12,6 +12,7 @@ check it).  The spur stages get the shifts every designed compound train gets
 
 from __future__ import annotations
 
+import math
 from dataclasses import replace
 from types import SimpleNamespace
 from typing import Any
@@ -33,7 +34,7 @@ DEFAULT_DIAMETER_FACTOR = 10.0
 
 
 def design_worm(common: Any, limits: Any, worm: str, stages: int | None, *, diameter_factor: float | None = None,
-                form: str = "za") -> tuple[Any, float, Any]:
+                form: str = "za", tool_diameter: float | None = None) -> tuple[Any, float, Any]:
     """The best train ending in a worm stage for ``common.target``: (train description, relative error, the search's train).
 
     Parameters
@@ -46,6 +47,12 @@ def design_worm(common: Any, limits: Any, worm: str, stages: int | None, *, diam
         ``STARTS`` or ``STARTS:WHEEL_MIN-WHEEL_MAX``.
     stages : int, optional
         Every stage, the worm's included (default: 1, 2 and 3 tried).
+    diameter_factor : float, optional
+        The worm's ``q`` (default :data:`DEFAULT_DIAMETER_FACTOR`).
+    form : str
+        Flank form: ``za``, ``zi``, ``zn`` or ``zk``.
+    tool_diameter : float, optional
+        A ZK worm's cutting disc diameter, mm.
 
     Raises
     ------
@@ -54,8 +61,10 @@ def design_worm(common: Any, limits: Any, worm: str, stages: int | None, *, diam
     ToleranceError
         No train within the tolerance.
     """
+    from ..meshes.worm import MAX_LEAD_ANGLE
     from ..profiles import load_tooth_system
     from ..ratio.target import parse_target
+    from ..validate import finite
     from ..ratio.worm import make_worm_query, parse_worm_option, solve_worm
     from .spec import GearSpec, SolverSpec, StageSpec, TrainSpec, WormSpec
     from .stages import spec_with_stages
@@ -63,11 +72,24 @@ def design_worm(common: Any, limits: Any, worm: str, stages: int | None, *, diam
     if common.helix:
         raise InputError("--helix cannot stand with --worm: the wheel's helix is the worm's lead angle; allowed: "
                          "leave out --helix")
+    form = str(form).lower()
+    if form == "zk" and tool_diameter is None:
+        raise InputError("a ZK worm needs --worm-tool-diameter MM (the diameter of the biconical disc that cuts it); "
+                         "allowed: give it, or another --worm-flank")
+    if form != "zk" and tool_diameter is not None:
+        raise InputError(f"--worm-tool-diameter belongs to a ZK worm, not {form.upper()}; allowed: --worm-flank zk, "
+                         "or leave it out")
     system = load_tooth_system(common.system)
     target = parse_target(common.target)
     option = parse_worm_option(worm, limits, system.pressure_angle)
+    q = DEFAULT_DIAMETER_FACTOR if diameter_factor is None else finite(diameter_factor, "--worm-diameter-factor")
+    gamma = math.degrees(math.atan2(option.starts, q))
+    if form in MAX_LEAD_ANGLE and gamma > MAX_LEAD_ANGLE[form] + 1e-12:  # said in the command's words
+        raise InputError(f"a worm of {option.starts} start(s) and q = {q:g} has a lead angle of {gamma:.3f} degrees, "
+                         f"beyond the {form.upper()} form's {MAX_LEAD_ANGLE[form]:g}; allowed: fewer starts, a larger "
+                         "--worm-diameter-factor" + (", or --worm-flank zi" if form == "za" else ""))
+    worm_spec = WormSpec(option.starts, q, form, tool_diameter=tool_diameter)  # its own bounds (form, lead angle, q) before the search
     query = make_worm_query(target, option, limits, stages, 1)
-    worm_spec = WormSpec(option.starts, DEFAULT_DIAMETER_FACTOR if diameter_factor is None else diameter_factor, form)
     trains = solve_worm(query)
     if not trains:
         raise ToleranceError(f"no train with a worm of {option.starts} start(s) reaches {common.target} within the "
