@@ -20,7 +20,7 @@ import math
 
 from .limits import Limits
 from .reach import largest_stage_ratio
-from .split import Splitter
+from .split import Splitter, teeth_bound
 from .target import Target
 from .train import Train, make_train, needs_idler
 
@@ -68,7 +68,7 @@ def same_ratio_trains(numerator: int, denominator: int, k: int, limits: Limits, 
     if k <= 2:
         for multiple in range(g_low, g_high + 1):
             limit = _limit(found, best, count, extra_teeth)
-            if _am_gm(numerator * multiple, denominator * multiple, k, low) + floor > limit:
+            if teeth_bound(numerator * multiple, denominator * multiple, k, low) + floor > limit:
                 break  # the bound grows with the multiple
             found = sorted(set(found + splitter.every_for(numerator * multiple, denominator * multiple, limit, keep=count)))
             best = found[0][0] if found else None
@@ -77,11 +77,6 @@ def same_ratio_trains(numerator: int, denominator: int, k: int, limits: Limits, 
                                  extra_teeth)
     found = [t for t in found if t[0] <= best + extra_teeth] if best is not None else []
     return [make_train(stages, target, idler_teeth) for _, stages, idler_teeth in found[:count]]
-
-
-def _am_gm(p: int, q: int, k: int, smallest: int) -> int:
-    """A lower bound of the teeth of ``k`` stages with driver and driven products ``p`` and ``q`` (AM-GM)."""
-    return math.floor(k * (max(p ** (1 / k), smallest) + max(q ** (1 / k), smallest)) * (1 - 1e-12))
 
 
 def _by_blocks(numerator: int, denominator: int, k: int, splitter: Splitter, g_range: tuple[int, int],

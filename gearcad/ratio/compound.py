@@ -112,10 +112,8 @@ def solve_compound(target: Target, stages: int, limits: Limits, count: int = 5, 
         from .small import search_small
         from .split import Splitter
 
-        idler = needs_idler(k, limits)
-        splitter = Splitter(k, limits, shelf, idler, largest_stage_ratio(limits))
-        return search_small(target, k, limits, count, splitter, span, min(limits.teeth) if idler else 0,
-                            None if cap is None else Fraction(float(cap)))
+        splitter = Splitter(k, limits, shelf, needs_idler(k, limits), largest_stage_ratio(limits))
+        return search_small(target, k, limits, count, splitter, span, None if cap is None else Fraction(float(cap)))
     from .windows import search_windows
 
     return search_windows(target, k, limits, count, span, progress=progress, method=method,

@@ -16,8 +16,7 @@ arrays:
    by their exact error (rational arithmetic against the target), then by
    ratio;
 3. each group's fewest-teeth train comes from the exact split of its pairs
-   (:class:`gearcad.ratio.split.Splitter`, the general search's), lightest
-   AM-GM bound first;
+   (:meth:`gearcad.ratio.split.Splitter.best_of`, as in the general search);
 4. the search stops at the first group strictly worse than the ``count``-th
    train found (or worse than the cap).
 
@@ -91,7 +90,7 @@ class _Pairs:
 
 
 def search_small(target: Target, k: int, limits: Limits, count: int, splitter: Splitter,
-                 span: tuple[Fraction, Fraction], idler_floor: int, cap: Fraction | None = None) -> list[Train]:
+                 span: tuple[Fraction, Fraction], cap: Fraction | None = None) -> list[Train]:
     """The best ``count`` distinct ratios of ``k`` stages, each by its fewest-teeth train, best first.
 
     Parameters
@@ -106,8 +105,6 @@ def search_small(target: Target, k: int, limits: Limits, count: int, splitter: S
         Splits a pair of products into stages under the limits.
     span : (Fraction, Fraction)
         Least and greatest ratio of any train of ``k`` stages.
-    idler_floor : int
-        Teeth an idler adds at least (0 without one).
     cap : Fraction, optional
         Trains worse than this |relative error| are left out.
 
@@ -116,9 +113,7 @@ def search_small(target: Target, k: int, limits: Limits, count: int, splitter: S
     list of Train
         Sorted by |relative error| (exact), total teeth, ratio, stages.
     """
-    teeth = limits.teeth
-    smallest = teeth[0]
-    pairs = _Pairs(_products(teeth, k), target.value, float(span[0]) * (1 - 1e-14), float(span[1]) * (1 + 1e-14))
+    pairs = _Pairs(_products(limits.teeth, k), target.value, float(span[0]) * (1 - 1e-14), float(span[1]) * (1 + 1e-14))
     found: list[tuple[Fraction, Train]] = []
     while pairs.peek() is not None:
         run = [pairs.pop()]
@@ -135,26 +130,10 @@ def search_small(target: Target, k: int, limits: Limits, count: int, splitter: S
                 return _results(found, count)
             if cap is not None and error > cap:
                 return _results(found, count)
-            train = _best_of(members, k, smallest, splitter, idler_floor, target)
-            if train is not None:
-                found.append((error, train))
+            best = splitter.best_of(members)
+            if best is not None:
+                found.append((error, make_train(best[1], target, best[2])))
     return _results(found, count)
-
-
-def _best_of(members: list[tuple[int, int]], k: int, smallest: int, splitter: Splitter, idler_floor: int,
-             target: Target) -> Train | None:
-    """The fewest-teeth train (then the first stages) over the product pairs of one ratio."""
-    bounded = sorted((max(math.floor(k * (p ** (1 / k) + q ** (1 / k)) * (1 - 1e-12)), 2 * k * smallest), p, q)
-                     for p, q in members)
-    best = None
-    for bound, p, q in bounded:
-        limit = math.inf if best is None else best[0]
-        if bound + idler_floor > limit:
-            break
-        split = splitter.best_for(p, q, limit)
-        if split is not None and (best is None or split[:2] < best[:2]):
-            best = split
-    return None if best is None else make_train(best[1], target, best[2])
 
 
 def _results(found: list[tuple[Fraction, Train]], count: int) -> list[Train]:

@@ -14,6 +14,7 @@ largest ratio survive.
 from __future__ import annotations
 
 import heapq
+import math
 from bisect import bisect_left, bisect_right
 from collections import Counter
 from fractions import Fraction
@@ -22,7 +23,13 @@ from typing import Sequence
 
 from .limits import Limits, stage_allowed
 
-__all__ = ["best_split", "Splitter"]
+__all__ = ["best_split", "Splitter", "teeth_bound"]
+
+
+def teeth_bound(p: int, q: int, k: int, smallest: int) -> int:
+    """A lower bound of the teeth of ``k`` stages with driver and driven products ``p`` and ``q``: on each
+    side the factors' mean is at least their geometric mean (AM-GM) and at least ``smallest``."""
+    return math.floor(k * (max(p ** (1 / k), smallest) + max(q ** (1 / k), smallest)) * (1 - 1e-12))
 
 
 class _Splitter:
@@ -132,6 +139,22 @@ class Splitter(_Splitter):
         if self.possible(p, q, self.k, self.low, 0):
             self.walk(p, q, self.k, [], 0)
         return self.best
+
+    def best_of(self, pairs) -> tuple[int, tuple, int | None] | None:
+        """The fewest-teeth train (then the first stages) over the product pairs ``(p, q)`` of one ratio.
+
+        Pairs go lightest :func:`teeth_bound` first, each split within the best total so far; any order
+        gives the same train (each split is exhaustive up to its bound), the bound's only cuts the work.
+        """
+        best = None
+        for bound, p, q in sorted((teeth_bound(p, q, self.k, self.low), p, q) for p, q in pairs):
+            limit = math.inf if best is None else best[0]
+            if bound + self.idler_floor > limit:
+                break
+            found = self.best_for(p, q, limit)
+            if found is not None and (best is None or found[:2] < best[:2]):
+                best = found
+        return best
 
     def every_for(self, p: int, q: int, bound: float, keep: int | None = None) -> list[tuple[int, tuple, int | None]]:
         """Every train of ``k`` stages with products ``p``, ``q`` and at most ``bound`` teeth, fewest first.

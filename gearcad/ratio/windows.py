@@ -102,17 +102,7 @@ class _Search:
         return self.splitter.best_for(p, q, bound)
 
     def _best_for_ratio(self, ps: np.ndarray, qs: np.ndarray) -> Train | None:
-        k, a = self.k, self.smallest
-        bounds = k * (ps.astype(float) ** (1 / k) + qs.astype(float) ** (1 / k)) * (1 - 1e-12)
-        bounds = np.maximum(np.floor(bounds), 2 * k * a)
-        best = None
-        for i in np.argsort(bounds, kind="stable").tolist():
-            limit = math.inf if best is None else best[0]
-            if bounds[i] + self.idler_floor > limit:
-                break
-            found = self._best_for_pair(int(ps[i]), int(qs[i]), limit)
-            if found is not None and (best is None or (found[0], found[1]) < (best[0], best[1])):
-                best = found
+        best = None if self.splitter is None else self.splitter.best_of(zip(ps.tolist(), qs.tolist()))
         return None if best is None else make_train(best[1], self.target, best[2])
 
     # -- the exact ratio, first ----------------------------------------------
