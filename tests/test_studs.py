@@ -19,20 +19,13 @@ from gearcad.trains.parts import parts_list
 from gearcad.trains.planner import plan_train
 from gearcad.trains.trainfile import parse_train
 
-THREE = """name = "three"
-module = 1.0
-thickness = 3.0
-{studs}
-[[stage]]
-driver = 12
-driven = 57
-[[stage]]
-driver = 18
-driven = 91
-[[stage]]
-driver = 37
-driven = 91
-"""
+from test_mechanism import COMPOUND  # the three-stage train of the mechanism tests
+
+
+def _three(studs: str) -> str:
+    """That train with a ``studs = [...]`` line."""
+    return COMPOUND.replace("thickness = 3.0\n", f"thickness = 3.0\n{studs}\n", 1)
+
 
 # One stage: the whole stack is one sheet between the plates, so no pipe of 1.5 bores fits.
 ONE = """name = "one"
@@ -62,7 +55,7 @@ def _parts_above(plan, shaft, z):
 
 
 def test_a_short_stud_pipe_stands_proud_of_its_gear_to_one_and_a_half_bores():
-    plan = plan_train(parse_train(THREE.format(studs='studs = ["input"]')))
+    plan = plan_train(parse_train(_three('studs = ["input"]')))
     mech = plan.mechanism
     support = next(s for s in mech.shafts if s.name == "input")
     shaft = next(s for s in plan.shafts if s.name == "input")
@@ -90,7 +83,7 @@ def test_a_short_stud_pipe_stands_proud_of_its_gear_to_one_and_a_half_bores():
 
 
 def test_a_stud_whose_gears_span_enough_keeps_its_pipe_to_them():
-    plan = plan_train(parse_train(THREE.format(studs='studs = ["shaft-1"]')))
+    plan = plan_train(parse_train(_three('studs = ["shaft-1"]')))
     rods = {r.name: r for r in plan.mechanism.rods}
     top = max(g.z for g in plan.gears if plan.shafts[g.shaft].name == "shaft-1") + plan.spec.thickness
     assert rods["shaft-1-pipe"].z1 == pytest.approx(top) and rods["shaft-1-pipe"].length >= STUD_PIPE * 3.0
