@@ -329,7 +329,8 @@ def worm_reach_note(query: WormQuery) -> str:
     s = largest_stage_ratio(query.limits) or Fraction(1)
     k = max(query.spur_counts)
     value = Fraction(t.approx)
-    more = next((n for n in range(k + 1, MAX_STAGES) if _span(query, n)[0] <= value <= _span(query, n)[1]), None)
+    spans = ((n, _span(query, n)) for n in range(k + 1, MAX_STAGES))
+    more = next((n for n, (low, high) in spans if low <= value <= high), None)
     if more is not None:
         ways.append(f"--stages {more + 1}")
     for n in range(k, MAX_STAGES):  # the fewest spur stages whose reach a wider wheel range or more starts extends
